@@ -1,0 +1,33 @@
+"""Admin for jobs and inspections: signed inspections and history are read-only here too."""
+
+from django.contrib import admin
+
+from inspections.models import NCR, Assembly, AssemblyEvent, ClientCriteriaSet, Inspection, Job, Photo, Weld
+from procedures.admin import AppendOnlyAdmin
+
+
+@admin.register(Job)
+class JobAdmin(admin.ModelAdmin):
+    list_display = ["number", "name", "customer", "unit_system", "criteria_key"]
+
+
+@admin.register(Assembly)
+class AssemblyAdmin(admin.ModelAdmin):
+    list_display = ["piece_mark", "job", "drawing", "state"]
+    list_filter = ["state", "job"]
+    list_select_related = ["job"]
+
+
+@admin.register(Weld)
+class WeldAdmin(admin.ModelAdmin):
+    list_display = ["mark", "assembly", "joint_type", "wps"]
+    list_select_related = ["assembly", "wps"]
+
+
+for model in (Inspection, Photo, AssemblyEvent, ClientCriteriaSet):
+    admin.site.register(model, AppendOnlyAdmin)
+
+
+@admin.register(NCR)
+class NCRAdmin(AppendOnlyAdmin):
+    list_display = ["number", "weld", "state", "disposition"]

@@ -1,0 +1,9 @@
+"""Jobs, assemblies and their weld maps, inspections with photos, NCRs, client criteria sets."""
+
+from inspections.models.criteria import ClientCriteriaSet
+from inspections.models.inspection import Inspection, InspectionStage, Photo
+from inspections.models.jobs import Assembly, AssemblyEvent, AssemblyState, Job, Weld
+from inspections.models.ncr import NCR
+
+__all__ = ["NCR", "Assembly", "AssemblyEvent", "AssemblyState", "ClientCriteriaSet", "Inspection", "InspectionStage",
+           "Job", "Photo", "Weld"]

@@ -1,0 +1,114 @@
+"""Inspections: signed on save and never edited. A correction is a new inspection that supersedes one."""
+
+from django.conf import settings
+from django.db import models
+from django.db.models import Exists, OuterRef
+from django.urls import reverse
+from django.utils import timezone
+
+from legwork.fields import LengthField
+from procedures.models.base import SignedRecordError
+
+
+class InspectionStage(models.TextChoices):
+    FIT_UP = "fit_up", "Fit-up"
+    IN_PROCESS = "in_process", "In-process"
+    FINAL = "final", "Final visual"
+
+
+class InspectionQuerySet(models.QuerySet):
+    def current(self):
+        """Inspections that no later inspection supersedes."""
+        return self.filter(~Exists(Inspection.objects.filter(supersedes=OuterRef("pk"))))
+
+
+# Observation fields, named as inspections.acceptance.evaluate reads them.
+LENGTH_OBSERVATIONS = ["min_size", "undersize_length", "undercut_depth", "undercut_length", "porosity_sum_1in",
+                       "porosity_sum_12in", "pore_max", "convexity", "face_width", "throat"]
+COUNT_OBSERVATIONS = ["pores_per_4in"]
+FLAG_OBSERVATIONS = ["crack", "incomplete_fusion", "unfilled_crater", "overlap", "arc_strike"]
+
+
+class Inspection(models.Model):
+    weld = models.ForeignKey("inspections.Weld", on_delete=models.PROTECT, related_name="inspections")
+    stage = models.CharField(max_length=12, choices=InspectionStage.choices, default=InspectionStage.FINAL)
+    inspector = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="inspections")
+    inspected_at = models.DateTimeField(default=timezone.now)
+    supersedes = models.OneToOneField("self", null=True, blank=True, on_delete=models.PROTECT,
+                                      related_name="superseded_by")
+    correction_reason = models.TextField(blank=True)
+
+    min_size = LengthField("smallest leg measured", null=True, blank=True)
+    undersize_length = LengthField("length under size", null=True, blank=True)
+    undercut_depth = LengthField("deepest undercut", null=True, blank=True)
+    undercut_length = LengthField("undercut length over the general limit (worst 12 in / 300 mm)",
+                                  null=True, blank=True)
+    porosity_sum_1in = LengthField("sum of pore diameters, worst 1 in / 25 mm", null=True, blank=True)
+    porosity_sum_12in = LengthField("sum of pore diameters, worst 12 in / 300 mm", null=True, blank=True)
+    pore_max = LengthField("largest pore", null=True, blank=True)
+    pores_per_4in = models.PositiveIntegerField("pores in the worst 4 in / 100 mm", null=True, blank=True)
+    convexity = LengthField(null=True, blank=True)
+    face_width = LengthField(null=True, blank=True)
+    throat = LengthField("measured throat", null=True, blank=True)
+    crack = models.BooleanField(default=False)
+    incomplete_fusion = models.BooleanField(default=False)
+    unfilled_crater = models.BooleanField(default=False)
+    overlap = models.BooleanField(default=False)
+    arc_strike = models.BooleanField(default=False)
+    remarks = models.TextField(blank=True)
+
+    accepted = models.BooleanField(editable=False)
+    findings = models.JSONField(editable=False, help_text="The verdict's findings as judged when signed")
+    criteria_key = models.CharField(max_length=60, editable=False)
+    criteria_version = models.PositiveIntegerField(editable=False)
+
+    objects = InspectionQuerySet.as_manager()
+
+    class Meta:
+        ordering = ["-inspected_at", "-pk"]
+        indexes = [models.Index(fields=["weld", "-inspected_at"])]
+
+    def __str__(self):
+        return f"{self.weld} {self.get_stage_display()} {self.inspected_at:%Y-%m-%d}"
+
+    def save(self, *args, **kwargs):
+        if self.pk is not None and not self._state.adding:
+            raise SignedRecordError("A signed inspection cannot be changed; record a correction that supersedes it.")
+        super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise SignedRecordError("A signed inspection cannot be deleted; record a correction that supersedes it.")
+
+    def get_absolute_url(self):
+        return reverse("inspections:inspection_detail", args=[self.pk])
+
+    def observed(self) -> dict:
+        """The observations as the acceptance engine reads them (absent = none seen)."""
+        observed = {name: getattr(self, name) for name in LENGTH_OBSERVATIONS + COUNT_OBSERVATIONS
+                    if getattr(self, name) is not None}
+        observed.update({name: getattr(self, name) for name in FLAG_OBSERVATIONS})
+        return observed
+
+
+def photo_path(photo, filename):
+    return f"photos/{timezone.now():%Y/%m}/{photo.inspection_id}-{filename}"
+
+
+class Photo(models.Model):
+    """A photo of a weld, cleaned on upload (orientation applied, metadata stripped); served through a view."""
+
+    inspection = models.ForeignKey(Inspection, on_delete=models.PROTECT, related_name="photos")
+    image = models.ImageField(upload_to=photo_path)
+    thumbnail = models.ImageField(upload_to=photo_path)
+    caption = models.CharField(max_length=200, blank=True)
+    width = models.PositiveIntegerField()
+    height = models.PositiveIntegerField()
+    sha256 = models.CharField(max_length=64)
+    uploaded_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
+    uploaded_at = models.DateTimeField(default=timezone.now)
+
+    class Meta:
+        ordering = ["uploaded_at", "pk"]
+
+    def __str__(self):
+        return self.caption or f"Photo {self.pk}"

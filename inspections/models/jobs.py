@@ -1,0 +1,132 @@
+"""Jobs, their assemblies (piece marks) and each assembly's weld map."""
+
+from django.conf import settings
+from django.db import models
+from django.urls import reverse
+from django.utils import timezone
+
+from legwork.fields import ForceField, LengthField
+from procedures.models.base import JointType, Position, UnitSystem
+
+
+class Job(models.Model):
+    number = models.CharField(max_length=30, unique=True)
+    name = models.CharField(max_length=120)
+    customer = models.CharField(max_length=120)
+    unit_system = models.CharField(max_length=2, choices=UnitSystem.choices, default=UnitSystem.US)
+    criteria_key = models.CharField(
+        "criteria set", max_length=60, default="aws-d1.1-2020-static",
+        help_text="Built-in set key (inspections.criteria) unless a client set is chosen",
+    )
+    client_criteria = models.ForeignKey("inspections.ClientCriteriaSet", null=True, blank=True,
+                                        on_delete=models.PROTECT, related_name="jobs")
+    created_at = models.DateTimeField(default=timezone.now, editable=False)
+
+    class Meta:
+        ordering = ["-number"]
+
+    def __str__(self):
+        return f"{self.number} {self.name}"
+
+    def get_absolute_url(self):
+        return reverse("inspections:job_detail", args=[self.pk])
+
+
+class AssemblyState(models.TextChoices):
+    IN_FABRICATION = "in_fabrication", "In fabrication"
+    AWAITING_INSPECTION = "awaiting_inspection", "Awaiting inspection"
+    REJECTED = "rejected", "Rejected"
+    RELEASED = "released", "Released"
+
+
+class Assembly(models.Model):
+    job = models.ForeignKey(Job, on_delete=models.PROTECT, related_name="assemblies")
+    piece_mark = models.CharField(max_length=30)
+    drawing = models.CharField(max_length=40)
+    drawing_revision = models.CharField(max_length=10, default="0")
+    quantity = models.PositiveIntegerField(default=1)
+    description = models.CharField(max_length=200, blank=True)
+    state = models.CharField(max_length=20, choices=AssemblyState.choices, default=AssemblyState.IN_FABRICATION,
+                             editable=False)
+    released_by = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, blank=True, on_delete=models.PROTECT,
+                                    related_name="+", editable=False)
+    released_at = models.DateTimeField(null=True, blank=True, editable=False)
+
+    class Meta:
+        ordering = ["job", "piece_mark"]
+        verbose_name_plural = "assemblies"
+        constraints = [models.UniqueConstraint(fields=["job", "piece_mark"], name="piece_mark_unique_in_job")]
+
+    def __str__(self):
+        return f"{self.piece_mark} ({self.job.number})"
+
+    def get_absolute_url(self):
+        return reverse("inspections:assembly_detail", args=[self.pk])
+
+
+class AssemblyEvent(models.Model):
+    """One state change of an assembly, with who, when and why; append-only."""
+
+    assembly = models.ForeignKey(Assembly, on_delete=models.PROTECT, related_name="events")
+    from_state = models.CharField(max_length=20, choices=AssemblyState.choices)
+    to_state = models.CharField(max_length=20, choices=AssemblyState.choices)
+    reason = models.TextField(blank=True)
+    user = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
+    at = models.DateTimeField(default=timezone.now)
+
+    class Meta:
+        ordering = ["at", "pk"]
+
+    def __str__(self):
+        return f"{self.assembly}: {self.from_state} -> {self.to_state}"
+
+
+class Sides(models.TextChoices):
+    ARROW = "arrow", "Arrow side"
+    OTHER = "other", "Other side"
+    BOTH = "both", "Both sides"
+
+
+class Weld(models.Model):
+    """A line of the weld map: what the drawing asks for, who welded it, to which WPS."""
+
+    assembly = models.ForeignKey(Assembly, on_delete=models.PROTECT, related_name="welds")
+    mark = models.CharField("weld mark", max_length=20)
+    joint_type = models.CharField(max_length=8, choices=JointType.choices, default=JointType.FILLET)
+    size = LengthField("specified leg", help_text="Nominal fillet leg; the vertical leg when legs differ")
+    size2 = LengthField("second leg", null=True, blank=True, help_text="Only for unequal legs")
+    length = LengthField("length of each weld")
+    count = models.PositiveIntegerField(default=1, help_text="How many of this weld on one assembly")
+    sides = models.CharField(max_length=5, choices=Sides.choices, default=Sides.ARROW)
+    all_around = models.BooleanField(default=False)
+    field_weld = models.BooleanField(default=False)
+    pitch = LengthField("pitch (intermittent)", null=True, blank=True)
+    thickness1 = LengthField("thickness of part 1")
+    thickness2 = LengthField("thickness of part 2")
+    position = models.CharField(max_length=2, choices=Position.choices, default=Position.F)
+    wps = models.ForeignKey("procedures.WPS", null=True, blank=True, on_delete=models.PROTECT, related_name="welds",
+                            verbose_name="WPS")
+    welders = models.ManyToManyField("procedures.Welder", blank=True, related_name="welds")
+    welded_on = models.DateField("date welded", null=True, blank=True)
+    primary_member = models.BooleanField(default=False)
+    transverse_to_tension = models.BooleanField("transverse to tensile stress", default=False)
+    required_strength = ForceField(null=True, blank=True, help_text="From the engineer of record, when given")
+    load_angle = models.DecimalField("load angle to weld axis (°)", max_digits=5, decimal_places=2, default=0)
+
+    class Meta:
+        ordering = ["assembly", "mark"]
+        constraints = [models.UniqueConstraint(fields=["assembly", "mark"], name="weld_mark_unique_in_assembly")]
+
+    def __str__(self):
+        return f"{self.assembly.piece_mark} / {self.mark}"
+
+    def get_absolute_url(self):
+        return reverse("inspections:weld_detail", args=[self.pk])
+
+    @property
+    def thinner_part(self):
+        return min(self.thickness1, self.thickness2)
+
+    @property
+    def thicker_part(self):
+        return max(self.thickness1, self.thickness2)

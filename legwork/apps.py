@@ -1,0 +1,6 @@
+from django.apps import AppConfig
+
+
+class LegworkConfig(AppConfig):
+    name = "legwork"
+    verbose_name = "Legwork accounts"

@@ -1,0 +1,61 @@
+"""The one place that calls WeasyPrint: a template and its context in, PDF bytes out.
+
+Documents gather their data first (a snapshot dict), then render; a renderer never queries the
+database. Fonts: DejaVu (Debian's fonts-dejavu-core), so output does not depend on the desktop.
+"""
+
+import hashlib
+from dataclasses import dataclass
+
+from django.conf import settings
+from django.contrib.staticfiles import finders
+from django.template.loader import render_to_string
+from django.utils import timezone
+
+from legwork.roles import CAUTIONS, SAFETY_NOTE
+
+
+@dataclass(frozen=True)
+class RenderedPDF:
+    filename: str
+    content: bytes
+    mimetype: str = "application/pdf"
+
+    @property
+    def sha256(self) -> str:
+        return hashlib.sha256(self.content).hexdigest()
+
+
+def _static_fetcher(url, *args, **kwargs):
+    """Let templates use {% static %} paths without a web server, and refuse anything off this machine."""
+    from weasyprint.urls import default_url_fetcher
+
+    prefix = "/" + settings.STATIC_URL.lstrip("/")
+    if url.startswith(prefix):
+        path = finders.find(url[len(prefix):])
+        if path:
+            return default_url_fetcher("file://" + path, *args, **kwargs)
+    if url.startswith(("data:", "file://")):
+        return default_url_fetcher(url, *args, **kwargs)
+    raise ValueError(f"PDF asked for {url!r}: only data: and static files are embedded (no network).")
+
+
+def render_pdf(template: str, context: dict, filename: str) -> RenderedPDF:
+    """Render a print template (templates/pdf/...) to a PDF. The cautions are always in the context."""
+    from weasyprint import HTML
+
+    context = {"cautions": CAUTIONS, "safety_note": SAFETY_NOTE, "generated_at": timezone.now(),
+               "shop_name": settings.LEGWORK_SHOP_NAME, **context}
+    html = render_to_string(template, context)
+    content = HTML(string=html, base_url="/", url_fetcher=_static_fetcher).write_pdf()
+    return RenderedPDF(filename=filename, content=content)
+
+
+def pdf_response(rendered: RenderedPDF, inline=True):
+    from django.http import HttpResponse
+
+    response = HttpResponse(rendered.content, content_type=rendered.mimetype)
+    disposition = "inline" if inline else "attachment"
+    response["Content-Disposition"] = f'{disposition}; filename="{rendered.filename}"'
+    response["X-Content-SHA256"] = rendered.sha256
+    return response

@@ -1,0 +1,106 @@
+"""Who may do what. The one place that decides; views, templates and tests ask it.
+
+A person has one role. The QA lead approves and releases; the welding engineer drafts procedures and
+records welder tests; the inspector records inspections and raises NCRs; a viewer (a customer's or a
+third-party inspector's account) reads everything and changes nothing.
+"""
+
+from functools import wraps
+
+from django.core.exceptions import PermissionDenied
+from django.db import models
+
+
+class Role(models.TextChoices):
+    WELDING_ENGINEER = "welding_engineer", "Welding engineer"
+    INSPECTOR = "inspector", "Inspector"
+    QA_LEAD = "qa_lead", "QA lead"
+    VIEWER = "viewer", "Viewer (read-only)"
+
+
+# Every action a view can check. Reading needs only a login.
+ACTIONS = {
+    "procedure.draft": "Draft and edit procedures (WPS, PQR)",
+    "procedure.submit": "Submit a draft procedure for approval",
+    "procedure.approve": "Approve a procedure",
+    "procedure.withdraw": "Withdraw an approved procedure",
+    "welder.manage": "Add welders, record qualification tests, deactivate",
+    "continuity.log": "Log continuity by hand",
+    "job.manage": "Create jobs, assemblies and weld maps",
+    "weld.record": "Record who welded what, and when",
+    "inspection.record": "Record and sign inspections, attach photos",
+    "ncr.raise": "Raise an NCR",
+    "ncr.disposition": "Disposition an NCR",
+    "assembly.release": "Release an assembly",
+    "criteria.derive": "Derive a client's criteria set",
+    "traveler.issue": "Issue travelers and job packets",
+}
+
+_ALLOWED = {
+    Role.WELDING_ENGINEER: {"procedure.draft", "procedure.submit", "welder.manage", "job.manage", "weld.record"},
+    Role.INSPECTOR: {"inspection.record", "ncr.raise", "weld.record"},
+    Role.QA_LEAD: {
+        "procedure.approve", "procedure.withdraw", "continuity.log", "ncr.raise", "ncr.disposition",
+        "assembly.release", "criteria.derive", "traveler.issue", "job.manage",
+    },
+    Role.VIEWER: set(),
+}
+assert all(action in ACTIONS for allowed in _ALLOWED.values() for action in allowed)
+
+
+def can(user, action: str) -> bool:
+    """May this user do this action? Unknown actions are a programming error, not a 'no'."""
+    if action not in ACTIONS:
+        raise ValueError(f"Unknown action {action!r}; known: {', '.join(sorted(ACTIONS))}")
+    if not getattr(user, "is_authenticated", False) or not user.is_active:
+        return False
+    return action in _ALLOWED.get(getattr(user, "role", None), set())
+
+
+def require(user, action: str) -> None:
+    """Raise PermissionDenied (403) unless the user may do the action."""
+    if not can(user, action):
+        raise PermissionDenied(f"Your role may not: {ACTIONS[action].lower()}.")
+
+
+def role_required(action: str):
+    """View decorator: the user must be allowed the action (login is already required everywhere)."""
+
+    def decorator(view):
+        @wraps(view)
+        def wrapped(request, *args, **kwargs):
+            require(request.user, action)
+            return view(request, *args, **kwargs)
+
+        wrapped.legwork_action = action
+        return wrapped
+
+    return decorator
+
+
+class _Permissions:
+    """`{% if perms_lw.procedure_approve %}` in templates, spelled with _ for the dot."""
+
+    def __init__(self, user):
+        self.user = user
+
+    def __getattr__(self, name):
+        action = name.replace("_", ".", 1)
+        if action not in ACTIONS:
+            raise AttributeError(name)
+        return can(self.user, action)
+
+
+def role_context(request):
+    return {"lw": _Permissions(request.user), "cautions": CAUTIONS}
+
+
+CAUTIONS = (
+    "Legwork supports, and never replaces, the engineer of record, the certified welding inspector and the "
+    "code and edition named in the contract. Verify every criteria set against that edition; local codes "
+    "and licensed practice govern."
+)
+SAFETY_NOTE = (
+    "Welding produces fumes, arc radiation, heat and fire risk: follow ANSI Z49.1 (Safety in Welding, "
+    "Cutting, and Allied Processes) and local regulations."
+)

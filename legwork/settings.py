@@ -1,0 +1,189 @@
+"""Legwork settings: everything a deployment changes comes from environment variables (legwork.env).
+
+Development (the default, DEBUG on) needs nothing set: SQLite in var/, a secret generated once into
+var/secret_key. Production sets LEGWORK_DEBUG=0, LEGWORK_SECRET_KEY, LEGWORK_ALLOWED_HOSTS and
+usually DATABASE_URL.
+"""
+
+import secrets
+from pathlib import Path
+
+from django.core.exceptions import ImproperlyConfigured
+
+from legwork.env import database_from_url, env_bool, env_int, env_list, env_str
+
+BASE_DIR = Path(__file__).resolve().parent.parent
+VAR_DIR = Path(env_str("LEGWORK_VAR_DIR", str(BASE_DIR / "var")))
+
+DEBUG = env_bool("LEGWORK_DEBUG", True)
+
+
+def _secret_key() -> str:
+    key = env_str("LEGWORK_SECRET_KEY")
+    if key:
+        return key
+    if not DEBUG:
+        raise ImproperlyConfigured("LEGWORK_SECRET_KEY must be set when LEGWORK_DEBUG is off.")
+    path = VAR_DIR / "secret_key"  # development only; var/ is kept out of git
+    if not path.exists():
+        VAR_DIR.mkdir(parents=True, exist_ok=True)
+        path.write_text(secrets.token_urlsafe(50))
+        path.chmod(0o600)
+    return path.read_text().strip()
+
+
+SECRET_KEY = _secret_key()
+ALLOWED_HOSTS = env_list("LEGWORK_ALLOWED_HOSTS", ["127.0.0.1", "localhost", "[::1]"] if DEBUG else [])
+CSRF_TRUSTED_ORIGINS = env_list("LEGWORK_CSRF_TRUSTED_ORIGINS", [])
+
+INSTALLED_APPS = [
+    "django.contrib.admin",
+    "django.contrib.auth",
+    "django.contrib.contenttypes",
+    "django.contrib.sessions",
+    "django.contrib.messages",
+    "whitenoise.runserver_nostatic",
+    "django.contrib.staticfiles",
+    "crispy_forms",
+    "crispy_bootstrap5",
+    "template_partials",
+    "django_tasks",
+    "django_tasks_db",
+    "legwork",
+    "procedures",
+    "inspections",
+]
+
+MIDDLEWARE = [
+    "django.middleware.security.SecurityMiddleware",
+    "whitenoise.middleware.WhiteNoiseMiddleware",
+    "django.contrib.sessions.middleware.SessionMiddleware",
+    "django.middleware.common.CommonMiddleware",
+    "django.middleware.csrf.CsrfViewMiddleware",
+    "django.contrib.auth.middleware.AuthenticationMiddleware",
+    "django.contrib.auth.middleware.LoginRequiredMiddleware",
+    "django.contrib.messages.middleware.MessageMiddleware",
+    "django.middleware.clickjacking.XFrameOptionsMiddleware",
+    "csp.middleware.CSPMiddleware",
+]
+
+ROOT_URLCONF = "legwork.urls"
+WSGI_APPLICATION = "legwork.wsgi.application"
+
+TEMPLATES = [
+    {
+        "BACKEND": "django.template.backends.django.DjangoTemplates",
+        "DIRS": [BASE_DIR / "templates"],
+        "APP_DIRS": True,
+        "OPTIONS": {
+            "context_processors": [
+                "django.template.context_processors.request",
+                "django.contrib.auth.context_processors.auth",
+                "django.contrib.messages.context_processors.messages",
+                "legwork.roles.role_context",
+            ],
+        },
+    },
+]
+
+_database_url = env_str("DATABASE_URL")
+if _database_url:
+    DATABASES = {"default": database_from_url(_database_url)}
+else:
+    # Several people at once on one machine: WAL lets readers go on while one writer writes,
+    # IMMEDIATE takes the write lock at BEGIN (no upgrade deadlock), the timeout waits instead of failing.
+    DATABASES = {
+        "default": {
+            "ENGINE": "django.db.backends.sqlite3",
+            "NAME": Path(env_str("LEGWORK_SQLITE_PATH", str(VAR_DIR / "legwork.sqlite3"))),
+            "OPTIONS": {
+                "init_command": "PRAGMA journal_mode=WAL; PRAGMA synchronous=NORMAL; PRAGMA foreign_keys=ON;",
+                "transaction_mode": "IMMEDIATE",
+                "timeout": 20,
+            },
+        }
+    }
+
+DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
+AUTH_USER_MODEL = "legwork.User"
+LOGIN_URL = "login"
+LOGIN_REDIRECT_URL = "home"
+LOGOUT_REDIRECT_URL = "login"
+
+AUTH_PASSWORD_VALIDATORS = [
+    {"NAME": "django.contrib.auth.password_validation.UserAttributeSimilarityValidator"},
+    {"NAME": "django.contrib.auth.password_validation.MinimumLengthValidator", "OPTIONS": {"min_length": 10}},
+    {"NAME": "django.contrib.auth.password_validation.CommonPasswordValidator"},
+    {"NAME": "django.contrib.auth.password_validation.NumericPasswordValidator"},
+]
+
+LANGUAGE_CODE = "en-us"
+TIME_ZONE = env_str("LEGWORK_TIME_ZONE", "America/Chicago")
+USE_I18N = True
+USE_TZ = True
+
+STATIC_URL = "static/"
+STATICFILES_DIRS = [BASE_DIR / "static"]
+STATIC_ROOT = Path(env_str("LEGWORK_STATIC_ROOT", str(VAR_DIR / "static")))
+# Photos, reports and PDFs: never under STATIC and never served by URL; views check the user first.
+MEDIA_ROOT = Path(env_str("LEGWORK_MEDIA_ROOT", str(VAR_DIR / "media")))
+STORAGES = {
+    "default": {"BACKEND": "django.core.files.storage.FileSystemStorage"},
+    "staticfiles": {
+        "BACKEND": "whitenoise.storage.CompressedManifestStaticFilesStorage"
+        if not DEBUG
+        else "django.contrib.staticfiles.storage.StaticFilesStorage"
+    },
+}
+
+CRISPY_ALLOWED_TEMPLATE_PACKS = "bootstrap5"
+CRISPY_TEMPLATE_PACK = "bootstrap5"
+
+# Background work (packet PDFs): the database backend with a worker (`manage.py db_worker`);
+# LEGWORK_TASKS_INLINE=1 (tests, a one-person shop) runs tasks at once in the request.
+TASKS = {
+    "default": {
+        "BACKEND": "django_tasks.backends.immediate.ImmediateBackend"
+        if env_bool("LEGWORK_TASKS_INLINE", DEBUG)
+        else "django_tasks_db.backend.DatabaseBackend"
+    }
+}
+
+# Upload limits: a tablet photo is a few MB; anything far larger is refused before Pillow sees it.
+DATA_UPLOAD_MAX_MEMORY_SIZE = 5 * 1024 * 1024
+FILE_UPLOAD_MAX_MEMORY_SIZE = 5 * 1024 * 1024
+LEGWORK_PHOTO_MAX_BYTES = env_int("LEGWORK_PHOTO_MAX_BYTES", 15 * 1024 * 1024)
+LEGWORK_PHOTO_MAX_PIXELS = env_int("LEGWORK_PHOTO_MAX_PIXELS", 40_000_000)
+
+CONTENT_SECURITY_POLICY = {
+    "DIRECTIVES": {
+        "default-src": ["'self'"],
+        "img-src": ["'self'", "data:", "blob:"],
+        "style-src": ["'self'"],
+        "script-src": ["'self'"],
+        "frame-ancestors": ["'none'"],
+        "form-action": ["'self'"],
+    }
+}
+
+SESSION_COOKIE_HTTPONLY = True
+SECURE_CONTENT_TYPE_NOSNIFF = True
+X_FRAME_OPTIONS = "DENY"
+if not DEBUG:
+    SECURE_SSL_REDIRECT = env_bool("LEGWORK_SSL_REDIRECT", True)
+    SESSION_COOKIE_SECURE = True
+    CSRF_COOKIE_SECURE = True
+    SECURE_HSTS_SECONDS = env_int("LEGWORK_HSTS_SECONDS", 60 * 60 * 24 * 30)
+    SECURE_HSTS_INCLUDE_SUBDOMAINS = env_bool("LEGWORK_HSTS_SUBDOMAINS", True)
+    SECURE_HSTS_PRELOAD = env_bool("LEGWORK_HSTS_PRELOAD", False)
+    SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https") if env_bool("LEGWORK_BEHIND_PROXY", True) else None
+
+LOGGING = {
+    "version": 1,
+    "disable_existing_loggers": False,
+    "handlers": {"console": {"class": "logging.StreamHandler"}},
+    "root": {"handlers": ["console"], "level": env_str("LEGWORK_LOG_LEVEL", "WARNING")},
+}
+
+# Shown on every page and printed on every PDF (legwork.cautions).
+LEGWORK_SHOP_NAME = env_str("LEGWORK_SHOP_NAME", "Legwork")

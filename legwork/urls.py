@@ -1,0 +1,19 @@
+"""Top-level URLs. Every page needs a login (LoginRequiredMiddleware) except the login page itself."""
+
+from django.contrib import admin
+from django.contrib.auth import views as auth_views
+from django.urls import include, path
+
+from legwork import views
+
+urlpatterns = [
+    path("", views.home, name="home"),
+    path("accounts/login/", auth_views.LoginView.as_view(), name="login"),
+    path("accounts/logout/", auth_views.LogoutView.as_view(), name="logout"),
+    path("procedures/", include("procedures.urls")),
+    path("inspections/", include("inspections.urls")),
+    path("admin/", admin.site.urls),
+]
+
+handler403 = "legwork.views.forbidden"
+handler404 = "legwork.views.not_found"

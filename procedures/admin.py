@@ -1,0 +1,57 @@
+"""Admin for procedures and welders: approved, superseded and withdrawn procedures are read-only here too."""
+
+from django.contrib import admin
+
+from procedures.models import PQR, WPS, ContinuityEntry, ProcedureEvent, Qualification, Welder
+
+
+class AppendOnlyAdmin(admin.ModelAdmin):
+    """History rows: visible, never changed or deleted."""
+
+    def has_add_permission(self, request, obj=None):
+        return False
+
+    def has_change_permission(self, request, obj=None):
+        return False
+
+    def has_delete_permission(self, request, obj=None):
+        return False
+
+
+@admin.register(WPS)
+class WPSAdmin(admin.ModelAdmin):
+    list_display = ["number", "revision", "title", "state", "process", "electrode"]
+    list_filter = ["state", "process"]
+    search_fields = ["number", "title", "electrode"]
+
+    def has_change_permission(self, request, obj=None):
+        return super().has_change_permission(request, obj) and (obj is None or obj.is_editable)
+
+    def has_delete_permission(self, request, obj=None):
+        return super().has_delete_permission(request, obj) and (obj is None or obj.is_editable)
+
+
+admin.site.register(ProcedureEvent, AppendOnlyAdmin)
+
+
+@admin.register(PQR)
+class PQRAdmin(admin.ModelAdmin):
+    list_display = ["number", "process", "electrode", "test_date"]
+
+
+@admin.register(Welder)
+class WelderAdmin(admin.ModelAdmin):
+    list_display = ["stamp", "name", "employer", "active"]
+    search_fields = ["stamp", "name"]
+
+
+@admin.register(Qualification)
+class QualificationAdmin(admin.ModelAdmin):
+    list_display = ["welder", "process", "joint", "test_position", "test_date", "result"]
+    list_select_related = ["welder"]
+
+
+@admin.register(ContinuityEntry)
+class ContinuityEntryAdmin(AppendOnlyAdmin):
+    list_display = ["welder", "process", "date", "source"]
+    list_select_related = ["welder"]

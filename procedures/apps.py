@@ -1,0 +1,6 @@
+from django.apps import AppConfig
+
+
+class ProceduresConfig(AppConfig):
+    name = "procedures"
+    verbose_name = "Procedures and welders"

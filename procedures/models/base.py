@@ -1,0 +1,44 @@
+"""Choices and errors the procedure and inspection records share."""
+
+from django.core.exceptions import ValidationError
+from django.db import models
+
+
+class UnitSystem(models.TextChoices):
+    US = "US", "US customary (in, kip, °F)"
+    SI = "SI", "SI (mm, kN, °C)"
+
+
+class Process(models.TextChoices):
+    SMAW = "SMAW", "SMAW (stick)"
+    GMAW = "GMAW", "GMAW (MIG/MAG)"
+    FCAW = "FCAW", "FCAW (flux-cored)"
+    SAW = "SAW", "SAW (submerged arc)"
+    GTAW = "GTAW", "GTAW (TIG)"
+
+
+class Position(models.TextChoices):
+    F = "F", "Flat"
+    H = "H", "Horizontal"
+    V = "V", "Vertical"
+    OH = "OH", "Overhead"
+
+
+class Current(models.TextChoices):
+    AC = "AC", "AC"
+    DCEP = "DCEP", "DCEP (reverse)"
+    DCEN = "DCEN", "DCEN (straight)"
+
+
+class JointType(models.TextChoices):
+    FILLET = "fillet", "Fillet"
+    GROOVE = "groove", "Groove"
+
+
+class SignedRecordError(ValidationError):
+    """A signed, approved or issued record cannot be changed in place; make a new one that supersedes it."""
+
+
+def split_codes(text: str) -> list[str]:
+    """'F, H,OH' -> ['F', 'H', 'OH']: positions and joint types are stored as comma-separated codes."""
+    return [part.strip() for part in (text or "").split(",") if part.strip()]

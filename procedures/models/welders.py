@@ -1,0 +1,105 @@
+"""Welders, their qualification tests, and the continuity that keeps a qualification alive.
+
+Ranges and lapse dates are never typed: procedures.qualification derives them from the test and from
+the continuity entries (production welds recorded in Legwork add their own entries).
+"""
+
+from django.conf import settings
+from django.db import models
+from django.urls import reverse
+from django.utils import timezone
+
+from legwork.fields import LengthField
+from procedures.models.base import JointType, Process
+
+
+class Welder(models.Model):
+    name = models.CharField(max_length=120)
+    stamp = models.CharField("identification stamp", max_length=20, unique=True)
+    employer = models.CharField(max_length=120)
+    active = models.BooleanField(default=True)
+    deactivated_at = models.DateTimeField(null=True, blank=True, editable=False)
+    deactivation_reason = models.CharField(max_length=200, blank=True, editable=False)
+
+    class Meta:
+        ordering = ["stamp"]
+
+    def __str__(self):
+        return f"{self.stamp} {self.name}"
+
+    def get_absolute_url(self):
+        return reverse("procedures:welder_detail", args=[self.pk])
+
+
+class QualificationCode(models.TextChoices):
+    AWS = "AWS D1.1:2020", "AWS D1.1/D1.1M:2020"
+    ISO = "ISO 9606-1:2012", "ISO 9606-1:2012"
+
+
+class Qualification(models.Model):
+    """A welder qualification test record (WPQ): the facts of the test; ranges are derived."""
+
+    class Result(models.TextChoices):
+        PASS = "pass", "Pass"
+        FAIL = "fail", "Fail"
+
+    welder = models.ForeignKey(Welder, on_delete=models.PROTECT, related_name="qualifications")
+    code = models.CharField(max_length=20, choices=QualificationCode.choices, default=QualificationCode.AWS)
+    process = models.CharField(max_length=8, choices=Process.choices)
+    joint = models.CharField("joint type", max_length=8, choices=JointType.choices)
+    test_position = models.CharField(max_length=12, help_text="AWS 1G-4G, 1F-4F, 3G+4G; ISO PA-PJ")
+    test_thickness = LengthField()
+    electrode = models.CharField("electrode classification", max_length=40)
+    wps = models.ForeignKey("procedures.WPS", null=True, blank=True, on_delete=models.PROTECT, related_name="+",
+                            verbose_name="WPS used")
+    test_date = models.DateField()
+    result = models.CharField(max_length=4, choices=Result.choices)
+    examiner = models.CharField(max_length=120)
+    report = models.FileField(upload_to="qualification-reports/%Y/", blank=True)
+    iso_revalidation = models.CharField(
+        "ISO 9606-1 revalidation route", max_length=2, blank=True,
+        choices=[("a", "9.3 a) retest every 3 years"), ("b", "9.3 b) every 2 years, production welds tested"),
+                 ("c", "9.3 c) kept by the manufacturer's ISO 3834-2 system")],
+    )
+    recorded_by = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, on_delete=models.PROTECT, related_name="+",
+                                    editable=False)
+    recorded_at = models.DateTimeField(default=timezone.now, editable=False)
+
+    class Meta:
+        ordering = ["welder", "-test_date"]
+
+    def __str__(self):
+        return f"{self.welder.stamp} {self.process} {self.test_position} {self.test_date:%Y-%m-%d}"
+
+
+class ContinuityEntry(models.Model):
+    """Proof that a welder used a process on a date: from a production weld, or entered by hand."""
+
+    class Source(models.TextChoices):
+        PRODUCTION = "production", "Production weld in Legwork"
+        MANUAL = "manual", "Entered by hand"
+
+    welder = models.ForeignKey(Welder, on_delete=models.PROTECT, related_name="continuity")
+    process = models.CharField(max_length=8, choices=Process.choices)
+    date = models.DateField()
+    source = models.CharField(max_length=12, choices=Source.choices)
+    weld = models.ForeignKey("inspections.Weld", null=True, blank=True, on_delete=models.PROTECT,
+                             related_name="continuity_entries")
+    note = models.CharField(max_length=200, blank=True)
+    entered_by = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, blank=True, on_delete=models.PROTECT,
+                                   related_name="+")
+    entered_at = models.DateTimeField(default=timezone.now, editable=False)
+
+    class Meta:
+        ordering = ["welder", "-date"]
+        verbose_name_plural = "continuity entries"
+        constraints = [
+            models.UniqueConstraint(fields=["welder", "weld", "process"], condition=models.Q(weld__isnull=False),
+                                    name="one_continuity_entry_per_weld_and_process"),
+            models.CheckConstraint(condition=models.Q(source="production", weld__isnull=False)
+                                   | models.Q(source="manual", weld__isnull=True),
+                                   name="continuity_source_matches_weld"),
+        ]
+
+    def __str__(self):
+        return f"{self.welder.stamp} {self.process} {self.date:%Y-%m-%d}"

@@ -1,0 +1,38 @@
+"""Shared fixtures: one user per role, clients signed in as each, and the invented demo shop."""
+
+import pytest
+
+from legwork.roles import Role
+from tests.factory import Factory
+
+ROLES = [r.value for r in Role]
+
+
+@pytest.fixture
+def make(db):
+    """A Factory for records of the invented demo scenario (see tests/factory.py)."""
+    return Factory()
+
+
+@pytest.fixture
+def users(db):
+    return {role: Factory().make_user(role) for role in ROLES}
+
+
+@pytest.fixture
+def client_as(client, users):
+    """client_as("qa_lead") -> a test client signed in with that role (None: anonymous)."""
+
+    def sign_in(role):
+        client.logout()
+        if role is not None:
+            client.force_login(users[role])
+        return client
+
+    return sign_in
+
+
+@pytest.fixture(autouse=True)
+def _fast_passwords(settings):
+    """Hashing demo passwords with the production hasher costs seconds per test; tests need no strength."""
+    settings.PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]

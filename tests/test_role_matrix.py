@@ -1,0 +1,77 @@
+"""Every URL, every role, and an anonymous visitor: the expected status for a GET.
+
+PAGES must name every URL pattern the project has; a page added without a row here fails
+test_every_url_is_in_the_matrix, so the matrix keeps up as pages are added.
+"""
+
+import importlib
+from pathlib import Path
+
+import pytest
+from django.urls import URLPattern, URLResolver, get_resolver, reverse
+
+from tests.conftest import ROLES
+
+OK, LOGIN, DENIED, GONE = 200, 302, 403, 405
+ALL_OK = {role: OK for role in ROLES}
+
+
+def only(*roles, other=DENIED):
+    return {role: (OK if role in roles else other) for role in ROLES}
+
+
+# name -> (kwargs builder from the factory, {role: status}). Anonymous always redirects to login.
+PAGES = {
+    "home": (lambda make: {}, ALL_OK),
+    "login": (lambda make: {}, ALL_OK),
+}
+
+# Patterns that a GET cannot reach as a page: POST-only actions, admin, logout. Name -> kwargs builder.
+NOT_PAGES = {
+    "logout": lambda make: {},
+}
+
+# Each area keeps its rows in tests/pages_<area>.py (PAGES and NOT_PAGES dicts of the same shape),
+# so that people adding pages in different areas do not edit one file.
+for _module in sorted(Path(__file__).parent.glob("pages_*.py")):
+    _area = importlib.import_module(f"tests.{_module.stem}")
+    PAGES.update(getattr(_area, "PAGES", {}))
+    NOT_PAGES.update(getattr(_area, "NOT_PAGES", {}))
+
+
+def _names(resolver=None, namespace=""):
+    resolver = resolver or get_resolver()
+    for entry in resolver.url_patterns:
+        if isinstance(entry, URLResolver):
+            if entry.namespace == "admin" or getattr(entry, "app_name", None) == "admin":
+                continue
+            ns = f"{namespace}{entry.namespace}:" if entry.namespace else namespace
+            yield from _names(entry, ns)
+        elif isinstance(entry, URLPattern) and entry.name:
+            yield f"{namespace}{entry.name}"
+
+
+def test_every_url_is_in_the_matrix():
+    missing = sorted(set(_names()) - set(PAGES) - set(NOT_PAGES))
+    assert not missing, f"add these URL names to tests/test_role_matrix.py PAGES or NOT_PAGES: {missing}"
+
+
+@pytest.mark.parametrize("name", sorted(PAGES))
+@pytest.mark.parametrize("role", [None, *ROLES])
+def test_page_answers_each_role_as_expected(name, role, client_as, make):
+    build, expected = PAGES[name]
+    url = reverse(name, kwargs=build(make))
+    response = client_as(role).get(url)
+    if role is None:
+        want = OK if name == "login" else LOGIN
+        assert response.status_code == want, f"anonymous GET {url}"
+        if want == LOGIN:
+            assert response.url.startswith(reverse("login"))
+    else:
+        assert response.status_code == expected[role], f"{role} GET {url}"
+
+
+@pytest.mark.parametrize("name", sorted(NOT_PAGES))
+def test_action_urls_refuse_get(name, client_as, make):
+    response = client_as("qa_lead").get(reverse(name, kwargs=NOT_PAGES[name](make)))
+    assert response.status_code == GONE

@@ -176,6 +176,10 @@ if not DEBUG:
     SECURE_HSTS_SECONDS = env_int("LEGWORK_HSTS_SECONDS", 60 * 60 * 24 * 30)
     SECURE_HSTS_INCLUDE_SUBDOMAINS = env_bool("LEGWORK_HSTS_SUBDOMAINS", True)
     SECURE_HSTS_PRELOAD = env_bool("LEGWORK_HSTS_PRELOAD", False)
+    if not SECURE_HSTS_PRELOAD:
+        # Preloading commits a whole domain to HTTPS in every browser; a shop's own server name rarely
+        # should be. Off by default, on with LEGWORK_HSTS_PRELOAD=1.
+        SILENCED_SYSTEM_CHECKS = ["security.W021"]
     SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https") if env_bool("LEGWORK_BEHIND_PROXY", True) else None
 
 LOGGING = {

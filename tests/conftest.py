@@ -3,7 +3,6 @@
 import pytest
 
 from legwork.roles import Role
-from tests.factory import Factory
 
 ROLES = [r.value for r in Role]
 
@@ -11,12 +10,14 @@ ROLES = [r.value for r in Role]
 @pytest.fixture
 def make(db):
     """A Factory for records of the invented demo scenario (see tests/factory.py)."""
+    from tests.factory import Factory  # imported here so engine tests run without Django set up
+
     return Factory()
 
 
 @pytest.fixture
-def users(db):
-    return {role: Factory().make_user(role) for role in ROLES}
+def users(db, make):
+    return {role: make.make_user(role) for role in ROLES}
 
 
 @pytest.fixture

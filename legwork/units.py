@@ -441,3 +441,48 @@ def significant(value: Decimal, figures: int = 3) -> Decimal:
         return Decimal(0)
     exponent = value.adjusted() - figures + 1
     return value.quantize(Decimal(1).scaleb(exponent), rounding=ROUND_HALF_UP)
+
+
+def length_system(text) -> str | None:
+    """'US' when a length was written in inches or feet, 'SI' in mm, cm or m; None for a Length value.
+
+    Criteria that print US and SI values separately (1/16 in and 2 mm are not conversions of each other)
+    judge a size by the system it was written in.
+    """
+    if isinstance(text, Length):
+        return None
+    parse_length(text)  # refuses what is not a length, with the usual message
+    text = _clean(text, "length")
+    if _FEET_INCHES.match(text):
+        return "US"
+    _, unit = _quantity(text, "length")
+    us_units = _INCH_UNITS | {"'", "ft", "feet", "foot"}
+    return "US" if unit in us_units or unit.lower() in us_units else "SI"
+
+
+# --- areas: a net area typed by a person (plate with holes, effective net area) ----------------
+
+_EXAMPLES["area"] = "4.5 in2 or 2900 mm2"
+_AREA_UNITS = {"in2": (MM_PER_INCH * MM_PER_INCH, "US"), "in^2": (MM_PER_INCH * MM_PER_INCH, "US"),
+               "sqin": (MM_PER_INCH * MM_PER_INCH, "US"), "mm2": (Decimal(1), "SI"), "mm^2": (Decimal(1), "SI"),
+               "cm2": (Decimal(100), "SI"), "cm^2": (Decimal(100), "SI")}
+
+
+@dataclass(frozen=True, order=True)
+class Area:
+    """An area in mm2 (exact for areas written in in2, since 1 in = 25.4 mm exactly); .in2 for US figures."""
+
+    mm2: Decimal
+
+    @property
+    def in2(self) -> Decimal:
+        return self.mm2 / (MM_PER_INCH * MM_PER_INCH)
+
+
+def parse_area(text, default_unit=None) -> Area:
+    """Read '4.5 in2', '4.5 in²', '2900 mm2'. Zero is refused: no member carries load on no area."""
+    if isinstance(text, Area):
+        return text
+    base, _ = _parse_scaled(text, "area", _AREA_UNITS, default_unit, allow_zero=False)
+    return Area(base)
+

@@ -54,9 +54,26 @@ class _QuantityField(models.DecimalField):
         raise NotImplementedError
 
     def get_prep_value(self, value):
+        # Not DecimalField.get_prep_value: it would call our to_python and wrap the Decimal again.
+        value = models.Field.get_prep_value(self, value)
+        if isinstance(value, str):
+            value = self.to_python(value)
         if isinstance(value, self.quantity):
             value = getattr(value, self.attribute)
-        return super().get_prep_value(value)
+        return models.DecimalField.to_python(self, value)
+
+    def get_db_prep_value(self, value, connection, prepared=False):
+        if not prepared:
+            value = self.get_prep_value(value)
+        if value is None or hasattr(value, "as_sql"):
+            return value
+        return connection.ops.adapt_decimalfield_value(value, self.max_digits, self.decimal_places)
+
+    def run_validators(self, value):
+        # DecimalField's digit validator judges the stored number, rounded to the column's places.
+        if isinstance(value, self.quantity):
+            value = getattr(value, self.attribute).quantize(Decimal(1).scaleb(-self.decimal_places))
+        super().run_validators(value)
 
     def value_to_string(self, obj):
         value = self.value_from_object(obj)
@@ -138,8 +155,11 @@ class _QuantityFormField(forms.CharField):
         self.allow_zero = allow_zero
         self.minimum = minimum
         self.maximum = maximum
-        kwargs.setdefault("max_length", units.MAX_INPUT_CHARS)
+        kwargs.pop("max_length", None)  # units refuses over-long text itself, with a message
         super().__init__(**kwargs)
+
+    def widget_attrs(self, widget):
+        return {**super().widget_attrs(widget), "maxlength": str(units.MAX_INPUT_CHARS)}
 
     def default_unit(self):
         return None

@@ -486,3 +486,105 @@ def parse_area(text, default_unit=None) -> Area:
     base, _ = _parse_scaled(text, "area", _AREA_UNITS, default_unit, allow_zero=False)
     return Area(base)
 
+
+
+# --- welding current, arc voltage, heat input: the electrical side of a WPS ------------------------
+
+_EXAMPLES["amperage"] = "200 A"
+_EXAMPLES["voltage"] = "25 V"
+_EXAMPLES["heat input"] = "30 kJ/in or 1.2 kJ/mm"
+_AMPERAGE_UNITS = {"a": (Decimal(1), ""), "amp": (Decimal(1), ""), "amps": (Decimal(1), ""),
+                   "ampere": (Decimal(1), ""), "amperes": (Decimal(1), "")}
+_VOLTAGE_UNITS = {"v": (Decimal(1), ""), "volt": (Decimal(1), ""), "volts": (Decimal(1), "")}
+
+
+def _electrical_text(value, what):
+    """Amps and volts have one unit each, so a bare number is read; a bool or a float NaN is not a reading."""
+    if isinstance(value, bool) or not isinstance(value, (str, int, Decimal)):
+        raise UnitError(f"{what} must be text or a number such as {_EXAMPLES[what]}, not {type(value).__name__}.")
+    return value if isinstance(value, str) else format(value, "f")
+
+
+def parse_amperage(value) -> Decimal:
+    """Read welding current in amperes: '200 A', '200', 200. Above 2000 A is refused (no single arc runs there)."""
+    amps, _ = _parse_scaled(_electrical_text(value, "amperage"), "amperage", _AMPERAGE_UNITS, "A", allow_zero=False)
+    if amps > 2000:
+        raise UnitError(f"'{value}' is above 2000 A: check the number (a welding current such as 200 A).")
+    return _normal(amps)
+
+
+def parse_voltage(value) -> Decimal:
+    """Read arc voltage in volts: '25 V', '25', 25. Above 100 V is refused (arc voltages run about 15-45 V)."""
+    volts, _ = _parse_scaled(_electrical_text(value, "voltage"), "voltage", _VOLTAGE_UNITS, "V", allow_zero=False)
+    if volts > 100:
+        raise UnitError(f"'{value}' is above 100 V: check the number (an arc voltage such as 25 V).")
+    return _normal(volts)
+
+
+HEAT_INPUT_PLACES = Decimal("0.000000001")  # 1e-9 kJ: far below any reading, far above Decimal noise
+
+
+@dataclass(frozen=True, order=True)
+class HeatInput:
+    """Arc energy per length of weld, kept in kJ/mm and kJ/in, each rounded from the exact value once
+    (so 30 kJ/in stays 30, not 29.99999..., and a limit compares equal to itself in either system)."""
+
+    kj_per_mm: Decimal
+    kj_per_in: Decimal
+
+    @classmethod
+    def from_kj_per_mm(cls, value) -> HeatInput:
+        exact = Fraction(Decimal(str(value)))
+        return cls(_to_decimal(exact).quantize(HEAT_INPUT_PLACES, rounding=ROUND_HALF_UP),
+                   _to_decimal(exact * Fraction(MM_PER_INCH)).quantize(HEAT_INPUT_PLACES, rounding=ROUND_HALF_UP))
+
+    @classmethod
+    def from_fraction(cls, kj_per_mm: Fraction) -> HeatInput:
+        """From an exact kJ/mm (heat_input computes one with Fractions)."""
+        return cls(_to_decimal(kj_per_mm).quantize(HEAT_INPUT_PLACES, rounding=ROUND_HALF_UP),
+                   _to_decimal(kj_per_mm * Fraction(MM_PER_INCH)).quantize(HEAT_INPUT_PLACES, rounding=ROUND_HALF_UP))
+
+
+_HEAT_INPUT_UNITS = {"kj/mm": (Fraction(1), "SI"), "j/mm": (Fraction(1, 1000), "SI"), "kj/cm": (Fraction(1, 10), "SI"),
+                     "kj/in": (1 / Fraction(MM_PER_INCH), "US"), "kj/in.": (1 / Fraction(MM_PER_INCH), "US")}
+
+
+def parse_heat_input(text) -> HeatInput:
+    """Read '30 kJ/in', '1.2 kJ/mm', '1200 J/mm', '12 kJ/cm'.
+
+    The unit is required: kJ/in and kJ/mm differ 25.4 times.
+    """
+    if isinstance(text, HeatInput):
+        return text
+    text = _clean(text, "heat input")
+    value, unit = _quantity(text, "heat input")
+    if unit is None:
+        raise UnitError(f"'{text}' has no unit: write it as {_EXAMPLES['heat input']}.")
+    factor = _HEAT_INPUT_UNITS.get(unit.lower().replace(" ", ""))
+    if factor is None:
+        raise UnitError(f"'{unit}' is not a heat input unit: write it as {_EXAMPLES['heat input']}.")
+    if value == 0:
+        raise UnitError(f"A heat input of zero is not possible: write it as {_EXAMPLES['heat input']}.")
+    kj_per_mm = value * factor[0]
+    if kj_per_mm > 100:
+        raise UnitError(f"'{text}' is above 100 kJ/mm (2540 kJ/in): check the number and the unit.")
+    return HeatInput.from_fraction(kj_per_mm)
+
+
+def format_heat_input(heat_input: HeatInput, system: str = "US", figures: int = 3) -> str:
+    """'30 kJ/in', '46.2 kJ/in' on a US job, '1.18 kJ/mm' on an SI job (three significant figures unless told)."""
+    if _system(system) == "US":
+        return f"{_plain(significant(heat_input.kj_per_in, figures))} kJ/in"
+    return f"{_plain(significant(heat_input.kj_per_mm, figures))} kJ/mm"
+
+
+def temperature_system(text) -> str | None:
+    """'US' when a temperature was written in F, 'SI' in C; None for a Temperature value.
+
+    Tables that print F and C values separately (150 F [65 C]) judge a temperature by the scale it was written in.
+    """
+    if isinstance(text, Temperature):
+        return None
+    parse_temperature(text)  # refuses what is not a temperature, with the usual message
+    match = _TEMPERATURE.match(unicodedata.normalize("NFKC", text).replace("\u2212", "-").strip())
+    return "US" if _TEMP_UNITS[match["unit"].strip().lower().replace("º", "°")] == "F" else "SI"

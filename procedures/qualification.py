@@ -23,6 +23,7 @@ from datetime import date, datetime, timedelta
 from decimal import Decimal
 
 from legwork.units import Length, UnitError, format_length, parse_length
+from procedures import electrodes
 
 AWS = "AWS D1.1:2020"
 ISO = "ISO 9606-1:2012"
@@ -306,34 +307,24 @@ def iso_revalidation_due(test_date, route) -> date | None:
 
 # --- SMAW electrode groups --------------------------------------------------------------------------------------
 
-# AWS D1.1/D1.1M:2020 clause 6, SMAW electrode groups (from memory): last two digits of an A5.1 / A5.5 classification.
-SMAW_GROUPS = {
-    "F4": ("15", "16", "18", "48"),
-    "F3": ("10", "11"),
-    "F2": ("12", "13", "14"),
-    "F1": ("20", "24", "27", "28"),
-}
-_GROUP_ORDER = ("F1", "F2", "F3", "F4")  # a higher group qualifies every lower one (from memory)
-_SMAW = re.compile(r"^E(?P<strength>\d{2,3})(?P<kind>\d{2})(?P<rest>[-A-Z0-9]*)$")
+# AWS D1.1/D1.1M:2020 clause 6, SMAW electrode groups F1..F4 (from memory): the table lives once, in
+# procedures.electrodes (GROUPS_QUALIFIED, group_of); this module only asks it.
 
 
 def smaw_electrode_group(classification) -> str:
-    """'E7018' -> 'F4'. Derived here from the last two digits (procedures.electrodes is not needed for it)."""
-    text = classification.strip().upper().replace(" ", "") if isinstance(classification, str) else None
-    match = _SMAW.match(text) if text else None
-    if match and int(match["strength"]) in (60, 70, 80, 90, 100, 110, 120):
-        for group, kinds in SMAW_GROUPS.items():
-            if match["kind"] in kinds:
-                return group
-    raise ValueError(f"{classification!r} is not an SMAW electrode of a known group: give an AWS A5.1 or A5.5 "
-                     "classification such as E6010, E7018 or E8018-C3, or a group F1 to F4.")
+    """'E7018' -> 'F4', from procedures.electrodes."""
+    try:
+        return electrodes.group_of(classification)
+    except ValueError:
+        raise ValueError(f"{classification!r} is not an SMAW electrode of a known group: give an AWS A5.1 or A5.5 "
+                         "classification such as E6010, E7018 or E8018-C3, or a group F1 to F4.") from None
 
 
 def electrode_groups_qualified(classification_or_group) -> frozenset[str]:
     """SMAW groups a test electrode qualifies: F4 -> F4..F1, F3 -> F3..F1, F2 -> F2, F1; F1 -> F1 (from memory)."""
     text = classification_or_group.strip().upper() if isinstance(classification_or_group, str) else None
-    group = text if text in _GROUP_ORDER else smaw_electrode_group(classification_or_group)
-    return frozenset(_GROUP_ORDER[: _GROUP_ORDER.index(group) + 1])
+    group = text if text in electrodes.GROUPS_QUALIFIED else smaw_electrode_group(classification_or_group)
+    return electrodes.groups_qualified(group)
 
 
 # --- the facts of a test, the weld asked for, and the check -----------------------------------------------------

@@ -37,6 +37,9 @@ from legwork.units import (
 )
 
 SPEC = "AISC 360-16"
+# Stored with every calculation snapshot (NCR, calculation sheet): change it when a rule, a factor or a figure of
+# this module changes, so a stored calculation says which arithmetic made it.
+ENGINE_VERSION = "2026-12-02"
 
 # --- resistance and safety factors -------------------------------------------------------------------------
 PHI_WELD, OMEGA_WELD = Decimal("0.75"), Decimal("2.00")  # AISC 360-16 J2.4, Table J2.5 (fillet, shear)
@@ -775,14 +778,20 @@ def connection_capacity(welds, base_metal) -> ConnectionCapacity:
 # --- a weld as inspected -----------------------------------------------------------------------------------
 
 def as_inspected_capacity(specified_leg, length, measured_min_leg, undersize_length, fexx="70 ksi", angle=0,
-                          required=None, *, end_loaded=False, method="LRFD") -> AsInspectedCapacity:
-    """Capacity of an equal-leg fillet found undersize, for an NCR disposition (the engineer of record decides).
+                          required=None, *, end_loaded=False, method="LRFD",
+                          specified_leg2=None) -> AsInspectedCapacity:
+    """Capacity of a fillet found undersize, for an NCR disposition (the engineer of record decides).
 
     (a) as inspected: the smallest measured leg over the undersize length plus the specified leg over the rest;
     (b) conservative: the smallest measured leg over the whole length; (c) demand / capacity when required
     ('12 kip', '50 kN') is given, against phi Rn (method='LRFD') or Rn / Omega ('ASD'). A measured leg larger than
-    specified is not credited. The 4 w rule and the end-loaded reduction (J2.2b) are judged on the whole weld."""
+    specified is not credited. The 4 w rule and the end-loaded reduction (J2.2b) are judged on the whole weld.
+
+    Unequal legs (specified_leg2): only the smallest leg is measured, so over the undersize length each leg is
+    credited with min(measured, its specified size): the unmeasured leg is at least the smallest one, and no more
+    is assumed (our choice, conservative). The throat is then a b / sqrt(a^2 + b^2), AISC 360-16 J2.2a."""
     spec_leg = _length(specified_leg, "Specified leg")
+    spec_leg2 = _length(specified_leg2, "Specified second leg") if specified_leg2 is not None else None
     line = _length(length, "Weld length")
     measured = _length(measured_min_leg, "Smallest measured leg")
     under = _length(undersize_length, "Undersize length", allow_zero=True)
@@ -797,25 +806,39 @@ def as_inspected_capacity(specified_leg, length, measured_min_leg, undersize_len
             force = parse_force(required)
         except UnitError as exc:
             raise UnitError(f"Required strength: {exc}") from None
-    specified = fillet_strength(spec_leg, line, fexx, angle, end_loaded=end_loaded)
+    specified = fillet_strength(spec_leg, line, fexx, angle, leg2=specified_leg2, end_loaded=end_loaded)
     system = _system_of(specified_leg, specified.system)
-    credited = min(measured, spec_leg)
+    unequal = spec_leg2 is not None and spec_leg2 != spec_leg
+    if unequal:
+        (small, small_text), (large, large_text) = sorted(
+            [(spec_leg, specified_leg), (spec_leg2, specified_leg2)], key=lambda pair: pair[0])
+    else:
+        (small, small_text), (large, large_text) = (spec_leg, specified_leg), (spec_leg, specified_leg)
+    credited, credited2 = min(measured, small), min(measured, large)  # legs credited over the undersize length
     # the text as typed, so the conservative trail speaks in the inspector's unit system
-    conservative = fillet_strength(measured_min_leg if measured <= spec_leg else specified_leg, line, fexx, angle,
-                                   end_loaded=end_loaded)
+    if measured <= small:
+        conservative = fillet_strength(measured_min_leg, line, fexx, angle, end_loaded=end_loaded)
+    else:
+        conservative = fillet_strength(small_text, line, fexx, angle, end_loaded=end_loaded,
+                                       leg2=measured_min_leg if measured < large else large_text if unequal else None)
 
     steps = []
-    if measured > spec_leg:
-        steps.append(Step("Measured leg", f"{_dim(measured, system)} > specified {_dim(spec_leg, system)}: "
-                          "not credited", _dim(spec_leg, system)))
+    if measured > small:
+        shown = (_dim(credited, system) if credited == credited2
+                 else f"{_dim(credited, system)} x {_dim(credited2, system)}")
+        specified_shown = _dim(small, system) if not unequal else f"{_dim(small, system)} x {_dim(large, system)}"
+        steps.append(Step("Measured leg", f"{_dim(measured, system)} > specified {_dim(small, system)}: "
+                          f"credited no more than specified ({specified_shown})", shown))
     # J2.2b 4 w rule on the whole weld: each leg at most l/4.
     cap = line.inch / 4
-    spec_eff, meas_eff = min(spec_leg.inch, cap), min(credited.inch, cap)
-    if spec_eff < spec_leg.inch:
+    spec_a, spec_b = min(small.inch, cap), min(large.inch, cap)
+    meas_a, meas_b = min(credited.inch, cap), min(credited2.inch, cap)
+    meas_eff = meas_a  # the smallest credited leg: the end-loaded reduction is judged with it
+    if spec_b < large.inch:
         steps.append(Step("Minimum length (AISC 360-16 J2.2b)", f"l = {_dim(line, system)} < 4 w, so w = l/4",
                           _dim(_inches(cap), system)))
-    e_spec, spec_step = _throat(spec_eff, None, system)
-    e_meas, meas_step = _throat(meas_eff, None, system)
+    e_spec, spec_step = _throat(spec_a, spec_b if spec_b != spec_a else None, system)
+    e_meas, meas_step = _throat(meas_a, meas_b if meas_b != meas_a else None, system)
     sound = line.inch - under.inch
     if end_loaded:  # the whole weld's reduction, judged with its smallest leg, shared by both segments
         eff, _, expression, _ = _end_loaded_length(line.inch, meas_eff, system)
@@ -841,8 +864,10 @@ def as_inspected_capacity(specified_leg, length, measured_min_leg, undersize_len
     ]
     steps.extend(_available_steps(nominal, PHI_WELD, OMEGA_WELD, system, "AISC 360-16 J2.4, Table J2.5"))
     as_inspected = Capacity(steps=list(steps), **_six(nominal, PHI_WELD, OMEGA_WELD))
+    credited_shown = (_dim(credited, system) if credited == credited2
+                      else f"{_dim(credited, system)} x {_dim(credited2, system)}")
     steps.append(Step("Conservative: smallest leg over the whole length (AISC 360-16 J2.4)",
-                      f"w = {_dim(credited, system)}, l = {_dim(line, system)}",
+                      f"w = {credited_shown}, l = {_dim(line, system)}",
                       _force_text(conservative.lrfd_kip if method == "LRFD" else conservative.asd_kip, system,
                                   both=True) + f" ({method})"))
 
@@ -866,3 +891,52 @@ def as_inspected_capacity(specified_leg, length, measured_min_leg, undersize_len
     return AsInspectedCapacity(specified=specified, as_inspected=as_inspected, conservative=conservative,
                                method=method, required=force, ratio=ratio, ratio_conservative=ratio_conservative,
                                steps=steps, findings=findings)
+
+
+# --- demand over capacity, for any result ---------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class DemandCapacity:
+    """Required strength over available strength, AISC 360-16 B3 (LRFD: Ru <= phi Rn; ASD: Ra <= Rn / Omega)."""
+
+    method: str
+    required: Force
+    available_kip: Decimal
+    available_kN: Decimal
+    ratio: Decimal
+    ok: bool
+    steps: list = field(default_factory=list)
+    findings: list = field(default_factory=list)
+
+
+def demand_capacity(result, required, method="LRFD") -> DemandCapacity:
+    """Compare a required strength ('12 kip', '50 kN') with a result's phi Rn (LRFD) or Rn / Omega (ASD).
+
+    result is any result of this module with lrfd_kip and asd_kip (a weld, a group, a connection, a plate)."""
+    if method not in ("LRFD", "ASD"):
+        raise ValueError(f"method must be 'LRFD' or 'ASD', not {method!r}.")
+    if not hasattr(result, "lrfd_kip") or not hasattr(result, "asd_kip"):
+        raise ValueError("result must be a strength result of inspections.strength (with lrfd_kip and asd_kip).")
+    try:
+        force = parse_force(required)
+    except UnitError as exc:
+        raise UnitError(f"Required strength: {exc}") from None
+    if force.kn <= 0:
+        raise UnitError(f"Required strength must be greater than zero, for example 12 kip or 50 kN; got {required!r}.")
+    system = getattr(result, "system", None) or "US"
+    available = result.lrfd_kip if method == "LRFD" else result.asd_kip
+    symbol = "phi Rn" if method == "LRFD" else "Rn / Omega"
+    ratio = force.kip / available
+    ok = ratio <= 1
+    shown = format_force(force, system)
+    step = Step(f"Demand / capacity ({SPEC} B3, {method})",
+                f"{shown} / {symbol} = {shown} / {_force_text(available, system)}", _num(ratio, 3))
+    found = Finding("demand_capacity", ok, f"Required {shown} {'is within' if ok else 'exceeds'} the available "
+                    f"{symbol} of {_force_text(available, system)} (ratio {_num(ratio, 3)}).", f"{SPEC} B3")
+    return DemandCapacity(method=method, required=force, available_kip=available, available_kN=available * KIP_TO_KN,
+                          ratio=ratio, ok=ok, steps=[step], findings=[found])
+
+
+def filler_strength(fexx) -> Stress:
+    """Read and check a filler metal strength ('70 ksi', '480 MPa') as fillet_strength would; ValueError if not."""
+    return _fexx(fexx)[0]

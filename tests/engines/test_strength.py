@@ -29,7 +29,9 @@ from inspections.strength import (
     as_inspected_capacity,
     base_metal_shear,
     connection_capacity,
+    demand_capacity,
     directional_factor,
+    filler_strength,
     fillet_strength,
     plate_tension,
     weld_group_strength,
@@ -493,3 +495,63 @@ def test_parse_area():
     for bad in ("0 in2", "3 in", "-2 in2", None, "lots"):
         with pytest.raises(ValueError):
             parse_area(bad)
+
+
+# --- as inspected with unequal legs; demand over capacity for any result --------------------------------------
+
+def test_as_inspected_unequal_legs_with_no_undersize_is_the_specified_weld():
+    # AISC 360-16 J2.2a: throat of unequal legs a b / sqrt(a^2 + b^2), the shortest distance from root to face
+    a = as_inspected_capacity("1/4 in", "10 in", "1/4 in", "0 in", specified_leg2="3/8 in")
+    f = fillet_strength("1/4 in", "10 in", leg2="3/8 in")
+    assert a.as_inspected.nominal_kip == f.nominal_kip == a.specified.nominal_kip
+
+
+def test_as_inspected_unequal_legs_credit_the_measured_leg_on_both_legs():
+    # our choice (conservative), checked against AISC 360-16 J2.2a arithmetic: only the smallest leg is measured,
+    # so over the undersize length each leg counts min(measured, its specified size)
+    whole = as_inspected_capacity("3/8 in", "10 in", "3/16 in", "10 in", specified_leg2="1/4 in")
+    assert whole.as_inspected.nominal_kip == fillet_strength("3/16 in", "10 in").nominal_kip
+    assert whole.conservative.nominal_kip == whole.as_inspected.nominal_kip
+    between = as_inspected_capacity("1/4 in", "10 in", "5/16 in", "10 in", specified_leg2="3/8 in")
+    assert between.as_inspected.nominal_kip == fillet_strength("1/4 in", "10 in", leg2="5/16 in").nominal_kip
+    assert between.conservative.nominal_kip == between.as_inspected.nominal_kip
+
+
+def test_as_inspected_unequal_legs_lie_between_conservative_and_specified():  # AISC 360-16 J2.2a, J2.4
+    a = as_inspected_capacity("1/4 in", "12 in", "3/16 in", "3 in", specified_leg2="5/16 in", required="20 kip")
+    assert a.conservative.nominal_kip < a.as_inspected.nominal_kip < a.specified.nominal_kip
+    assert finding(a, "demand_capacity").ok
+    assert any("a b / sqrt" in step.expression for step in a.steps if step.label.startswith("Throat, full-size"))
+
+
+def test_as_inspected_equal_second_leg_changes_nothing():
+    plain = as_inspected_capacity("5/16 in", "12 in", "1/4 in", "2 in")
+    same = as_inspected_capacity("5/16 in", "12 in", "1/4 in", "2 in", specified_leg2="5/16 in")
+    assert same.as_inspected.nominal_kip == plain.as_inspected.nominal_kip == Decimal("107.64075")
+
+
+def test_demand_capacity_against_manual_figure():
+    # AISC Manual 15th ed. Part 8: 1/4 in E70, phi Rn = 1.392 x 4 = 5.57 kip/in (unrounded 5.567625 kip/in)
+    weld = fillet_strength("1/4 in", "1 in")
+    at = demand_capacity(weld, "5.5676 kip")
+    assert significant(at.ratio, 4) == Decimal("1.000") and at.ok  # AISC 360-16 B3: Ru <= phi Rn
+    over = demand_capacity(weld, "5.57 kip")
+    assert not over.ok and not over.findings[0].ok
+    asd = demand_capacity(weld, "3.7117 kip", method="ASD")  # 0.928 x 4 = 3.71 kip/in, Rn / Omega (3.71175)
+    assert significant(asd.ratio, 4) == Decimal("1.000") and asd.ok
+
+
+def test_demand_capacity_refuses_bad_input():
+    weld = fillet_strength("1/4 in", "1 in")
+    for required, method, message in (("0 kip", "LRFD", "greater than zero"), ("12", "LRFD", "no unit"),
+                                      ("12 kip", "WSD", "LRFD")):
+        with pytest.raises(ValueError, match=message):
+            demand_capacity(weld, required, method)
+    with pytest.raises(ValueError, match="strength result"):
+        demand_capacity({"lrfd": 1}, "1 kip")
+
+
+def test_filler_strength_refuses_ksi_given_as_mpa():  # E60 to E120 (AWS A5.1, A5.5)
+    assert filler_strength("70 ksi").ksi == Decimal(70)
+    with pytest.raises(ValueError, match="did you mean 70 ksi"):
+        filler_strength("70 MPa")

@@ -6,11 +6,16 @@ Every state change writes a ProcedureEvent (who, when, from, to, why).
 """
 
 from django.conf import settings
+from django.core.exceptions import ValidationError
 from django.db import models, transaction
 from django.urls import reverse
 from django.utils import timezone
 
+from legwork import units
 from legwork.fields import FlowField, LengthField, SpeedField, TemperatureField
+from legwork.roles import require
+from procedures import heat_input as heat_input_engine
+from procedures import prequalified
 from procedures.models.base import Current, Process, SignedRecordError, UnitSystem, split_codes
 
 
@@ -69,8 +74,10 @@ class PQR(models.Model):
     amperage = models.DecimalField("current (A)", max_digits=6, decimal_places=1)
     voltage = models.DecimalField("arc voltage (V)", max_digits=5, decimal_places=2)
     travel_speed = SpeedField()
+    # Nine places, as units.HeatInput rounds: a WPS limit computed from the same volts, amps and speed
+    # compares equal to its PQR's value (four places made 30 kJ/in read as 29.9999 and fail the check).
     heat_input_kj_per_mm = models.DecimalField(
-        "heat input (kJ/mm)", max_digits=8, decimal_places=4, null=True, blank=True, editable=False,
+        "heat input (kJ/mm)", max_digits=18, decimal_places=9, null=True, blank=True, editable=False,
         help_text="Computed from voltage, current and travel speed",
     )
     position = models.CharField("test position", max_length=10)
@@ -98,11 +105,44 @@ class PQR(models.Model):
     def get_absolute_url(self):
         return reverse("procedures:pqr_detail", args=[self.pk])
 
+    RESULT_FIELDS = ("visual", "macroetch", "bends", "tensiles", "fillet_break")
+
     @property
     def passed(self):
-        tested = [self.visual, self.macroetch, self.bends, self.tensiles, self.fillet_break]
+        tested = [getattr(self, name) for name in self.RESULT_FIELDS]
         results = [r for r in tested if r != self.Result.NOT_TESTED]
         return bool(results) and all(r == self.Result.PASS for r in results)
+
+    @property
+    def results(self):
+        """(label, value, display) of each test, in the order a PQR prints them."""
+        return [(self._meta.get_field(name).verbose_name.capitalize(), getattr(self, name),
+                 getattr(self, f"get_{name}_display")()) for name in self.RESULT_FIELDS]
+
+    @property
+    def heat_input(self):
+        """The coupon's heat input as a units.HeatInput, recomputed exactly from the recorded volts, amps and
+        speed (the stored column is kJ/mm rounded to 9 places, for lists and queries: 30 kJ/in read back
+        from it is 29.999999995)."""
+        return self.compute_heat_input()
+
+    def compute_heat_input(self):
+        """Heat input from the coupon's volts, amps and travel speed (procedures.heat_input does the arithmetic)."""
+        if self.voltage is None or self.amperage is None or self.travel_speed is None:
+            return None
+        try:
+            return heat_input_engine.heat_input(self.voltage, self.amperage, self.travel_speed)
+        except ValueError:
+            return None  # the form refuses such readings beside their fields; a stray one shows no figure
+
+    def save(self, *args, **kwargs):
+        # Never typed: always the engine's figure from what was recorded, so it cannot disagree with them.
+        computed = self.compute_heat_input()
+        self.heat_input_kj_per_mm = computed.kj_per_mm if computed else None
+        update_fields = kwargs.get("update_fields")
+        if update_fields is not None and "heat_input_kj_per_mm" not in update_fields:
+            kwargs["update_fields"] = [*update_fields, "heat_input_kj_per_mm"]
+        super().save(*args, **kwargs)
 
 
 class WPSQuerySet(models.QuerySet):
@@ -155,6 +195,10 @@ class WPS(models.Model):
     single_pass_size_max = LengthField("largest single-pass fillet", null=True, blank=True)
     preheat_min = TemperatureField("minimum preheat")
     interpass_max = TemperatureField("maximum interpass", null=True, blank=True)
+    toughness_required = models.BooleanField(
+        "CVN toughness testing required", default=False,
+        help_text="When the contract calls for CVN testing, heat input above the supporting PQRs' is not qualified",
+    )
     notes = models.TextField(blank=True)
 
     supersedes = models.OneToOneField(
@@ -181,13 +225,15 @@ class WPS(models.Model):
         return f"WPS {self.number} rev {self.revision}"
 
     def save(self, *args, **kwargs):
-        # Approved, superseded and withdrawn rows are frozen; only the transition functions below move
-        # them on, and they save nothing but the state fields (update_fields).
-        if self.pk and kwargs.get("update_fields") is None:
+        # Submitted, approved, superseded and withdrawn rows are frozen, whatever update_fields says; only
+        # the transition methods below move them on, and they write the state fields past this check
+        # (models.Model.save with update_fields) inside their own lock.
+        if self.pk:
             stored = WPS.objects.filter(pk=self.pk).values_list("state", flat=True).first()
             if stored is not None and stored not in EDITABLE_STATES:
                 raise SignedRecordError(
-                    f"{self} is {WPSState(stored).label.lower()} and cannot be changed; start a new revision."
+                    f"{self} is {WPSState(stored).label.lower()} and cannot be changed; "
+                    + ("start a new revision." if stored != WPSState.SUBMITTED else "ask the QA lead to return it.")
                 )
         super().save(*args, **kwargs)
 
@@ -215,19 +261,230 @@ class WPS(models.Model):
     def base_metal_list(self):
         return split_codes(self.base_metals)
 
+    # --- review: the engines judge, the record only maps itself to their input ------------------------
+
+    def _temperature_text(self, temp):
+        if temp is None:
+            return None
+        return f"{units._plain(temp.f)} F" if self.unit_system == UnitSystem.US else f"{units._plain(temp.c)} C"
+
+    def review_input(self, joint=None):
+        """The dict procedures.prequalified.review() reads; a value the WPS does not give is left out.
+
+        joint: "fillet" or "groove" (the engine judges one joint type at a time); None: the first listed.
+        """
+        joints = self.joint_type_list
+        joint = joint or (joints[0] if joints else None)
+        values = {
+            "process": self.process or None,
+            "transfer": (self.transfer or None) if self.process == Process.GMAW else None,
+            "electrode": self.electrode or None,
+            "electrode_diameter": _length_text(self.electrode_diameter, self.unit_system),
+            "current": self.current or None,
+            "positions": self.position_list or None,
+            "joint": joint,
+            "single_pass_size_max": _length_text(self.single_pass_size_max, self.unit_system),
+            "base_metals": self.base_metal_list or None,
+            "thickness_min": _length_text(self.thickness_min, self.unit_system),
+            "thickness_max": _length_text(self.thickness_max, self.unit_system),
+            "fillet_size_min": _length_text(self.fillet_size_min, self.unit_system),
+            "fillet_size_max": _length_text(self.fillet_size_max, self.unit_system),
+            "preheat_min": self._temperature_text(self.preheat_min),
+            "interpass_max": self._temperature_text(self.interpass_max),
+            "amperage_min": self.amperage_min, "amperage_max": self.amperage_max,
+            "voltage_min": self.voltage_min, "voltage_max": self.voltage_max,
+            "travel_speed_min": self.travel_speed_min, "travel_speed_max": self.travel_speed_max,
+            "wire_feed_speed_min": self.wire_feed_min, "wire_feed_speed_max": self.wire_feed_max,
+            "unit_system": self.unit_system or None,
+        }
+        return {key: value for key, value in values.items() if value is not None}
+
+    def heat_input_range(self):
+        """Lowest and highest heat input the ranges allow (procedures.heat_input); None while incomplete."""
+        try:
+            return heat_input_engine.heat_input_range_of(self.review_input())
+        except ValueError:
+            return None  # incomplete or backwards ranges: review() reports those next to the fields
+
+    def findings(self, pqrs=None):
+        """Everything a reviewer would mark on this WPS, errors first: the prequalified review of each joint
+        type, the heat input against the supporting PQRs, and the basis. pqrs: the supporting PQRs when
+        they are not saved yet (a form being typed); else self.pqrs.all() (prefetch it on busy pages)."""
+        found = []
+        if not self.process:
+            return [prequalified.Finding("incomplete", "warning", "Choose the welding process to start the review.",
+                                         "Legwork review", "process")]
+        if self.code in prequalified.KNOWN_CODES:
+            for joint in self.joint_type_list or [None]:
+                try:
+                    found.extend(prequalified.review(self.review_input(joint), code=self.code))
+                except ValueError as exc:
+                    found.append(prequalified.Finding("unreadable", "error", str(exc), "Legwork review"))
+        else:
+            found.append(prequalified.Finding(
+                "no_prequalified_review", "warning",
+                f"Legwork reviews prequalified limits of {prequalified.CODE} only; {self.code} procedures are "
+                "qualified by test: check them against that standard.", self.code))
+        found.extend(self._basis_findings(pqrs))
+        unique = list(dict.fromkeys(found))  # the same finding from the fillet and the groove review once
+        order = {severity: n for n, severity in enumerate(prequalified.SEVERITIES)}
+        return sorted(unique, key=lambda f: order[f.severity])
+
+    def _basis_findings(self, pqrs=None):
+        if self.basis != Basis.QUALIFIED_BY_TEST:
+            return []
+        if pqrs is None:
+            pqrs = list(self.pqrs.all()) if self.pk else []
+        if not pqrs:
+            return [prequalified.Finding(
+                "basis_without_pqr", "error",
+                "The WPS says it is qualified by test, but no supporting PQR is linked.", SOURCE_QUALIFIED_BY_TEST,
+                "pqrs")]
+        found = [prequalified.Finding("pqr_not_passed", "error", f"{pqr} did not pass all its tests.",
+                                      SOURCE_QUALIFIED_BY_TEST, "pqrs") for pqr in pqrs if not pqr.passed]
+        heat_inputs = {str(pqr): pqr.heat_input for pqr in pqrs if pqr.heat_input is not None}
+        wps_range = self.heat_input_range()
+        if heat_inputs and wps_range is not None:
+            try:
+                found.extend(heat_input_engine.check_against_pqrs(
+                    wps_range, heat_inputs, toughness_required=self.toughness_required,
+                    code=self.code if self.code in prequalified.KNOWN_CODES else prequalified.CODE,
+                    system=self.unit_system))
+            except ValueError as exc:
+                found.append(prequalified.Finding("unreadable", "error", str(exc), "Legwork review", "heat_input"))
+        return found
+
+    def approval_blockers(self, findings=None):
+        """Why this WPS cannot be approved as it stands (empty: it can, state and role aside)."""
+        findings = self.findings() if findings is None else findings
+        blockers = [f"{f.message} ({f.source})" for f in findings if f.severity == "error"]
+        if self.basis == Basis.PREQUALIFIED:
+            blockers += [f"Not prequalified: {f.message} ({f.source}). Qualify it by test and link the PQRs."
+                         for f in findings if f.severity == "not_prequalified"]
+        return blockers
+
     # --- state changes: each checks its precondition, locks the row and records an event -----------
 
-    def _move(self, user, to_state, reason="", **fields):
+    def _move(self, user, action, from_states, to_state, reason="", check=None, **fields):
+        """Move this WPS to to_state if the user may and the stored state allows; write the event."""
+        require(user, action)
         with transaction.atomic():
             # Lock so two QA leads pressing approve at once cannot both act on a stale state.
             locked = WPS.objects.select_for_update().get(pk=self.pk)
+            if locked.state not in from_states:
+                raise ProcedureStateError(
+                    f"{locked} is {locked.get_state_display().lower()}; this needs it "
+                    f"{' or '.join(WPSState(s).label.lower() for s in from_states)}.", code="state")
+            if check is not None:
+                check(locked)
             old = locked.state
-            self.state = to_state
+            locked.state = to_state
             for name, value in fields.items():
-                setattr(self, name, value)
-            super().save(update_fields=["state", *fields])
-            ProcedureEvent.objects.create(wps=self, from_state=old, to_state=to_state, reason=reason, user=user)
+                setattr(locked, name, value)
+            models.Model.save(locked, update_fields=["state", *fields])  # past the frozen-record check
+            ProcedureEvent.objects.create(wps=locked, from_state=old, to_state=to_state, reason=reason, user=user)
+        self.state = to_state
+        for name, value in fields.items():
+            setattr(self, name, value)
         return self
+
+    def record_drafted(self, user, reason=""):
+        """The first history row of a new draft (or revision)."""
+        return ProcedureEvent.objects.create(wps=self, from_state="", to_state=WPSState.DRAFT, user=user,
+                                             reason=reason or "Drafted")
+
+    def submit(self, user):
+        """Draft -> submitted, for the QA lead to approve; refused while the review shows errors."""
+
+        def no_errors(locked):
+            errors = [f for f in locked.findings() if f.severity == "error"]
+            if errors:
+                raise ProcedureStateError(
+                    "Fix the errors in the review before submitting: " + "; ".join(f.message for f in errors),
+                    code="findings")
+
+        return self._move(user, "procedure.submit", {WPSState.DRAFT}, WPSState.SUBMITTED, check=no_errors)
+
+    def return_to_draft(self, user, reason):
+        """Submitted -> draft, with the QA lead's reason, so the engineer can change it."""
+        reason = _required_reason(reason, "returning it to the engineer")
+        return self._move(user, "procedure.approve", {WPSState.SUBMITTED}, WPSState.DRAFT, reason=reason)
+
+    def approve(self, user, reason=""):
+        """Submitted -> approved, with approver and date; the revision it supersedes becomes superseded in
+        the same transaction. Refused while approval_blockers() names anything."""
+
+        def approvable(locked):
+            blockers = locked.approval_blockers()
+            if blockers:
+                raise ProcedureStateError("Cannot approve: " + " ".join(blockers), code="findings")
+
+        with transaction.atomic():
+            self._move(user, "procedure.approve", {WPSState.SUBMITTED}, WPSState.APPROVED, reason=reason,
+                       check=approvable, approved_by=user, approved_at=timezone.now())
+            if self.supersedes_id:
+                previous = WPS.objects.select_for_update().get(pk=self.supersedes_id)
+                if previous.state == WPSState.APPROVED:
+                    previous.state = WPSState.SUPERSEDED
+                    models.Model.save(previous, update_fields=["state"])
+                    ProcedureEvent.objects.create(
+                        wps=previous, from_state=WPSState.APPROVED, to_state=WPSState.SUPERSEDED, user=user,
+                        reason=f"Superseded by revision {self.revision}")
+        return self
+
+    def withdraw(self, user, reason):
+        """Approved -> withdrawn, with a reason: no longer to be used, and no revision replaces it."""
+        reason = _required_reason(reason, "withdrawing it")
+        return self._move(user, "procedure.withdraw", {WPSState.APPROVED}, WPSState.WITHDRAWN, reason=reason)
+
+    def new_revision(self, user, reason=""):
+        """A new draft copied from this approved WPS, revision + 1, that supersedes it once approved."""
+        require(user, "procedure.draft")
+        with transaction.atomic():
+            locked = WPS.objects.select_for_update().get(pk=self.pk)
+            if locked.state != WPSState.APPROVED:
+                raise ProcedureStateError(
+                    f"{locked} is {locked.get_state_display().lower()}; only an approved WPS gets a new revision.",
+                    code="state")
+            pending = WPS.objects.filter(supersedes=locked).first()
+            if pending is not None:
+                raise ProcedureStateError(f"{pending} is already the next revision of {locked}; edit that one.",
+                                          code="pending")
+            latest = WPS.objects.filter(number=locked.number).aggregate(models.Max("revision"))["revision__max"]
+            copy = WPS.objects.get(pk=locked.pk)
+            copy.pk = copy.id = None
+            copy._state.adding = True
+            copy.revision = latest + 1
+            copy.state = WPSState.DRAFT
+            copy.supersedes = locked
+            copy.created_by = user
+            copy.created_at = timezone.now()
+            copy.approved_by = copy.approved_at = None
+            copy.save()
+            copy.pqrs.set(locked.pqrs.all())
+            copy.record_drafted(user, reason or f"Revision {copy.revision}, from revision {locked.revision}")
+        return copy
+
+
+SOURCE_QUALIFIED_BY_TEST = "AWS D1.1/D1.1M:2020 clause 6: a WPS that is not prequalified is qualified by a PQR test"
+
+
+class ProcedureStateError(ValidationError):
+    """A state change the WPS's current state, its review or its input does not allow; the message says why."""
+
+
+def _required_reason(reason, doing):
+    reason = (reason or "").strip()
+    if not reason:
+        raise ProcedureStateError(f"Give a reason for {doing}.", code="reason")
+    return reason
+
+
+def _length_text(length, system):
+    """A length as text the engines read back exactly, in the WPS's system ('0.045 in', '1.2 mm')."""
+    if length is None:
+        return None
+    return f"{units._plain(length.inch)} in" if system == UnitSystem.US else f"{units._plain(length.mm)} mm"
 
 
 class ProcedureEvent(models.Model):
@@ -245,3 +502,11 @@ class ProcedureEvent(models.Model):
 
     def __str__(self):
         return f"{self.wps}: {self.from_state or 'new'} -> {self.to_state}"
+
+    def save(self, *args, **kwargs):
+        if self.pk and not self._state.adding:
+            raise SignedRecordError("A history row is never changed; record a new state change instead.")
+        super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise SignedRecordError("A history row is never deleted.")

@@ -1,0 +1,570 @@
+"""Visual acceptance of a fillet weld: criteria set + weld + observations -> verdict with one finding per criterion.
+
+The criteria set (inspections.criteria) holds the limits with their sources; this module holds one small check
+per criterion that reads them. A set names the checks it runs in `checks`; CHECKS below maps those names to the
+functions. Adding a rule: write check_<name>(job) -> Finding, add it to CHECKS, list it in the sets that apply it.
+
+Inputs (see the engine contract): an absent measurement of a defect means none was seen, an absent boolean is
+False; a defect seen but not measured (a pore with no diameter, convexity with no face width) is not accepted
+until it is measured. Weld data a judgement needs (thickness for undercut, length for the undersize portion)
+must be given, or ValueError says which.
+
+Unit system of the verdict: weld["system"] ("US" or "SI") when given; otherwise the system the weld size is
+written in (inches: US, mm: SI). The US values of a set apply on a US job and the SI values on an SI job, as the
+standard prints them. A set with SI values only (ISO 5817) is judged and reported in millimetres.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from decimal import Decimal
+
+from legwork.units import Length, UnitError, format_length, inch_fraction, length_system, parse_length, significant
+
+from .criteria import CriteriaSet, derive, get_criteria, list_criteria, resolve
+from .criteria.base import SYSTEMS, Banded, Count, Limit, Permission, Proportional, Ratio, Threshold, is_measured
+
+__all__ = ["CHECKS", "Finding", "Verdict", "derive", "evaluate", "get_criteria", "list_criteria"]
+
+ZERO = Length(Decimal(0))
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One criterion judged: what was measured against which limit, and where the limit comes from."""
+
+    criterion: str
+    ok: bool
+    message: str
+    source: str
+    limit: Length | Decimal | int | None = None  # the applied allowance (None: none applies, or not permitted)
+    measured: Length | Decimal | int | bool | None = None
+    criteria_key: str = ""
+    criteria_version: int = 0
+
+
+@dataclass(frozen=True)
+class Verdict:
+    """Accepted only when every finding is ok; stored with the set's key and version."""
+
+    accepted: bool
+    findings: tuple[Finding, ...]
+    criteria_key: str
+    criteria_version: int
+    criteria_title: str
+    system: str
+
+    @property
+    def rejections(self) -> tuple[Finding, ...]:
+        return tuple(f for f in self.findings if not f.ok)
+
+
+# --- reading the weld and the observations ---------------------------------------------------------------
+
+WELD_LENGTHS = ("size", "throat", "length", "thickness")
+WELD_FLAGS = ("primary_member", "transverse_to_tension", "stiffener_to_web")
+OBSERVED_LENGTHS = ("min_size", "undersize_length", "undercut_depth", "undercut_length", "porosity_sum_1in",
+                    "porosity_sum_12in", "pore_max", "convexity", "face_width", "throat", "crater_depth")
+OBSERVED_FLAGS = ("crack", "incomplete_fusion", "unfilled_crater", "overlap", "arc_strike")
+OBSERVED_COUNTS = ("pores_per_4in",)
+
+
+@dataclass(frozen=True)
+class Weld:
+    size: Length | None
+    throat: Length | None
+    length: Length | None
+    thickness: Length | None
+    primary_member: bool
+    transverse_to_tension: bool
+    stiffener_to_web: bool
+
+
+@dataclass(frozen=True)
+class Observed:
+    min_size: Length | None
+    undersize_length: Length | None
+    undercut_depth: Length | None
+    undercut_length: Length | None
+    porosity_sum_1in: Length | None
+    porosity_sum_12in: Length | None
+    pore_max: Length | None
+    convexity: Length | None
+    face_width: Length | None
+    throat: Length | None
+    crater_depth: Length | None
+    crack: bool
+    incomplete_fusion: bool
+    unfilled_crater: bool
+    overlap: bool
+    arc_strike: bool
+    pores_per_4in: int | None
+
+
+def _read(data, what, lengths, flags, counts=(), extra=(), positive=()):
+    if not isinstance(data, dict):
+        raise ValueError(f"{what} must be a dict such as {{'size': '1/4 in'}}, not {type(data).__name__}.")
+    known = (*lengths, *flags, *counts, *extra)
+    unknown = [k for k in data if k not in known]
+    if unknown:
+        raise ValueError(f"{what} has unknown keys {', '.join(map(repr, unknown))}; the keys are: {', '.join(known)}.")
+    out = {}
+    for key in lengths:
+        value = data.get(key)
+        if key not in data:
+            out[key] = None
+            continue
+        try:
+            out[key] = parse_length(value)
+        except UnitError as exc:
+            raise UnitError(f"{what}['{key}']: {exc} Leave the key out when nothing was measured.") from None
+        if key in positive and out[key] == ZERO:
+            raise ValueError(f"{what}['{key}'] cannot be zero: give the {key.replace('_', ' ')} such as '1/4 in'.")
+    for key in flags:
+        value = data.get(key, False)
+        if not isinstance(value, bool):
+            raise ValueError(f"{what}['{key}'] is True or False, not {value!r}.")
+        out[key] = value
+    for key in counts:
+        value = data.get(key)
+        if isinstance(value, str) and value.strip().isdigit():
+            value = int(value.strip())
+        if key in data and (isinstance(value, bool) or not isinstance(value, int) or value < 0):
+            raise ValueError(f"{what}['{key}'] is a whole number of zero or more, such as 1, not {value!r}.")
+        out[key] = value
+    return out
+
+
+def read_weld(weld) -> Weld:
+    return Weld(**_read(weld, "weld", WELD_LENGTHS, WELD_FLAGS, extra=("system",), positive=WELD_LENGTHS))
+
+
+def read_observed(observed) -> Observed:
+    return Observed(**_read(observed, "observed", OBSERVED_LENGTHS, OBSERVED_FLAGS, OBSERVED_COUNTS))
+
+
+def verdict_system(cset: CriteriaSet, weld) -> str:
+    """The system whose values apply: weld['system'], else the unit the size is written in; SI-only sets: SI."""
+    explicit = weld.get("system") if isinstance(weld, dict) else None
+    if explicit is not None and explicit not in SYSTEMS:
+        raise ValueError(f"weld['system'] is 'US' or 'SI', not {explicit!r}.")
+    size = weld.get("size") if isinstance(weld, dict) else None
+    job = explicit or (length_system(size) if isinstance(size, str) else None)
+    if job in cset.systems:
+        return job
+    if len(cset.systems) == 1:
+        return cset.systems[0]
+    if size is None:
+        raise ValueError(f"{cset.key} needs the specified leg as weld['size'] (such as '1/4 in' or '6 mm'); its "
+                         "unit decides whether the US or the SI values apply (or set weld['system']).")
+    raise ValueError(f"weld['size'] given as a Length carries no unit system: add weld['system'] = 'US' or 'SI' "
+                     f"so {cset.key} knows which of its printed values apply.")
+
+
+# --- the job a check reads -----------------------------------------------------------------------------
+
+
+def _positive(length: Length | None) -> bool:
+    return length is not None and length > ZERO
+
+
+def _within(measured: Length, allowed: Length | None) -> bool:
+    """Exactly at a limit is accepted; None is no limit at all."""
+    return allowed is None or measured <= allowed
+
+
+@dataclass(frozen=True)
+class Job:
+    """What a check needs: the set, the system of the verdict, the weld and what was seen."""
+
+    cset: CriteriaSet
+    system: str
+    weld: Weld
+    seen: Observed
+
+    def limit(self, name: str, *kinds) -> Limit:
+        limit = self.cset.limit(name)
+        if kinds and not isinstance(limit, kinds):
+            raise ValueError(f"Limit '{name}' of {self.cset.key} is a {limit.kind} limit; this check needs "
+                             f"{' or '.join(k.kind for k in kinds)}.")
+        return limit
+
+    def measured_limit(self, name: str) -> Limit:
+        limit = self.cset.limit(name)
+        if not is_measured(limit):
+            raise ValueError(f"Limit '{name}' of {self.cset.key} must give an allowance (a length, bands, a "
+                             f"proportional rule or 'not permitted'), not a {limit.kind} limit.")
+        return limit
+
+    def threshold(self, name: str) -> Length:
+        return self.limit(name, Threshold).value(self.system)
+
+    def needs(self, name: str, why: str) -> Length:
+        value = getattr(self.weld, name)
+        if value is None:
+            raise ValueError(f"weld['{name}'] is needed {why} ({self.cset.key}); give it such as "
+                             f"{'1/2 in' if self.system == 'US' else '12 mm'}.")
+        return value
+
+    def fmt(self, length: Length | None) -> str:
+        """3/16" or 0.01" on a US job (fractions when exact), 2.5 mm on an SI job; None (no allowance): no limit."""
+        if length is None:
+            return "no limit"
+        if self.system == "SI":
+            return format_length(length, "SI")
+        if inch_fraction(length.inch)[3]:
+            return format_length(length, "US")
+        return f'{format(significant(length.inch, 3).normalize(), "f")}"'
+
+    def allowance(self, limit: Limit, x: Length | None = None):
+        """The allowance and, for a banded limit, the status of the band that applied."""
+        status = limit.band(self.system, x).status if isinstance(limit, Banded) and x is not None else None
+        return limit.allowance(self.system, x), status
+
+    def rule_text(self, limit: Limit, allowed: Length | None, symbol: str = "h") -> str:
+        if isinstance(limit, Permission):
+            return "not permitted" if allowed is not None else "no limit applies"
+        if isinstance(limit, Proportional):
+            return f"the limit is {self.fmt(allowed)} ({limit.formula(symbol)})"
+        return f"the limit is {self.fmt(allowed)}"
+
+    def finding(self, criterion: str, ok: bool, message: str, limit: Limit, *, status: str | None = None,
+                applied=None, measured=None, verdict: str | None = None) -> Finding:
+        word = verdict or ("accepted" if ok else "rejected")
+        return Finding(criterion=criterion, ok=ok, message=f"{message} \u2014 {word}", source=limit.cite(status),
+                       limit=applied, measured=measured, criteria_key=self.cset.key,
+                       criteria_version=self.cset.version)
+
+    def unmeasured(self, criterion: str, message: str, limit: Limit, measured=None) -> Finding:
+        return self.finding(criterion, False, message, limit, measured=measured, verdict="rejected until measured")
+
+
+def _judge(job: Job, criterion: str, limit: Limit, measured: Length, x: Length | None, what: str,
+           symbol: str = "h") -> Finding:
+    """A measured depth or size against an allowance that may depend on x (t, a, b or the face width)."""
+    allowed, status = job.allowance(limit, x)
+    ok = _within(measured, allowed)
+    return job.finding(criterion, ok, f"{what}; {job.rule_text(limit, allowed, symbol)}", limit, status=status,
+                       applied=allowed, measured=measured)
+
+
+# --- checks: present / not present ------------------------------------------------------------------------
+
+
+def _flag(job: Job, criterion: str, seen: bool, what: str) -> Finding:
+    limit = job.limit(criterion, Permission)
+    if not seen:
+        return job.finding(criterion, True, f"no {what} seen", limit, measured=False)
+    condition = f" ({limit.condition})" if limit.condition else ""
+    if limit.rule == "not_permitted":
+        return job.finding(criterion, False, f"{what} seen: not permitted{condition}", limit, measured=True)
+    if limit.rule == "refer":
+        return job.finding(criterion, False, f"{what} seen{condition}", limit, measured=True,
+                           verdict="rejected until judged")
+    if limit.rule == "permitted_if":
+        return job.finding(criterion, True, f"{what} seen: permitted only if {limit.condition}; confirm it", limit,
+                           measured=True)
+    return job.finding(criterion, True, f"{what} seen: permitted", limit, measured=True)
+
+
+def check_crack(job: Job) -> Finding:
+    return _flag(job, "crack", job.seen.crack, "crack")
+
+
+def check_fusion(job: Job) -> Finding:
+    return _flag(job, "fusion", job.seen.incomplete_fusion, "incomplete fusion")
+
+
+def check_crater(job: Job) -> Finding:
+    return _flag(job, "crater", job.seen.unfilled_crater or _positive(job.seen.crater_depth), "unfilled crater")
+
+
+def check_overlap(job: Job) -> Finding:
+    return _flag(job, "overlap", job.seen.overlap, "overlap")
+
+
+def check_arc_strike(job: Job) -> Finding:
+    return _flag(job, "arc_strike", job.seen.arc_strike, "arc strike")
+
+
+# --- checks: AWS D1.1 -------------------------------------------------------------------------------------
+
+
+def _percent(value: Decimal) -> str:
+    return f"{format((value * 100).quantize(Decimal('0.1')).normalize(), 'f')} %"
+
+
+def check_undersize(job: Job) -> Finding:
+    """Smallest leg against the nominal size band, then the undersize portion of the weld length."""
+    limit = job.measured_limit("undersize")
+    size = job.needs("size", "to judge undersize (the specified leg)")
+    smallest, under_length = job.seen.min_size, job.seen.undersize_length
+    if smallest is None:
+        raise ValueError(f"{job.cset.key} judges the smallest leg: give observed['min_size'], the smallest leg "
+                         f"measured (such as {'3/16 in' if job.system == 'US' else '5 mm'}).")
+    under = size - smallest
+    if under <= ZERO:
+        if _positive(under_length):
+            raise ValueError(f"observed['undersize_length'] is {job.fmt(under_length)}, but the smallest leg "
+                             f"{job.fmt(smallest)} is not under the specified {job.fmt(size)}: check both.")
+        return job.finding("undersize", True, f"smallest leg {job.fmt(smallest)} is not under the specified "
+                           f"{job.fmt(size)}", limit, applied=job.allowance(limit, size)[0], measured=ZERO)
+    allowed, status = job.allowance(limit, size)
+    text = (f"smallest leg {job.fmt(smallest)} is {job.fmt(under)} under the specified {job.fmt(size)}; "
+            f"the limit for a {job.fmt(size)} fillet is {job.fmt(allowed)}")
+    if allowed is not None and under > allowed:
+        return job.finding("undersize", False, text, limit, status=status, applied=allowed, measured=under)
+    portion = job.limit("undersize_portion", Ratio)
+    if under_length is None:
+        return job.unmeasured("undersize", f"{text}; measure the length under size (at most "
+                              f"{_percent(portion.value)} of the weld length)", limit, measured=under)
+    length = job.needs("length", "to judge the undersize portion of the weld length")
+    if under_length > length:
+        raise ValueError(f"observed['undersize_length'] {job.fmt(under_length)} is longer than the weld "
+                         f"({job.fmt(length)}): check both.")
+    share = under_length / length
+    ok = share <= portion.value
+    text += (f"; under size for {job.fmt(under_length)} of {job.fmt(length)} ({_percent(share)}), "
+             f"{'within' if ok else 'more than'} {_percent(portion.value)} of the weld length")
+    status = status or (None if portion.status == limit.status else portion.status)
+    return job.finding("undersize", ok, text, limit, status=status, applied=allowed, measured=under)
+
+
+def _undercut_unmeasured(job: Job, limit: Limit) -> Finding | None:
+    if job.seen.undercut_depth is None and _positive(job.seen.undercut_length):
+        return job.unmeasured("undercut", f"undercut over {job.fmt(job.seen.undercut_length)} but no depth: "
+                              "measure the deepest undercut", limit)
+    if not _positive(job.seen.undercut_depth):
+        return job.finding("undercut", True, "no undercut measured", limit, measured=ZERO)
+    return None
+
+
+def check_undercut_by_thickness(job: Job) -> Finding:
+    """Statically loaded: by the thickness of the material at the toe; a short deeper length on thin material."""
+    general = job.measured_limit("undercut_thin")
+    early = _undercut_unmeasured(job, general)
+    if early:
+        return early
+    depth = job.seen.undercut_depth
+    t = job.needs("thickness", "to judge undercut (the base metal at the toe)")
+    on = f"undercut {job.fmt(depth)} deep on {job.fmt(t)} material"
+    if t >= job.threshold("undercut_thick_material"):
+        return _judge(job, "undercut", job.measured_limit("undercut_thick"), depth, t,
+                      f"{on} ({job.fmt(job.threshold('undercut_thick_material'))} or more, any length)")
+    allowed, _ = job.allowance(general, t)
+    if _within(depth, allowed):
+        return job.finding("undercut", True, f"{on}; within the {job.fmt(allowed)} limit", general, applied=allowed,
+                           measured=depth)
+    short = job.measured_limit("undercut_thin_short")
+    short_allowed, _ = job.allowance(short, t)
+    if not _within(depth, short_allowed):
+        return job.finding("undercut", False, f"{on}; over {job.fmt(short_allowed)}, the most allowed for any "
+                           "length", short, applied=short_allowed, measured=depth)
+    window = job.threshold("undercut_window")
+    length_limit = job.measured_limit("undercut_thin_short_length")
+    most, _ = job.allowance(length_limit, t)
+    accumulated = job.seen.undercut_length
+    deeper = (f"{on}, over the {job.fmt(allowed)} general limit; up to {job.fmt(short_allowed)} is allowed for an "
+              f"accumulated {job.fmt(most)} in any {job.fmt(window)}")
+    if accumulated is None:
+        return job.unmeasured("undercut", f"{deeper}: measure the accumulated length deeper than "
+                              f"{job.fmt(allowed)} in the worst {job.fmt(window)}", short, measured=depth)
+    if accumulated > window:
+        raise ValueError(f"observed['undercut_length'] is the accumulated length in the worst {job.fmt(window)}; "
+                         f"{job.fmt(accumulated)} is longer than that window.")
+    ok = _within(accumulated, most)
+    return job.finding("undercut", ok, f"{deeper}; {job.fmt(accumulated)} accumulated is deeper than "
+                       f"{job.fmt(allowed)}", length_limit,
+                       applied=short_allowed, measured=depth)
+
+
+def check_undercut_by_member(job: Job) -> Finding:
+    """Cyclically loaded: the tighter limit on a primary member with the weld transverse to tensile stress."""
+    critical = job.weld.primary_member and job.weld.transverse_to_tension
+    limit = job.measured_limit("undercut_primary_transverse" if critical else "undercut_other")
+    early = _undercut_unmeasured(job, limit)
+    if early:
+        return early
+    where = ("a primary member with the weld transverse to tensile stress" if critical
+             else "other than a primary member with the weld transverse to tensile stress")
+    return _judge(job, "undercut", limit, job.seen.undercut_depth, job.weld.thickness,
+                  f"undercut {job.fmt(job.seen.undercut_depth)} deep on {where}")
+
+
+def _porosity_sums(job: Job) -> Finding:
+    seen = job.seen
+    counted_from = job.threshold("porosity_counted_from")
+    sum_1, sum_12 = seen.porosity_sum_1in or ZERO, seen.porosity_sum_12in or ZERO
+    notes = ""
+    if seen.pore_max is not None and seen.pore_max >= counted_from and seen.pore_max > sum_1:
+        sum_1, notes = seen.pore_max, " (at least the largest pore)"
+    sum_12 = max(sum_12, sum_1)  # the worst 12 in holds the worst 1 in
+    limit_1, limit_12 = job.measured_limit("porosity_sum_1in"), job.measured_limit("porosity_sum_12in")
+    if sum_12 == ZERO:
+        return job.finding("porosity", True, f"no piping porosity of {job.fmt(counted_from)} or larger seen",
+                           limit_1, measured=ZERO)
+    short, long = job.threshold("porosity_window_short"), job.threshold("porosity_window_long")
+    allowed_1, _ = job.allowance(limit_1)
+    allowed_12, _ = job.allowance(limit_12)
+    ok_1, ok_12 = _within(sum_1, allowed_1), _within(sum_12, allowed_12)
+    text = (f"piping porosity: sum of diameters {job.fmt(sum_1)}{notes} in the worst {job.fmt(short)} (limit "
+            f"{job.fmt(allowed_1)}), {job.fmt(sum_12)} in the worst {job.fmt(long)} (limit {job.fmt(allowed_12)})")
+    worst = limit_1 if not ok_1 or ok_12 else limit_12
+    return job.finding("porosity", ok_1 and ok_12, text, worst, applied=allowed_1 if worst is limit_1 else allowed_12,
+                       measured=sum_1 if worst is limit_1 else sum_12)
+
+
+def check_porosity_sums(job: Job) -> Finding:
+    """Statically loaded fillet welds: sums of piping pore diameters in any 1 in and any 12 in."""
+    return _porosity_sums(job)
+
+
+def check_porosity_pores(job: Job) -> Finding:
+    """Cyclically loaded: the largest pore and the number of pores in each 4 in (stiffener-to-web: the sums)."""
+    if job.weld.stiffener_to_web:
+        return _porosity_sums(job)
+    seen = job.seen
+    limit = job.measured_limit("pore_max")
+    count_limit = job.limit("pores_per_4in", Count)
+    window = job.threshold("porosity_count_window")
+    count = seen.pores_per_4in or 0
+    any_seen = _positive(seen.pore_max) or count > 0 or _positive(seen.porosity_sum_1in) or \
+        _positive(seen.porosity_sum_12in)
+    if not any_seen:
+        return job.finding("porosity", True, "no piping porosity seen", limit, measured=ZERO)
+    if seen.pore_max is None:
+        return job.unmeasured("porosity", "piping porosity seen: measure the largest pore and count the pores in "
+                              f"the worst {job.fmt(window)}", limit)
+    count = max(count, 1 if _positive(seen.pore_max) else 0)
+    allowed, _ = job.allowance(limit)
+    ok_size, ok_count = _within(seen.pore_max, allowed), count <= count_limit.value
+    text = (f"piping porosity: largest pore {job.fmt(seen.pore_max)} (limit {job.fmt(allowed)}), {count} "
+            f"pore{'s' if count != 1 else ''} in the worst {job.fmt(window)} (limit {count_limit.value})")
+    if not ok_count and ok_size:
+        return job.finding("porosity", False, text, count_limit, applied=count_limit.value, measured=count)
+    return job.finding("porosity", ok_size and ok_count, text, limit, applied=allowed, measured=seen.pore_max)
+
+
+def check_convexity(job: Job) -> Finding:
+    """Convexity against the face width (AWS bands by W; ISO 503: 1 mm + k b, max)."""
+    limit = job.measured_limit("convexity")
+    convexity, width = job.seen.convexity, job.seen.face_width
+    if not _positive(convexity):
+        return job.finding("convexity", True, "no convexity measured", limit, measured=ZERO)
+    if width is None:
+        return job.unmeasured("convexity", f"convexity {job.fmt(convexity)}: measure the face width to judge it",
+                              limit, measured=convexity)
+    return _judge(job, "convexity", limit, convexity, width,
+                  f"convexity {job.fmt(convexity)} on a face {job.fmt(width)} wide")
+
+
+# --- checks: ISO 5817 -------------------------------------------------------------------------------------
+
+
+def check_undercut_depth(job: Job) -> Finding:
+    """ISO 5817 5011/5012: depth h against a share of the thickness t, capped."""
+    limit = job.measured_limit("undercut")
+    early = _undercut_unmeasured(job, limit)
+    if early:
+        return early
+    t = job.needs("thickness", "to judge undercut (h against t)")
+    return _judge(job, "undercut", limit, job.seen.undercut_depth, t,
+                  f"undercut {job.fmt(job.seen.undercut_depth)} deep, t = {job.fmt(t)}")
+
+
+def check_throat(job: Job) -> Finding:
+    """ISO 5817 5213 (too small, short imperfections) and 5214 (too large) against the nominal throat a."""
+    nominal = job.needs("throat", "for ISO 5817 (the nominal throat a)")
+    measured = job.seen.throat
+    if measured is None:
+        raise ValueError(f"{job.cset.key} judges the throat (5213/5214), not the leg: give observed['throat'], "
+                         "the measured throat a (such as '4.5 mm').")
+    if measured < nominal:
+        h = nominal - measured
+        return _judge(job, "throat", job.measured_limit("throat_small"), h, nominal,
+                      f"throat {job.fmt(measured)} is {job.fmt(h)} under the nominal a = {job.fmt(nominal)}")
+    if measured > nominal:
+        h = measured - nominal
+        return _judge(job, "throat", job.measured_limit("throat_large"), h, nominal,
+                      f"throat {job.fmt(measured)} is {job.fmt(h)} over the nominal a = {job.fmt(nominal)}")
+    return job.finding("throat", True, f"throat {job.fmt(measured)} equals the nominal a", job.limit("throat_small"),
+                       measured=ZERO)
+
+
+def check_surface_pore(job: Job) -> Finding:
+    """ISO 5817 2017: the largest surface pore d against a share of the nominal throat a, capped."""
+    limit = job.measured_limit("surface_pore")
+    seen = job.seen
+    if not (_positive(seen.pore_max) or (seen.pores_per_4in or 0) > 0 or _positive(seen.porosity_sum_1in)
+            or _positive(seen.porosity_sum_12in)):
+        return job.finding("porosity", True, "no surface pore seen", limit, measured=ZERO)
+    if isinstance(limit, Permission) and limit.rank < 2:
+        return job.finding("porosity", False, "surface pore seen: not permitted", limit, applied=ZERO,
+                           measured=seen.pore_max)
+    if seen.pore_max is None:
+        return job.unmeasured("porosity", "surface pore seen: measure the largest pore diameter", limit)
+    nominal = job.needs("throat", "to judge a surface pore (d against a)")
+    return _judge(job, "porosity", limit, seen.pore_max, nominal,
+                  f"largest surface pore {job.fmt(seen.pore_max)}, a = {job.fmt(nominal)}", symbol="d")
+
+
+def check_crater_pipe(job: Job) -> Finding:
+    """ISO 5817 2025: the depth h of an end crater pipe against a share of t, capped."""
+    limit = job.measured_limit("crater_pipe")
+    depth = job.seen.crater_depth
+    if not (job.seen.unfilled_crater or _positive(depth)):
+        return job.finding("crater", True, "no end crater pipe seen", limit, measured=ZERO)
+    if isinstance(limit, Permission) and limit.rank < 2:
+        return job.finding("crater", False, "end crater pipe seen: not permitted", limit, applied=ZERO,
+                           measured=depth)
+    if depth is None:
+        return job.unmeasured("crater", "end crater pipe seen: measure its depth (observed['crater_depth'])", limit)
+    t = job.needs("thickness", "to judge an end crater pipe (h against t)")
+    return _judge(job, "crater", limit, depth, t, f"end crater pipe {job.fmt(depth)} deep, t = {job.fmt(t)}")
+
+
+CHECKS = {
+    "crack": check_crack,
+    "fusion": check_fusion,
+    "crater": check_crater,
+    "overlap": check_overlap,
+    "arc_strike": check_arc_strike,
+    "undersize": check_undersize,
+    "undercut_by_thickness": check_undercut_by_thickness,
+    "undercut_by_member": check_undercut_by_member,
+    "porosity_sums": check_porosity_sums,
+    "porosity_pores": check_porosity_pores,
+    "convexity": check_convexity,
+    "undercut_depth": check_undercut_depth,
+    "throat": check_throat,
+    "surface_pore": check_surface_pore,
+    "crater_pipe": check_crater_pipe,
+}
+
+
+def _in_scope(job: Job) -> None:
+    if "applies_above_thickness" in job.cset.limits and job.weld.thickness is not None:
+        floor = job.threshold("applies_above_thickness")
+        if job.weld.thickness <= floor:
+            raise ValueError(f"{job.cset.key} holds the limits for t > {job.fmt(floor)} only; weld['thickness'] is "
+                             f"{job.fmt(job.weld.thickness)}.")
+
+
+def evaluate(criteria, weld, observed) -> Verdict:
+    """Judge one weld's observations against a criteria set (a key, a CriteriaSet or its stored dict).
+
+    Works on partial observations (what is absent was not seen), so a tablet page can call it as the
+    inspector types. Accepted only when every finding is ok.
+    """
+    cset = resolve(criteria)
+    unknown = [name for name in cset.checks if name not in CHECKS]
+    if unknown:
+        raise ValueError(f"{cset.key} names unknown checks {', '.join(unknown)}; the checks are: "
+                         f"{', '.join(CHECKS)}.")
+    parsed_weld = read_weld(weld)
+    seen = read_observed(observed)
+    job = Job(cset=cset, system=verdict_system(cset, weld), weld=parsed_weld, seen=seen)
+    _in_scope(job)
+    findings = tuple(CHECKS[name](job) for name in cset.checks)
+    return Verdict(accepted=all(f.ok for f in findings), findings=findings, criteria_key=cset.key,
+                   criteria_version=cset.version, criteria_title=cset.title, system=job.system)

@@ -450,7 +450,9 @@ def _positions_text(positions, code) -> str:
     return _words(_POSITION_WORDS[p] for p in order if p in positions)
 
 
-def _length_text(length: Length, system: str) -> str:
+def length_text(length: Length, system: str) -> str:
+    """3/8" [9.53 mm] on a US record, 10 mm [3/8"] on an SI one."""
+    system = system if system in ("US", "SI") else "US"
     other = "SI" if system == "US" else "US"
     return f"{format_length(length, system)} [{format_length(length, other)}]"
 
@@ -494,8 +496,8 @@ def describe(qualification: Qualification) -> Ranges:
               else "no groove welds")
     if f.code == engine.ISO:
         groove = groove.replace("groove welds", "butt welds")
-    thickness = (f"plate {_length_text(low, system)} and over" if high is None
-                 else f"plate {_length_text(low, system)} to {_length_text(high, system)}")
+    thickness = (f"plate {length_text(low, system)} and over" if high is None
+                 else f"plate {length_text(low, system)} to {length_text(high, system)}")
     if groups:
         electrode = (f"SMAW electrode groups {', '.join(sorted(groups, reverse=True))} "
                      f"(tested with {f.electrode}, group {tested})")

@@ -1,0 +1,227 @@
+"""Welder pages: the list with each welder's state, the welder page, tests, continuity, deactivation, the PDF.
+
+Views stay thin: the forms read the input, the models change state (Welder.deactivate, ContinuityEntry.log_manual),
+procedures.eligibility gathers the facts and procedures.qualification (the engine) judges them. Reading needs only
+a login; every write names its action in legwork.roles. Test reports are served only through qualification_report,
+after the login check; media is never public.
+"""
+
+import mimetypes
+from pathlib import PurePath
+
+from django.contrib import messages
+from django.core.exceptions import ValidationError
+from django.db.models import Prefetch
+from django.http import FileResponse, Http404
+from django.shortcuts import get_object_or_404, redirect, render
+from django.urls import NoReverseMatch
+from django.utils import timezone
+from django.utils.text import slugify
+from django.views.decorators.http import require_http_methods, require_safe
+
+from legwork.pdf import pdf_response, render_pdf
+from legwork.roles import role_required
+from procedures import eligibility
+from procedures.eligibility import State
+from procedures.forms.welders import ContinuityForm, QualificationForm, ReasonForm, WeldCheckForm, WelderForm
+from procedures.models.base import Process
+from procedures.models.welders import ContinuityEntry, Qualification, Welder, WelderEvent, WelderStateError
+
+ACTIVE_CHOICES = [("yes", "Active"), ("no", "Inactive"), ("all", "All")]
+
+
+def _welder_with_records(pk):
+    """One welder with everything its page shows, in a fixed number of queries."""
+    queryset = Welder.objects.prefetch_related(
+        Prefetch("qualifications", queryset=Qualification.objects.select_related("wps", "recorded_by")
+                 .order_by("-test_date", "-pk")),
+        Prefetch("continuity", queryset=ContinuityEntry.objects.select_related(
+            "weld__assembly__job", "entered_by").order_by("-date", "-pk")),
+        Prefetch("events", queryset=WelderEvent.objects.select_related("user")),
+    )
+    return get_object_or_404(queryset, pk=pk)
+
+
+@require_safe
+def welder_list(request):
+    filters = {"state": request.GET.get("state", ""), "process": request.GET.get("process", ""),
+               "active": request.GET.get("active", "yes")}
+    if filters["state"] not in dict(State.CHOICES):
+        filters["state"] = ""
+    if filters["process"] not in Process.values:
+        filters["process"] = ""
+    if filters["active"] not in dict(ACTIVE_CHOICES):
+        filters["active"] = "yes"
+    welders = Welder.objects.prefetch_related("qualifications", "continuity")
+    if filters["active"] != "all":
+        welders = welders.filter(active=filters["active"] == "yes")
+    today = timezone.localdate()
+    statuses = eligibility.welder_statuses(welders, on=today)
+    rows = list(statuses.values())
+    if filters["process"]:
+        rows = [s for s in rows if filters["process"] in s.processes]
+    if filters["state"]:
+        rows = [s for s in rows if s.state == filters["state"]]
+    tally = {state: 0 for state, _ in State.CHOICES}
+    for status in statuses.values():
+        tally[status.state] += 1
+    counts = [(state, label, tally[state]) for state, label in State.CHOICES]
+    return render(request, "procedures/welder_list.html", {
+        "rows": rows, "filters": filters, "states": State.CHOICES, "processes": Process.choices,
+        "active_choices": ACTIVE_CHOICES, "counts": counts, "today": today, "warn_days": eligibility.WARN_DAYS,
+    })
+
+
+@role_required("welder.manage")
+@require_http_methods(["GET", "POST"])
+def welder_create(request):
+    form = WelderForm(request.POST or None)
+    if request.method == "POST" and form.is_valid():
+        welder = form.save()
+        messages.success(request, f"Welder {welder} added. Record a qualification test next.")
+        return redirect(welder)
+    return render(request, "procedures/welder_form.html", {
+        "form": form, "title": "Add a welder", "submit": "Add welder", "back": "procedures:welder_list"})
+
+
+def _detail_context(welder, check_form=None, check=None):
+    today = timezone.localdate()
+    status = eligibility.welder_status(welder, on=today)
+    by_pk = {r.qualification.pk: r for r in status.records}
+    tests = [{"q": q, "ranges": eligibility.describe(q), "status": by_pk[q.pk].status,
+              "thickness": eligibility.length_text(q.test_thickness, q.unit_system)}
+             for q in welder.qualifications.all()]
+    return {
+        "welder": welder, "status": status, "tests": tests, "today": today,
+        "continuity": [(entry, _weld_url(entry.weld)) for entry in welder.continuity.all()],
+        "events": list(welder.events.all()),
+        "check_form": check_form or WeldCheckForm(), "check": check,
+    }
+
+
+def _weld_url(weld):
+    """The weld's page (or its assembly's) when the jobs pages have one; None otherwise."""
+    if weld is None:
+        return None
+    for record in (weld, weld.assembly):
+        try:
+            return record.get_absolute_url()
+        except NoReverseMatch:
+            continue
+    return None
+
+
+@require_safe
+def welder_detail(request, pk):
+    welder = _welder_with_records(pk)
+    check_form, check = None, None
+    if "thickness" in request.GET:  # the "could this welder make this weld?" box was filled in
+        check_form = WeldCheckForm(request.GET)
+        if check_form.is_valid():
+            data = check_form.cleaned_data
+            check = eligibility.check_welder(welder, data["demand"], data["on"])
+    return render(request, "procedures/welder_detail.html", _detail_context(welder, check_form, check))
+
+
+@role_required("welder.manage")
+@require_http_methods(["GET", "POST"])
+def qualification_create(request, pk):
+    welder = get_object_or_404(Welder, pk=pk)
+    if not welder.active:
+        messages.error(request, f"{welder} is inactive: reactivate the welder before recording a test.")
+        return redirect(welder)
+    form = QualificationForm(request.POST or None, request.FILES or None, welder=welder)
+    if request.method == "POST" and form.is_valid():
+        qualification = form.save(commit=False)
+        qualification.welder = welder
+        qualification.recorded_by = request.user
+        qualification.save()
+        messages.success(request, f"Test recorded: {qualification.process} {qualification.test_position} of "
+                                  f"{qualification.test_date:%Y-%m-%d}.")
+        return redirect(welder)
+    return render(request, "procedures/welder_form.html", {
+        "form": form, "welder": welder, "title": f"Record a qualification test for {welder}",
+        "submit": "Record test", "multipart": True,
+        "intro": "The ranges this test qualifies and the date it lapses are worked out from it; they are not typed.",
+    })
+
+
+@require_safe
+def qualification_report(request, pk):
+    """The attached test report, only to a signed-in user (LoginRequiredMiddleware), never from a public URL."""
+    qualification = get_object_or_404(Qualification, pk=pk)
+    if not qualification.report:
+        raise Http404("No report attached.")
+    try:
+        handle = qualification.report.open("rb")
+    except FileNotFoundError:
+        raise Http404("The report file is missing from storage.") from None
+    name = PurePath(qualification.report.name).name
+    content_type = mimetypes.guess_type(name)[0] or "application/octet-stream"
+    response = FileResponse(handle, content_type=content_type, filename=name)
+    response["Content-Security-Policy"] = "sandbox; default-src 'none'; img-src 'self'; style-src 'unsafe-inline'"
+    return response
+
+
+@role_required("continuity.log")
+@require_http_methods(["GET", "POST"])
+def continuity_create(request, pk):
+    welder = get_object_or_404(Welder, pk=pk)
+    form = ContinuityForm(request.POST or None, welder=welder)
+    if request.method == "POST" and form.is_valid():
+        data = form.cleaned_data
+        try:
+            ContinuityEntry.log_manual(welder, data["process"], data["date"], data["note"], request.user)
+        except ValidationError as exc:
+            form.add_error(None, exc)
+        else:
+            messages.success(request, f"Continuity logged: {data['process']} on {data['date']:%Y-%m-%d}.")
+            return redirect(welder)
+    return render(request, "procedures/welder_form.html", {
+        "form": form, "welder": welder, "title": f"Log continuity for {welder}", "submit": "Log continuity",
+        "intro": "For work outside Legwork. Production welds recorded in Legwork add their own entries.",
+    })
+
+
+def _state_change(request, pk, active):
+    welder = get_object_or_404(Welder, pk=pk)
+    form = ReasonForm(request.POST or None)
+    if request.method == "POST" and form.is_valid():
+        try:
+            change = welder.reactivate if active else welder.deactivate
+            change(request.user, form.cleaned_data["reason"])
+        except WelderStateError as exc:
+            messages.error(request, " ".join(exc.messages))
+        else:
+            messages.success(request, f"{welder} is now {'active' if active else 'inactive'}.")
+        return redirect(welder)
+    verb = "Reactivate" if active else "Deactivate"
+    intro = ("Inactive welders leave the active list and are refused for welds from today; their records stay."
+             if not active else "The welder's tests and continuity are judged as before.")
+    return render(request, "procedures/welder_form.html", {
+        "form": form, "welder": welder, "title": f"{verb} {welder}", "submit": verb, "intro": intro,
+        "danger": not active,
+    })
+
+
+@role_required("welder.manage")
+@require_http_methods(["GET", "POST"])
+def welder_deactivate(request, pk):
+    return _state_change(request, pk, active=False)
+
+
+@role_required("welder.manage")
+@require_http_methods(["GET", "POST"])
+def welder_reactivate(request, pk):
+    return _state_change(request, pk, active=True)
+
+
+@require_safe
+def welder_pdf(request, pk):
+    """The printable qualification summary: each test, its ranges, its lapse date, the continuity behind it."""
+    welder = _welder_with_records(pk)
+    context = _detail_context(welder)
+    context.pop("check_form")
+    rendered = render_pdf("pdf/welder_summary.html", context,
+                          f"welder-{slugify(welder.stamp) or welder.pk}-qualifications-{context['today']:%Y%m%d}.pdf")
+    return pdf_response(rendered)

@@ -2,7 +2,10 @@
 
 from django.conf import settings
 from django.db import models
+from django.urls import reverse
 from django.utils import timezone
+
+from procedures.models.base import SignedRecordError
 
 
 class ClientCriteriaSet(models.Model):
@@ -21,4 +24,21 @@ class ClientCriteriaSet(models.Model):
         constraints = [models.UniqueConstraint(fields=["key", "version"], name="client_criteria_key_version")]
 
     def __str__(self):
-        return f"{self.title} (v{self.version})"
+        return f"{self.title} ({self.key} v{self.version})"
+
+    def save(self, *args, **kwargs):
+        if self.pk and not self._state.adding:
+            raise SignedRecordError("A client criteria set is never edited; derive a new version.")
+        super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise SignedRecordError("A client criteria set cannot be deleted: verdicts name it.")
+
+    def get_absolute_url(self):
+        return reverse("inspections:criteria_client_detail", args=[self.pk])
+
+    def criteria_set(self):
+        """The stored set as inspections.criteria reads it."""
+        from inspections.criteria import from_dict
+
+        return from_dict(self.definition)

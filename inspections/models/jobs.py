@@ -31,12 +31,33 @@ class Job(models.Model):
     def get_absolute_url(self):
         return reverse("inspections:job_detail", args=[self.pk])
 
+    def criteria_for_evaluation(self):
+        """What inspections.acceptance.evaluate takes for this job: a built-in key, or a client set's stored dict."""
+        if self.client_criteria_id:
+            return self.client_criteria.definition
+        return self.criteria_key
+
+    def criteria_identity(self) -> tuple[str, int]:
+        """(key, version) a verdict stores, so it keeps the set it was judged by after the set moves on."""
+        if self.client_criteria_id:
+            return self.client_criteria.key, self.client_criteria.version
+        from inspections.criteria import get_criteria
+
+        return self.criteria_key, get_criteria(self.criteria_key).version
+
+    @property
+    def criteria_label(self) -> str:
+        if self.client_criteria_id:
+            return str(self.client_criteria)
+        return self.criteria_key
+
 
 class AssemblyState(models.TextChoices):
     IN_FABRICATION = "in_fabrication", "In fabrication"
     AWAITING_INSPECTION = "awaiting_inspection", "Awaiting inspection"
     REJECTED = "rejected", "Rejected"
     RELEASED = "released", "Released"
+    SCRAPPED = "scrapped", "Scrapped"
 
 
 class Assembly(models.Model):
@@ -62,6 +83,11 @@ class Assembly(models.Model):
 
     def get_absolute_url(self):
         return reverse("inspections:assembly_detail", args=[self.pk])
+
+    @property
+    def is_closed(self):
+        """Released or scrapped: the weld map is frozen."""
+        return self.state in (AssemblyState.RELEASED, AssemblyState.SCRAPPED)
 
 
 class AssemblyEvent(models.Model):

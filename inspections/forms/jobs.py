@@ -1,0 +1,289 @@
+"""Job, assembly, weld, weld map import, NCR disposition and client criteria forms."""
+
+from django import forms
+from django.utils import timezone
+
+from inspections.models import Assembly, ClientCriteriaSet, Job, Weld
+from legwork.fields import LengthFormField, set_unit_system
+from procedures.models import WPS, Welder
+from procedures.models.wps import WPSState
+
+BUILTIN, CLIENT = "builtin", "client"
+
+
+def criteria_choices():
+    """Built-in sets (inspections.criteria) and the latest version of each client set."""
+    from inspections.criteria import list_criteria
+
+    builtin = [(f"{BUILTIN}:{s.key}", f"{s.title} ({s.key} v{s.version})") for s in list_criteria()]
+    latest = {}
+    for cset in ClientCriteriaSet.objects.order_by("key", "-version"):
+        latest.setdefault(cset.key, cset)
+    client = [(f"{CLIENT}:{c.pk}", str(c)) for c in latest.values()]
+    return [("Published sets", builtin)] + ([("Client sets", client)] if client else [])
+
+
+class JobForm(forms.ModelForm):
+    criteria = forms.ChoiceField(label="Criteria set", help_text="The acceptance criteria every inspection on this "
+                                 "job is judged by; verdicts keep the set and version they were judged by.")
+
+    class Meta:
+        model = Job
+        fields = ["number", "name", "customer", "unit_system"]
+        labels = {"number": "Job number", "name": "Job name", "unit_system": "Units"}
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["criteria"].choices = criteria_choices()
+        if self.instance.pk:
+            job = self.instance
+            self.initial["criteria"] = (f"{CLIENT}:{job.client_criteria_id}" if job.client_criteria_id
+                                        else f"{BUILTIN}:{job.criteria_key}")
+
+    def clean_number(self):
+        return self.cleaned_data["number"].strip()
+
+    def save(self, commit=True):
+        kind, _, value = self.cleaned_data["criteria"].partition(":")
+        if kind == CLIENT:
+            client = ClientCriteriaSet.objects.get(pk=value)
+            self.instance.client_criteria, self.instance.criteria_key = client, client.key
+        else:
+            self.instance.client_criteria, self.instance.criteria_key = None, value
+        return super().save(commit)
+
+
+class AssemblyForm(forms.ModelForm):
+    class Meta:
+        model = Assembly
+        fields = ["piece_mark", "drawing", "drawing_revision", "quantity", "description"]
+        labels = {"drawing_revision": "Revision"}
+
+    def __init__(self, *args, job, **kwargs):
+        self.job = job
+        super().__init__(*args, **kwargs)
+        self.fields["quantity"].min_value = 1
+        self.fields["quantity"].widget.attrs["min"] = 1
+
+    def clean_piece_mark(self):
+        mark = self.cleaned_data["piece_mark"].strip()
+        others = Assembly.objects.filter(job=self.job, piece_mark__iexact=mark).exclude(pk=self.instance.pk)
+        if others.exists():
+            raise forms.ValidationError(f"Job {self.job.number} already has piece mark {mark}.", code="unique")
+        return mark
+
+    def clean_quantity(self):
+        quantity = self.cleaned_data["quantity"]
+        if quantity is None or quantity < 1:
+            raise forms.ValidationError("At least one.", code="min_value")
+        return quantity
+
+
+# The weld's drawing data: what a detailer exports (tests and the CSV import use the same rules).
+SPEC_FIELDS = ["mark", "joint_type", "size", "size2", "length", "count", "sides", "thickness1", "thickness2",
+               "position"]
+EXTRA_SPEC_FIELDS = ["all_around", "field_weld", "pitch", "primary_member", "transverse_to_tension",
+                     "required_strength", "load_angle"]
+PRODUCTION_FIELDS = ["wps", "welders", "welded_on"]
+
+
+class WeldSpecForm(forms.ModelForm):
+    """One line of the weld map as the drawing gives it; lengths in the job's system."""
+
+    class Meta:
+        model = Weld
+        fields = SPEC_FIELDS
+        labels = {"size": "Leg size", "size2": "Second leg (unequal legs only)", "length": "Length of each weld",
+                  "count": "How many", "thickness1": "Part 1 thickness", "thickness2": "Part 2 thickness"}
+
+    def __init__(self, *args, assembly, **kwargs):
+        self.assembly = assembly
+        super().__init__(*args, **kwargs)
+        set_unit_system(self, assembly.job.unit_system)
+        for name in ("size", "length", "thickness1", "thickness2", "size2", "pitch"):
+            if name in self.fields:
+                self.fields[name].allow_zero = False
+        if "count" in self.fields:
+            self.fields["count"].min_value = 1
+            self.fields["count"].widget.attrs.update(min=1, max=1000)
+        hint = "e.g. 5/16 or 1-1/2\" (inches)" if assembly.job.unit_system == "US" else "e.g. 8 (mm)"
+        for field in self.fields.values():
+            if isinstance(field, LengthFormField):
+                field.widget.attrs.setdefault("placeholder", hint)
+
+    def clean_mark(self):
+        mark = self.cleaned_data["mark"].strip()
+        taken = Weld.objects.filter(assembly=self.assembly, mark__iexact=mark).exclude(pk=self.instance.pk)
+        if taken.exists():
+            raise forms.ValidationError(f"{self.assembly.piece_mark} already has weld {mark}.", code="unique")
+        return mark
+
+    def clean_count(self):
+        count = self.cleaned_data["count"]
+        if count is None or not 1 <= count <= 1000:
+            raise forms.ValidationError("Between 1 and 1000.", code="range")
+        return count
+
+    def clean(self):
+        data = super().clean()
+        if data.get("size2") is not None and data.get("joint_type") != "fillet":
+            self.add_error("size2", "A second leg is given for unequal-leg fillet welds only.")
+        return data
+
+
+class WeldForm(WeldSpecForm):
+    """The whole weld: drawing data, engineering data and who welded it to which WPS."""
+
+    welded_on = forms.DateField(label="Date welded", required=False,
+                                widget=forms.DateInput(attrs={"type": "date"}))
+
+    class Meta(WeldSpecForm.Meta):
+        fields = SPEC_FIELDS + EXTRA_SPEC_FIELDS + PRODUCTION_FIELDS
+        widgets = {"welders": forms.CheckboxSelectMultiple}
+        labels = {**WeldSpecForm.Meta.labels, "wps": "WPS", "load_angle": "Load angle to weld axis (degrees)"}
+
+    def __init__(self, *args, spec_locked=False, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["wps"].queryset = WPS.objects.exclude(state=WPSState.WITHDRAWN).order_by("number", "-revision")
+        self.fields["wps"].label_from_instance = lambda w: f"{w.number} rev {w.revision} · {w.get_state_display()}"
+        self.fields["welders"].queryset = Welder.objects.filter(active=True).order_by("stamp")
+        self.fields["load_angle"].min_value = 0
+        self.fields["load_angle"].max_value = 90
+        if spec_locked:  # inspected, or the user may record production only: the drawing data stays as it is
+            for name in SPEC_FIELDS + EXTRA_SPEC_FIELDS:
+                self.fields[name].disabled = True
+
+    def clean_welded_on(self):
+        day = self.cleaned_data.get("welded_on")
+        if day and day > timezone.localdate():
+            raise forms.ValidationError("The date welded cannot be in the future.", code="future")
+        return day
+
+    def clean_load_angle(self):
+        angle = self.cleaned_data.get("load_angle")
+        if angle is not None and not 0 <= angle <= 90:
+            raise forms.ValidationError("From 0 (load along the weld) to 90 degrees (across it).", code="range")
+        return angle
+
+    def clean(self):
+        data = super().clean()
+        if data.get("welders") and not data.get("welded_on"):
+            self.add_error("welded_on", "Give the date welded with the welders (it counts toward their continuity).")
+        return data
+
+
+class PieceMarkSearchForm(forms.Form):
+    q = forms.CharField(label="Piece mark", max_length=30, required=False,
+                        widget=forms.TextInput(attrs={"placeholder": "Piece mark, e.g. B12", "autocomplete": "off",
+                                                      "type": "search"}))
+
+
+class StepForm(forms.Form):
+    reason = forms.CharField(label="Note (optional)", max_length=500, required=False,
+                             widget=forms.TextInput())
+
+
+class WeldMapUploadForm(forms.Form):
+    file = forms.FileField(label="Weld map (CSV)", help_text="UTF-8 CSV with a header row; at most 1 MB.")
+
+
+class RepairForm(forms.Form):
+    repair_wps = forms.ModelChoiceField(label="Repair to WPS", queryset=WPS.objects.none())
+    repair_welder = forms.ModelChoiceField(label="Repair welder", queryset=Welder.objects.none())
+    disposition_notes = forms.CharField(label="Repair instructions", widget=forms.Textarea(attrs={"rows": 3}),
+                                        max_length=2000)
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["repair_wps"].queryset = WPS.objects.approved().order_by("number", "-revision")
+        self.fields["repair_welder"].queryset = Welder.objects.filter(active=True).order_by("stamp")
+
+
+class UseAsIsForm(forms.Form):
+    engineer_name = forms.CharField(label="Engineer approving", max_length=120)
+    engineer_approved_on = forms.DateField(label="Approved on", widget=forms.DateInput(attrs={"type": "date"}))
+    disposition_notes = forms.CharField(label="Basis of acceptance", widget=forms.Textarea(attrs={"rows": 3}),
+                                        max_length=2000, required=False)
+
+
+class ScrapForm(forms.Form):
+    disposition_notes = forms.CharField(label="Why scrap", widget=forms.Textarea(attrs={"rows": 3}), max_length=2000)
+
+
+def add_step_errors(form, exc):
+    """Put a StepRefused's messages next to the fields they name (others at the top of the form)."""
+    if hasattr(exc, "error_dict"):
+        for name, errors in exc.message_dict.items():
+            form.add_error(name if name in form.fields else None, errors)
+    else:
+        form.add_error(None, exc.messages)
+
+
+# --- client criteria sets --------------------------------------------------------------------------------
+
+def base_set_choices():
+    from inspections.criteria import list_criteria
+
+    choices = [(s.key, f"{s.title} ({s.key} v{s.version})") for s in list_criteria()]
+    latest = {}
+    for cset in ClientCriteriaSet.objects.order_by("key", "-version"):
+        latest.setdefault(cset.key, cset)
+    return choices + [(f"{CLIENT}:{c.pk}", f"Client: {c}") for c in latest.values()]
+
+
+class CriteriaDeriveForm(forms.Form):
+    """A client's set: the base set's limits, with the ones the client tightens (or an engineer loosens) changed.
+
+    One text box per limit (two, US and SI, where the standard prints both); blank keeps the base's value.
+    inspections.criteria.derive reads the values and decides what is tighter.
+    """
+
+    key = forms.SlugField(label="Key of the client's set", max_length=60,
+                          help_text="e.g. harlan-transit-static; an existing key gets a new version")
+    title = forms.CharField(max_length=120)
+    engineer_name = forms.CharField(label="Engineer signing a looser limit", max_length=120, required=False,
+                                    help_text="Only needed when a limit allows more than the base set")
+
+    def __init__(self, *args, base, **kwargs):
+        from inspections.criteria.base import Banded, Fixed, Threshold
+
+        super().__init__(*args, **kwargs)
+        self.base = base
+        self.limit_fields = []  # (limit name, [form field names])
+        for name, limit in base.limits.items():
+            if isinstance(limit, Threshold):
+                continue  # where a rule changes, not an allowance: derive refuses to override it
+            if isinstance(limit, (Fixed, Banded)) and len(base.systems) > 1:
+                names = [f"{name}__us", f"{name}__si"]
+                self.fields[names[0]] = forms.CharField(label=f"{name} (US)", required=False, max_length=40,
+                                                        widget=forms.TextInput(attrs={"placeholder": "e.g. 1/64 in"}))
+                self.fields[names[1]] = forms.CharField(label=f"{name} (SI)", required=False, max_length=40,
+                                                        widget=forms.TextInput(attrs={"placeholder": "e.g. 0.5 mm"}))
+            else:
+                names = [name]
+                self.fields[name] = forms.CharField(label=name, required=False, max_length=40)
+            self.limit_fields.append((name, names))
+
+    def overrides(self):
+        values = {}
+        for name, names in self.limit_fields:
+            if len(names) == 2:
+                us, si = (self.cleaned_data.get(n, "").strip() for n in names)
+                if us or si:
+                    values[name] = {k: v for k, v in (("us", us), ("si", si)) if v}
+            else:
+                value = self.cleaned_data.get(name, "").strip()
+                if value:
+                    values[name] = value
+        return values
+
+    def clean(self):
+        data = super().clean()
+        if self.errors:
+            return data
+        if not self.overrides():
+            raise forms.ValidationError("Change at least one limit; otherwise use the base set as it is.")
+        return data
+
+    def fields_of(self, limit_name):
+        return dict(self.limit_fields).get(limit_name, [])

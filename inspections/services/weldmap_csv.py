@@ -1,0 +1,225 @@
+"""Weld maps in and out as CSV, in the shape a detailer exports.
+
+Import is two steps: read_weld_map() gives a preview with one error per bad row and changes nothing;
+import_weld_map() writes every row or none, in one transaction, after reading the file again. Each row is
+checked by the same form as the weld page (WeldSpecForm), so a rule lives once. Export writes the same columns,
+lengths in the job's system as text that reads back exactly, and defuses cells a spreadsheet would run as a
+formula (OWASP "CSV injection": a leading = + - @, tab or carriage return gets a leading ').
+"""
+
+import csv
+import io
+from dataclasses import dataclass, field
+
+from django.db import IntegrityError, transaction
+
+from inspections.forms.jobs import WeldSpecForm
+from inspections.models import Assembly, Weld
+from inspections.services import StepRefused
+from legwork.fields import LengthFormField
+from procedures.models import WPS
+from procedures.models.wps import WPSState
+
+COLUMNS = ["piece_mark", "weld_mark", "joint", "size", "size2", "length", "count", "sides", "thickness1",
+           "thickness2", "position", "wps_number"]
+REQUIRED = {"piece_mark", "weld_mark", "size", "length", "thickness1", "thickness2"}
+# CSV column -> WeldSpecForm field
+FORM_FIELD = {"weld_mark": "mark", "joint": "joint_type", "size": "size", "size2": "size2", "length": "length",
+              "count": "count", "sides": "sides", "thickness1": "thickness1", "thickness2": "thickness2",
+              "position": "position"}
+DEFAULTS = {"joint": "fillet", "count": "1", "sides": "arrow", "position": "F"}
+MAX_BYTES = 1024 * 1024
+MAX_ROWS = 5000
+MAX_CELL = 200
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+
+@dataclass
+class Row:
+    line: int  # line number in the file, header = 1
+    values: dict
+    errors: list = field(default_factory=list)
+    assembly: Assembly | None = None
+    wps: WPS | None = None
+    cleaned: dict | None = None
+
+
+@dataclass
+class Preview:
+    rows: list = field(default_factory=list)
+    file_errors: list = field(default_factory=list)
+
+    @property
+    def ok(self):
+        return not self.file_errors and bool(self.rows) and not any(r.errors for r in self.rows)
+
+    @property
+    def bad_rows(self):
+        return [r for r in self.rows if r.errors]
+
+
+def _decode(data: bytes) -> str:
+    if len(data) > MAX_BYTES:
+        raise ValueError(f"The file is {len(data) // 1024} KB; a weld map may be at most {MAX_BYTES // 1024} KB. "
+                         "Split it by assembly.")
+    if b"\x00" in data:
+        raise ValueError("This is not a text file. Save the weld map as CSV (UTF-8).")
+    try:
+        return data.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        raise ValueError("The file is not UTF-8 text. In the spreadsheet, save as 'CSV UTF-8 (comma delimited)'.") \
+            from None
+
+
+def _unescape(text: str) -> str:
+    """Undo our own export's formula guard: "'=B1" read back is "=B1"."""
+    if len(text) > 1 and text[0] == "'" and text[1] in FORMULA_STARTS:
+        return text[1:]
+    return text
+
+
+def _records(text: str):
+    first = text.split("\n", 1)[0]
+    delimiter = ";" if first.count(";") > first.count(",") else ","
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
+    try:
+        header = next(reader, None)
+        if header is None:
+            raise ValueError("The file is empty; the first line names the columns: " + ", ".join(COLUMNS) + ".")
+        names = [h.strip().lower().replace(" ", "_") for h in header]
+        unknown = [h for h in names if h and h not in COLUMNS]
+        missing = sorted(REQUIRED - set(names))
+        if unknown or missing:
+            parts = []
+            if missing:
+                parts.append("missing column(s) " + ", ".join(missing))
+            if unknown:
+                parts.append("unknown column(s) " + ", ".join(unknown[:10]))
+            raise ValueError("The header row has " + " and ".join(parts) + ". The columns are: " +
+                             ", ".join(COLUMNS) + ".")
+        if len(set(names)) != len(names):
+            raise ValueError("A column is named twice in the header row.")
+        records = []
+        for cells in reader:
+            if not any(c.strip() for c in cells):
+                continue
+            if len(records) >= MAX_ROWS:
+                raise ValueError(f"More than {MAX_ROWS} welds in one file; split it by assembly.")
+            records.append((reader.line_num, names, cells))
+        return records
+    except csv.Error as exc:
+        raise ValueError(f"The CSV cannot be read (line {reader.line_num}): {exc}.") from None
+
+
+def _resolve_wps(number, cache):
+    """The WPS a weld map names by number: its approved revision, else its newest draft or submitted one."""
+    if number in cache:
+        return cache[number]
+    revisions = list(WPS.objects.filter(number__iexact=number).exclude(
+        state__in=[WPSState.WITHDRAWN, WPSState.SUPERSEDED]).order_by("-revision"))
+    approved = [w for w in revisions if w.state == WPSState.APPROVED]
+    cache[number] = approved[0] if approved else (revisions[0] if revisions else None)
+    return cache[number]
+
+
+def read_weld_map(data: bytes, job) -> Preview:
+    """Check every row of the file against the job; nothing is written."""
+    preview = Preview()
+    try:
+        records = _records(_decode(data))
+    except ValueError as exc:
+        preview.file_errors.append(str(exc))
+        return preview
+    if not records:
+        preview.file_errors.append("The file has a header row but no welds.")
+        return preview
+    assemblies = {a.piece_mark.lower(): a for a in Assembly.objects.filter(job=job).select_related("job")}
+    existing = {(pm, m.lower()) for pm, m in Weld.objects.filter(assembly__job=job)
+                .values_list("assembly__piece_mark", "mark")}
+    existing = {(pm.lower(), m) for pm, m in existing}
+    seen, wps_cache = {}, {}
+    for line, names, cells in records:
+        row = Row(line=line, values={})
+        if len(cells) > len(names):
+            row.errors.append(f"{len(cells)} cells but {len(names)} columns.")
+        for name, cell in zip(names, cells, strict=False):
+            if len(cell) > MAX_CELL:
+                row.errors.append(f"{name}: longer than {MAX_CELL} characters.")
+                cell = cell[:MAX_CELL]
+            row.values[name] = _unescape(cell.strip())
+        preview.rows.append(row)
+        if row.errors:
+            continue
+        values = {k: row.values.get(k) or DEFAULTS.get(k, "") for k in COLUMNS}
+        piece = values["piece_mark"]
+        row.assembly = assemblies.get(piece.lower())
+        if not piece:
+            row.errors.append("piece_mark: empty.")
+            continue
+        if row.assembly is None:
+            row.errors.append(f"piece_mark: job {job.number} has no assembly {piece}; add it first.")
+            continue
+        if row.assembly.is_closed:
+            row.errors.append(f"piece_mark: {piece} is {row.assembly.get_state_display().lower()}; its weld map is "
+                              "frozen.")
+            continue
+        key = (piece.lower(), values["weld_mark"].lower())
+        if key in existing:
+            row.errors.append(f"weld_mark: {piece} already has weld {values['weld_mark']}.")
+            continue
+        if key in seen:
+            row.errors.append(f"weld_mark: {piece} / {values['weld_mark']} is also on line {seen[key]}.")
+            continue
+        seen[key] = line
+        if values["wps_number"]:
+            row.wps = _resolve_wps(values["wps_number"], wps_cache)
+            if row.wps is None:
+                row.errors.append(f"wps_number: no WPS {values['wps_number']} in use.")
+        form = WeldSpecForm(data={FORM_FIELD[k]: values[k] for k in FORM_FIELD}, assembly=row.assembly)
+        # The form's own uniqueness check would ask the database per row; the sets above answered it.
+        form.clean_mark = lambda form=form: form.cleaned_data["mark"].strip()
+        if form.is_valid():
+            row.cleaned = form.cleaned_data
+        else:
+            reverse = {v: k for k, v in FORM_FIELD.items()}
+            for name, errors in form.errors.items():
+                row.errors.append(f"{reverse.get(name, name)}: {' '.join(errors)}")
+    return preview
+
+
+def import_weld_map(data: bytes, job) -> list:
+    """Read the file again and write every weld, or none: raises StepRefused with the preview's errors."""
+    with transaction.atomic():
+        preview = read_weld_map(data, job)
+        if not preview.ok:
+            problems = preview.file_errors + [f"Line {r.line}: {'; '.join(r.errors)}" for r in preview.bad_rows]
+            raise StepRefused(problems or ["Nothing to import."], code="invalid")
+        welds = [Weld(assembly=row.assembly, wps=row.wps, **row.cleaned) for row in preview.rows]
+        try:
+            Weld.objects.bulk_create(welds)
+        except IntegrityError:  # someone added the same mark meanwhile
+            raise StepRefused("A weld mark in the file was added by someone else meanwhile; preview it again.",
+                              code="race") from None
+    return welds
+
+
+def _safe(value) -> str:
+    text = "" if value is None else str(value)
+    return "'" + text if text.startswith(FORMULA_STARTS) else text
+
+
+def export_weld_map(job) -> str:
+    """The job's weld map as CSV text in the import's shape, lengths in the job's system."""
+    length = LengthFormField(system=job.unit_system)
+    welds = (Weld.objects.filter(assembly__job=job).select_related("assembly", "wps")
+             .order_by("assembly__piece_mark", "mark"))
+    out = io.StringIO()
+    writer = csv.writer(out, lineterminator="\r\n")
+    writer.writerow(COLUMNS)
+    for weld in welds:
+        writer.writerow([_safe(v) for v in (
+            weld.assembly.piece_mark, weld.mark, weld.joint_type, length.prepare_value(weld.size),
+            length.prepare_value(weld.size2) if weld.size2 else "", length.prepare_value(weld.length), weld.count,
+            weld.sides, length.prepare_value(weld.thickness1), length.prepare_value(weld.thickness2), weld.position,
+            weld.wps.number if weld.wps else "")])
+    return out.getvalue()

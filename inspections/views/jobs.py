@@ -1,0 +1,319 @@
+"""Jobs, assemblies and their weld maps: lists, forms, release, CSV in and out."""
+
+from dataclasses import dataclass
+
+from django.contrib import messages
+from django.core.exceptions import PermissionDenied
+from django.db import transaction
+from django.db.models import Count, Q
+from django.http import HttpResponse
+from django.shortcuts import get_object_or_404, redirect, render
+from django.utils import timezone
+from django.views.decorators.http import require_http_methods, require_POST, require_safe
+
+from inspections.forms.jobs import (
+    AssemblyForm,
+    JobForm,
+    PieceMarkSearchForm,
+    StepForm,
+    WeldForm,
+    WeldMapUploadForm,
+)
+from inspections.models import Assembly, Job, Weld
+from inspections.models.ncr import NCRState
+from inspections.services import StepRefused, weldmap_csv
+from inspections.services import assemblies as steps
+from legwork.roles import can, require, role_required
+from legwork.units import format_length
+from procedures.models import WPS, Welder
+from procedures.models.wps import WPSState
+
+
+def _open_ncr_count():
+    return Count("welds__ncrs", filter=~Q(welds__ncrs__state=NCRState.CLOSED), distinct=True)
+
+
+@require_safe
+def job_list(request):
+    jobs = Job.objects.select_related("client_criteria").annotate(n_assemblies=Count("assemblies", distinct=True))
+    return render(request, "inspections/job_list.html", {"jobs": jobs, "search": PieceMarkSearchForm()})
+
+
+@role_required("job.manage")
+@require_http_methods(["GET", "POST"])
+def job_create(request):
+    form = JobForm(request.POST or None)
+    if request.method == "POST" and form.is_valid():
+        job = form.save()
+        messages.success(request, f"Job {job.number} created.")
+        return redirect(job)
+    return render(request, "inspections/job_form.html", {"form": form})
+
+
+@require_safe
+def job_detail(request, pk):
+    job = get_object_or_404(Job.objects.select_related("client_criteria"), pk=pk)
+    search = PieceMarkSearchForm(request.GET or None)
+    assemblies = (job.assemblies.annotate(n_welds=Count("welds", distinct=True), n_open_ncrs=_open_ncr_count())
+                  .order_by("piece_mark"))
+    query = search.cleaned_data["q"].strip() if search.is_valid() else ""
+    if query:
+        assemblies = assemblies.filter(piece_mark__icontains=query)
+    return render(request, "inspections/job_detail.html",
+                  {"job": job, "assemblies": assemblies, "search": search, "query": query})
+
+
+@require_safe
+def assembly_find(request):
+    """Find an assembly by piece mark across jobs: one exact match opens it."""
+    search = PieceMarkSearchForm(request.GET or None)
+    query = search.cleaned_data["q"].strip() if search.is_valid() else ""
+    found = []
+    if query:
+        found = list(Assembly.objects.filter(piece_mark__icontains=query).select_related("job")
+                     .order_by("piece_mark", "job__number")[:50])
+        exact = [a for a in found if a.piece_mark.lower() == query.lower()]
+        if len(exact) == 1:
+            return redirect(exact[0])
+    return render(request, "inspections/assembly_find.html", {"search": search, "query": query, "found": found})
+
+
+@role_required("job.manage")
+@require_http_methods(["GET", "POST"])
+def assembly_create(request, pk):
+    job = get_object_or_404(Job, pk=pk)
+    form = AssemblyForm(request.POST or None, job=job)
+    if request.method == "POST" and form.is_valid():
+        form.instance.job = job
+        assembly = form.save()
+        messages.success(request, f"Assembly {assembly.piece_mark} added.")
+        return redirect(assembly)
+    return render(request, "inspections/assembly_form.html", {"form": form, "job": job})
+
+
+@dataclass
+class WeldRow:
+    weld: Weld
+    size: str
+    length: str
+    thickness: str
+    status: object
+    welders: list
+    wps_approved: bool
+
+
+def _length(value, system):
+    return format_length(value, system) if value is not None else ""
+
+
+def weld_rows(assembly, welds):
+    """The weld map as the page shows it: every weld with its status and welder checks, fixed queries."""
+    system = assembly.job.unit_system
+    statuses = steps.weld_statuses([w.pk for w in welds])
+    checks = steps.welder_checks(welds)
+    rows = []
+    for weld in welds:
+        size = _length(weld.size, system) + (f" x {_length(weld.size2, system)}" if weld.size2 else "")
+        thickness = f"{_length(weld.thickness1, system)} / {_length(weld.thickness2, system)}"
+        rows.append(WeldRow(weld, size, _length(weld.length, system), thickness, statuses[weld.pk],
+                            checks.get(weld.pk, []), bool(weld.wps and weld.wps.state == WPSState.APPROVED)))
+    return rows
+
+
+def _assembly_page(request, assembly, release_errors=None, status=200):
+    welds = list(assembly.welds.select_related("wps").prefetch_related("welders").order_by("mark"))
+    rows = weld_rows(assembly, welds)
+    statuses = {row.weld.pk: row.status for row in rows}
+    blockers = steps.release_blockers(assembly, statuses=statuses, welds=welds)
+    open_ncrs = [n for row in rows for n in row.status.open_ncrs]
+    context = {
+        "assembly": assembly, "job": assembly.job, "rows": rows, "blockers": blockers,
+        "release_errors": release_errors, "open_ncrs": open_ncrs, "step_form": StepForm(),
+        "events": assembly.events.select_related("user").order_by("-at", "-pk")[:20],
+        "can_submit": assembly.state == "in_fabrication" and can(request.user, "assembly.submit"),
+    }
+    return render(request, "inspections/assembly_detail.html", context, status=status)
+
+
+@require_safe
+def assembly_detail(request, pk):
+    assembly = get_object_or_404(Assembly.objects.select_related("job", "released_by"), pk=pk)
+    return _assembly_page(request, assembly)
+
+
+def _step(request, pk, step, done):
+    assembly = get_object_or_404(Assembly.objects.select_related("job", "released_by"), pk=pk)
+    form = StepForm(request.POST)
+    reason = form.cleaned_data["reason"] if form.is_valid() else ""
+    try:
+        step(assembly, request.user, reason)
+    except StepRefused as exc:
+        assembly.refresh_from_db()
+        return _assembly_page(request, assembly, release_errors=exc.messages, status=409)
+    messages.success(request, done.format(assembly=assembly))
+    return redirect(assembly)
+
+
+@role_required("assembly.submit")
+@require_POST
+def assembly_submit(request, pk):
+    return _step(request, pk, steps.submit_for_inspection, "{assembly.piece_mark} sent for final inspection.")
+
+
+@role_required("assembly.release")
+@require_POST
+def assembly_release(request, pk):
+    return _step(request, pk, steps.release, "{assembly.piece_mark} released.")
+
+
+# --- welds ------------------------------------------------------------------------------------------------
+
+def _save_weld(request, form):
+    with transaction.atomic():
+        weld = form.save()
+        if "welders" in form.changed_data or "welded_on" in form.changed_data or "wps" in form.changed_data:
+            steps.record_production(weld)
+    return weld
+
+
+@role_required("job.manage")
+@require_http_methods(["GET", "POST"])
+def weld_create(request, pk):
+    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    if assembly.is_closed:
+        raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
+                               "frozen.")
+    form = WeldForm(request.POST or None, assembly=assembly, instance=Weld(assembly=assembly))
+    if request.method == "POST" and form.is_valid():
+        weld = _save_weld(request, form)
+        messages.success(request, f"Weld {weld.mark} added to {assembly.piece_mark}.")
+        return redirect(assembly)
+    return render(request, "inspections/weld_form.html", {"form": form, "assembly": assembly, "weld": None,
+                                                           "check": _check_context(assembly, form.instance)})
+
+
+def _may_edit_weld(user):
+    if not (can(user, "job.manage") or can(user, "weld.record")):
+        require(user, "weld.record")
+
+
+@require_http_methods(["GET", "POST"])
+def weld_edit(request, pk):
+    _may_edit_weld(request.user)
+    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
+    assembly = weld.assembly
+    if assembly.is_closed:
+        raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
+                               "frozen.")
+    inspected = weld.inspections.exists()
+    locked = inspected or not can(request.user, "job.manage")
+    form = WeldForm(request.POST or None, assembly=assembly, instance=weld, spec_locked=locked)
+    if request.method == "POST" and form.is_valid():
+        _save_weld(request, form)
+        messages.success(request, f"Weld {weld.mark} saved.")
+        return redirect(assembly)
+    return render(request, "inspections/weld_form.html", {
+        "form": form, "assembly": assembly, "weld": weld, "inspected": inspected, "locked": locked,
+        "check": _check_context(assembly, weld)})
+
+
+@require_safe
+def weld_detail(request, pk):
+    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps").prefetch_related("welders"), pk=pk)
+    row = weld_rows(weld.assembly, [weld])[0]
+    inspections = weld.inspections.select_related("inspector", "supersedes").order_by("-inspected_at", "-pk")
+    return render(request, "inspections/weld_detail.html", {
+        "weld": weld, "assembly": weld.assembly, "row": row, "inspections": inspections,
+        "ncrs": weld.ncrs.order_by("-raised_at"),
+        "may_edit": not weld.assembly.is_closed and (can(request.user, "job.manage")
+                                                     or can(request.user, "weld.record")),
+    })
+
+
+def _check_context(assembly, weld, wps=None, welders=None, on=None):
+    """The 'may this welder make this weld with this WPS' panel for the weld form."""
+    wps = wps if wps is not None else weld.wps if weld.wps_id else None
+    if welders is None:
+        welders = list(weld.welders.all()) if weld.pk else []
+    on = on or weld.welded_on or timezone.localdate()
+    weld.wps = wps
+    checks = [steps.check_welder(w, weld, on=on) for w in welders] if wps is not None else []
+    return {"wps": wps, "wps_approved": bool(wps and wps.state == WPSState.APPROVED), "checks": checks,
+            "welders": welders, "on": on}
+
+
+@require_safe
+def weld_check(request, pk):
+    """htmx: the qualification panel for what the weld form holds now (nothing is saved)."""
+    _may_edit_weld(request.user)
+    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    weld = Weld(assembly=assembly)
+    existing = request.GET.get("weld", "")
+    if existing.isdigit():
+        weld = get_object_or_404(Weld.objects.select_related("wps"), pk=int(existing), assembly=assembly)
+    form = WeldForm(request.GET, assembly=assembly, instance=weld)
+    form.is_valid()  # read what is readable; a half-filled form still gets an answer for its valid parts
+    data = form.cleaned_data
+    for name in ("joint_type", "position", "thickness1", "thickness2"):
+        if data.get(name) is not None:
+            setattr(weld, name, data[name])
+    wps_id = request.GET.get("wps", "")
+    wps = WPS.objects.filter(pk=int(wps_id)).first() if wps_id.isdigit() else None
+    ids = [int(v) for v in request.GET.getlist("welders") if v.isdigit()][:50]
+    welders = list(Welder.objects.filter(pk__in=ids).order_by("stamp"))
+    context = _check_context(assembly, weld, wps=wps, welders=welders, on=data.get("welded_on"))
+    if weld.thickness1 is None or weld.thickness2 is None:
+        context["checks"] = []
+        context["need_thickness"] = True
+    return render(request, "inspections/weld_check.html", {"check": context})
+
+
+# --- weld map CSV ----------------------------------------------------------------------------------------
+
+@role_required("job.manage")
+@require_http_methods(["GET", "POST"])
+def weldmap_import(request, pk):
+    job = get_object_or_404(Job, pk=pk)
+    preview = None
+    form = WeldMapUploadForm()
+    csv_text = ""
+    if request.method == "POST" and request.POST.get("step") == "confirm":
+        csv_text = request.POST.get("csv_text", "")
+        data = csv_text.encode("utf-8")
+        try:
+            welds = weldmap_csv.import_weld_map(data, job)
+        except StepRefused:
+            preview = weldmap_csv.read_weld_map(data, job)
+            return render(request, "inspections/job_weldmap_import.html",
+                          {"job": job, "form": form, "preview": preview, "csv_text": csv_text}, status=400)
+        messages.success(request, f"{len(welds)} welds imported.")
+        return redirect(job)
+    if request.method == "POST":
+        form = WeldMapUploadForm(request.POST, request.FILES)
+        if form.is_valid():
+            upload = form.cleaned_data["file"]
+            if upload.size > weldmap_csv.MAX_BYTES:
+                form.add_error("file", f"The file is larger than {weldmap_csv.MAX_BYTES // 1024} KB; split it by "
+                               "assembly.")
+            else:
+                data = upload.read()
+                preview = weldmap_csv.read_weld_map(data, job)
+                if preview.file_errors:
+                    for error in preview.file_errors:
+                        form.add_error("file", error)
+                    preview = None
+                else:
+                    csv_text = data.decode("utf-8-sig")
+    status = 400 if request.method == "POST" and (form.errors or (preview and not preview.ok)) else 200
+    return render(request, "inspections/job_weldmap_import.html",
+                  {"job": job, "form": form, "preview": preview, "csv_text": csv_text,
+                   "columns": weldmap_csv.COLUMNS}, status=status)
+
+
+@require_safe
+def weldmap_export(request, pk):
+    job = get_object_or_404(Job, pk=pk)
+    response = HttpResponse(weldmap_csv.export_weld_map(job), content_type="text/csv; charset=utf-8")
+    safe_number = "".join(c if c.isalnum() or c in "-_" else "_" for c in job.number)
+    response["Content-Disposition"] = f'attachment; filename="weld-map-{safe_number}.csv"'
+    return response

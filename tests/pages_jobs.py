@@ -1,0 +1,69 @@
+"""Role-matrix rows for jobs, assemblies, weld maps, NCRs and criteria set pages."""
+
+from tests.conftest import ROLES
+
+OK, DENIED = 200, 403
+ALL_OK = {role: OK for role in ROLES}
+
+
+def only(*roles):
+    return {role: (OK if role in roles else DENIED) for role in ROLES}
+
+
+MANAGERS = only("welding_engineer", "qa_lead")
+RECORDERS = only("welding_engineer", "inspector", "qa_lead")
+
+
+def _job(make):
+    return {"pk": make.make_job().pk}
+
+
+def _assembly(make):
+    return {"pk": make.make_assembly().pk}
+
+
+def _weld(make):
+    return {"pk": make.make_weld().pk}
+
+
+def _ncr(make):
+    return {"pk": make.make_ncr().pk}
+
+
+PAGES = {
+    "inspections:job_list": (lambda make: {}, ALL_OK),
+    "inspections:job_create": (lambda make: {}, MANAGERS),
+    "inspections:job_detail": (_job, ALL_OK),
+    "inspections:assembly_create": (_job, MANAGERS),
+    "inspections:weldmap_import": (_job, MANAGERS),
+    "inspections:weldmap_export": (_job, ALL_OK),
+    "inspections:assembly_find": (lambda make: {}, ALL_OK),
+    "inspections:assembly_detail": (_assembly, ALL_OK),
+    "inspections:weld_create": (_assembly, MANAGERS),
+    "inspections:weld_check": (_assembly, RECORDERS),
+    "inspections:weld_detail": (_weld, ALL_OK),
+    "inspections:weld_edit": (_weld, RECORDERS),
+    "inspections:ncr_list": (lambda make: {}, ALL_OK),
+    "inspections:ncr_detail": (_ncr, ALL_OK),
+    "inspections:criteria_list": (lambda make: {}, ALL_OK),
+    "inspections:criteria_derive": (lambda make: {}, only("qa_lead")),
+    "inspections:criteria_detail": (lambda make: {"key": "aws-d1.1-2020-static"}, ALL_OK),
+    "inspections:criteria_client_detail": (lambda make: {"pk": make_client_set(make).pk}, ALL_OK),
+}
+
+NOT_PAGES = {
+    "inspections:assembly_submit": _assembly,
+    "inspections:assembly_release": _assembly,
+    "inspections:ncr_disposition": lambda make: {"pk": make.make_ncr().pk, "kind": "scrap"},
+}
+
+
+def make_client_set(make, key="harlan-transit-static", overrides=None, version=1):
+    """A stored client set derived (through inspections.criteria.derive) from the AWS static set."""
+    from inspections.criteria import derive
+    from inspections.models import ClientCriteriaSet
+
+    derived = derive("aws-d1.1-2020-static", key, overrides or {"undercut_thin": {"us": "1/64 in", "si": "0.5 mm"}},
+                     "Harlan Transit, static", version=version)
+    return ClientCriteriaSet.objects.create(key=key, version=version, title=derived.title, base_key=derived.base_key,
+                                            definition=derived.to_dict(), created_by=make.make_user("qa_lead"))

@@ -17,14 +17,22 @@ class InspectionStage(models.TextChoices):
 
 
 class InspectionQuerySet(models.QuerySet):
+    """Reads only: a signed inspection is changed by no path, bulk updates and deletes included."""
+
     def current(self):
         """Inspections that no later inspection supersedes."""
         return self.filter(~Exists(Inspection.objects.filter(supersedes=OuterRef("pk"))))
 
+    def update(self, **kwargs):
+        raise SignedRecordError("Signed inspections cannot be changed; record a correction that supersedes one.")
+
+    def delete(self):
+        raise SignedRecordError("Signed inspections cannot be deleted; record a correction that supersedes one.")
+
 
 # Observation fields, named as inspections.acceptance.evaluate reads them.
 LENGTH_OBSERVATIONS = ["min_size", "undersize_length", "undercut_depth", "undercut_length", "porosity_sum_1in",
-                       "porosity_sum_12in", "pore_max", "convexity", "face_width", "throat"]
+                       "porosity_sum_12in", "pore_max", "convexity", "face_width", "throat", "crater_depth"]
 COUNT_OBSERVATIONS = ["pores_per_4in"]
 FLAG_OBSERVATIONS = ["crack", "incomplete_fusion", "unfilled_crater", "overlap", "arc_strike"]
 
@@ -50,6 +58,7 @@ class Inspection(models.Model):
     convexity = LengthField(null=True, blank=True)
     face_width = LengthField(null=True, blank=True)
     throat = LengthField("measured throat", null=True, blank=True)
+    crater_depth = LengthField("end crater pipe depth", null=True, blank=True)
     crack = models.BooleanField(default=False)
     incomplete_fusion = models.BooleanField(default=False)
     unfilled_crater = models.BooleanField(default=False)
@@ -82,6 +91,15 @@ class Inspection(models.Model):
     def get_absolute_url(self):
         return reverse("inspections:inspection_detail", args=[self.pk])
 
+    @property
+    def is_current(self) -> bool:
+        """No correction supersedes this one (reads the reverse one-to-one: select_related it on lists)."""
+        try:
+            self.superseded_by  # noqa: B018 - the lookup is the question
+        except Inspection.DoesNotExist:
+            return True
+        return False
+
     def observed(self) -> dict:
         """The observations as the acceptance engine reads them (absent = none seen)."""
         observed = {name: getattr(self, name) for name in LENGTH_OBSERVATIONS + COUNT_OBSERVATIONS
@@ -94,8 +112,19 @@ def photo_path(photo, filename):
     return f"photos/{timezone.now():%Y/%m}/{photo.inspection_id}-{filename}"
 
 
+class PhotoQuerySet(models.QuerySet):
+    def update(self, **kwargs):
+        raise SignedRecordError("A photo attached to a signed inspection cannot be changed.")
+
+    def delete(self):
+        raise SignedRecordError("A photo attached to a signed inspection cannot be deleted.")
+
+
 class Photo(models.Model):
-    """A photo of a weld, cleaned on upload (orientation applied, metadata stripped); served through a view."""
+    """A photo of a weld, cleaned on upload (orientation applied, metadata stripped); served through a view.
+
+    Attached to a signed inspection and, like it, never changed or deleted.
+    """
 
     inspection = models.ForeignKey(Inspection, on_delete=models.PROTECT, related_name="photos")
     image = models.ImageField(upload_to=photo_path)
@@ -103,12 +132,23 @@ class Photo(models.Model):
     caption = models.CharField(max_length=200, blank=True)
     width = models.PositiveIntegerField()
     height = models.PositiveIntegerField()
-    sha256 = models.CharField(max_length=64)
+    content_type = models.CharField(max_length=20, default="image/jpeg", editable=False)
+    sha256 = models.CharField(max_length=64, help_text="SHA-256 of the stored (cleaned) image")
     uploaded_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
     uploaded_at = models.DateTimeField(default=timezone.now)
+
+    objects = PhotoQuerySet.as_manager()
 
     class Meta:
         ordering = ["uploaded_at", "pk"]
 
     def __str__(self):
         return self.caption or f"Photo {self.pk}"
+
+    def save(self, *args, **kwargs):
+        if self.pk is not None and not self._state.adding:
+            raise SignedRecordError("A photo attached to a signed inspection cannot be changed.")
+        super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise SignedRecordError("A photo attached to a signed inspection cannot be deleted.")

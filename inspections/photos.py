@@ -1,0 +1,118 @@
+"""Clean a photo from the tablet before it is stored: allow-listed formats, size and pixel limits, orientation
+applied, metadata (EXIF, GPS, text chunks) dropped by re-encoding, a thumbnail made, the stored bytes hashed.
+
+Pillow only reads JPEG, PNG and WebP here (`formats=`), so no other decoder ever sees an upload. HEIF/HEIC
+(the iPhone default) is refused: Pillow cannot read it without a plugin; the camera input on a web page hands
+over JPEG on current tablets.
+"""
+
+import hashlib
+import io
+import warnings
+from dataclasses import dataclass
+
+from django.conf import settings
+from PIL import Image, ImageOps, UnidentifiedImageError
+
+ALLOWED = {"JPEG": ("image/jpeg", "jpg"), "PNG": ("image/png", "png"), "WEBP": ("image/webp", "webp")}
+THUMBNAIL_PX = 320
+JPEG_QUALITY = 88
+
+
+class PhotoError(ValueError):
+    """An upload that is not stored; the message says why and what would do."""
+
+
+@dataclass(frozen=True)
+class CleanPhoto:
+    content: bytes
+    thumbnail: bytes
+    content_type: str
+    extension: str
+    width: int
+    height: int
+    sha256: str
+
+
+def clean_photo(upload) -> CleanPhoto:
+    """Check and re-encode an uploaded file (a Django UploadedFile or any binary file object with .size)."""
+    max_bytes = settings.LEGWORK_PHOTO_MAX_BYTES
+    max_pixels = settings.LEGWORK_PHOTO_MAX_PIXELS
+    size = getattr(upload, "size", None)
+    if size is None:
+        upload.seek(0, io.SEEK_END)
+        size = upload.tell()
+    if size == 0:
+        raise PhotoError("The file is empty: take the photo again.")
+    if size > max_bytes:
+        raise PhotoError(f"The photo is {_mb(size)}; the limit is {_mb(max_bytes)}. Take it at a lower resolution.")
+    upload.seek(0)
+    # Pillow's own bomb guard reads this global: warn at the limit, refuse at twice it. We refuse at the limit.
+    Image.MAX_IMAGE_PIXELS = max_pixels
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error", Image.DecompressionBombWarning)
+            with Image.open(upload, formats=list(ALLOWED)) as image:
+                fmt = image.format
+                width, height = image.size
+                if width * height > max_pixels:
+                    raise PhotoError(_too_many(width, height, max_pixels))
+                image.load()
+                cleaned = _reencode(ImageOps.exif_transpose(image), fmt)
+    except PhotoError:
+        raise
+    except (Image.DecompressionBombError, Image.DecompressionBombWarning):
+        raise PhotoError(f"The image is larger than {max_pixels:,} pixels and was refused "
+                         "(it may be a decompression bomb).") from None
+    except UnidentifiedImageError:
+        raise PhotoError("Only JPEG, PNG and WebP photos can be attached (HEIC: set the camera to "
+                         "'most compatible' or export as JPEG).") from None
+    except (OSError, SyntaxError, ValueError, EOFError) as exc:
+        raise PhotoError(f"The photo could not be read ({type(exc).__name__}): it may be damaged or cut short; "
+                         "take it again.") from None
+    return cleaned
+
+
+def _reencode(image: Image.Image, fmt: str) -> CleanPhoto:
+    """Write the pixels only: no exif=, icc_profile=, pnginfo= passed, so no metadata survives."""
+    content_type, extension = ALLOWED[fmt]
+    if fmt == "JPEG":
+        image = _flat(image)
+    elif image.mode not in ("RGB", "RGBA", "L", "LA"):
+        image = image.convert("RGBA" if "A" in image.getbands() or "transparency" in image.info else "RGB")
+    out = io.BytesIO()
+    if fmt == "JPEG":
+        image.save(out, "JPEG", quality=JPEG_QUALITY, optimize=True)
+    elif fmt == "PNG":
+        image.save(out, "PNG", optimize=True)
+    else:
+        image.save(out, "WEBP", quality=JPEG_QUALITY)
+    content = out.getvalue()
+
+    thumb = _flat(image.copy())
+    thumb.thumbnail((THUMBNAIL_PX, THUMBNAIL_PX))
+    thumb_out = io.BytesIO()
+    thumb.save(thumb_out, "JPEG", quality=80)
+    return CleanPhoto(content=content, thumbnail=thumb_out.getvalue(), content_type=content_type,
+                      extension=extension, width=image.width, height=image.height,
+                      sha256=hashlib.sha256(content).hexdigest())
+
+
+def _flat(image: Image.Image) -> Image.Image:
+    """RGB for JPEG: transparency over white, palettes and odd modes converted."""
+    if image.mode in ("RGBA", "LA") or (image.mode == "P" and "transparency" in image.info):
+        rgba = image.convert("RGBA")
+        background = Image.new("RGB", rgba.size, (255, 255, 255))
+        background.paste(rgba, mask=rgba.getchannel("A"))
+        return background
+    if image.mode not in ("RGB", "L"):
+        return image.convert("RGB")
+    return image
+
+
+def _mb(n: int) -> str:
+    return f"{n / (1024 * 1024):.1f} MB"
+
+
+def _too_many(width: int, height: int, limit: int) -> str:
+    return f"The image is {width} x {height} = {width * height:,} pixels; the limit is {limit:,}. Take it smaller."

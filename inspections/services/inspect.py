@@ -1,0 +1,147 @@
+"""Judge and sign inspections: the one path by which an inspection comes into the database.
+
+`judge(weld, observed)` asks the acceptance engine (inspections.acceptance.evaluate) about one weld; it adds no
+rule of its own. `sign_inspection(...)` stores the observations with the verdict, the findings and the criteria
+set's key and version in one transaction, then moves the repair loop on: an NCR opened for a rejected final
+inspection, open NCRs closed by an accepted one, the assembly's state refreshed.
+"""
+
+from decimal import Decimal
+
+from django.db import transaction
+
+from inspections.acceptance import Verdict, evaluate
+from inspections.models import Inspection, InspectionStage, Weld
+from inspections.models.inspection import COUNT_OBSERVATIONS, FLAG_OBSERVATIONS, LENGTH_OBSERVATIONS
+from legwork.units import Length, format_length
+
+# Effective throat of a fillet from its legs (AISC 360-16 J2.2a: 0.707 w for equal legs; a b / sqrt(a^2 + b^2)
+# for unequal legs a, b: geometry of the right triangle). Used as ISO 5817's nominal a when the map gives a leg.
+EQUAL_LEG_THROAT = Decimal("0.707")
+
+
+class InspectionError(ValueError):
+    """A signing the records refuse (a correction of a superseded inspection, a missing reason)."""
+
+
+def nominal_throat(weld: Weld) -> Length:
+    """The nominal throat a of the specified fillet."""
+    if weld.size2 is None or weld.size2 == weld.size:
+        return weld.size * EQUAL_LEG_THROAT
+    a, b = weld.size.mm, weld.size2.mm
+    return Length(a * b / (a * a + b * b).sqrt())
+
+
+def weld_for_engine(weld: Weld) -> dict:
+    """The engine's weld dict from a weld-map line.
+
+    thickness: undercut is judged at the toe on the thinner part joined (the stricter reading, since either toe
+    can undercut; the weld map does not say which part a toe lies on).
+    """
+    system = weld.assembly.job.unit_system
+    return {
+        "system": system,
+        "size": min(weld.size, weld.size2) if weld.size2 is not None else weld.size,
+        "throat": nominal_throat(weld),
+        "length": weld.length,
+        "thickness": weld.thinner_part,
+        "primary_member": weld.primary_member,
+        "transverse_to_tension": weld.transverse_to_tension,
+    }
+
+
+def observed_for_engine(observed: dict) -> dict:
+    """Observations as the engine reads them: absent or empty measurements left out, flags as booleans."""
+    out = {}
+    for name in LENGTH_OBSERVATIONS:
+        if observed.get(name) is not None:
+            out[name] = observed[name]
+    for name in COUNT_OBSERVATIONS:
+        if observed.get(name) is not None:
+            out[name] = int(observed[name])
+    for name in FLAG_OBSERVATIONS:
+        out[name] = bool(observed.get(name, False))
+    return out
+
+
+def judge(weld: Weld, observed: dict) -> Verdict:
+    """The verdict of the job's criteria set (client set or built-in) on these observations of this weld.
+
+    Raises ValueError (from the engine) when the observations cannot be judged, e.g. a required leg is missing.
+    """
+    return evaluate(weld.assembly.job.criteria_for_evaluation(), weld_for_engine(weld), observed_for_engine(observed))
+
+
+def findings_json(verdict: Verdict, system: str) -> list[dict]:
+    """The findings as stored with the inspection: plain text, readable without the engine."""
+    rows = []
+    for f in verdict.findings:
+        rows.append({
+            "criterion": f.criterion,
+            "ok": f.ok,
+            "message": f.message,
+            "source": f.source,
+            "limit": _text(f.limit, system),
+            "measured": _text(f.measured, system),
+        })
+    return rows
+
+
+def _text(value, system):
+    if value is None:
+        return None
+    if isinstance(value, Length):
+        return format_length(value, system)
+    if isinstance(value, bool):
+        return value
+    return str(value)
+
+
+@transaction.atomic
+def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: Inspection | None = None,
+                    reason: str = "", remarks: str = "") -> Inspection:
+    """Judge, sign and store one inspection; move the NCR and assembly states on. All or nothing.
+
+    A correction names the inspection it supersedes and why; only a current inspection of the same weld can be
+    superseded (locked, so two people correcting one inspection at once cannot both succeed).
+    """
+    from inspections.services.assemblies import refresh_assembly_state
+    from inspections.services.ncr import close_ncrs_for, open_ncr
+
+    if stage not in InspectionStage.values:
+        raise InspectionError(f"Stage must be one of {', '.join(InspectionStage.values)}, not {stage!r}.")
+    weld = Weld.objects.select_for_update().select_related("assembly__job__client_criteria").get(pk=weld.pk)
+    if weld.assembly.is_closed:
+        raise InspectionError(f"Assembly {weld.assembly.piece_mark} is {weld.assembly.get_state_display().lower()}: "
+                              "its welds take no more inspections.")
+    if supersedes is not None:
+        supersedes = Inspection.objects.select_for_update().get(pk=supersedes.pk)
+        if supersedes.weld_id != weld.pk:
+            raise InspectionError("A correction must be of the same weld as the inspection it supersedes.")
+        if Inspection.objects.filter(supersedes=supersedes).exists():
+            raise InspectionError("That inspection has already been corrected; correct the latest one instead.")
+        if not reason.strip():
+            raise InspectionError("Say why the inspection is being corrected.")
+    verdict = judge(weld, observed)
+    key, version = weld.assembly.job.criteria_identity()
+    values = observed_for_engine(observed)
+    inspection = Inspection(
+        weld=weld, stage=stage, inspector=user, supersedes=supersedes, correction_reason=reason.strip(),
+        remarks=remarks, accepted=verdict.accepted, findings=findings_json(verdict, verdict.system),
+        criteria_key=key, criteria_version=version, **values,
+    )
+    inspection.save()
+    if stage == InspectionStage.FINAL:
+        if verdict.accepted:
+            close_ncrs_for(inspection)
+        else:
+            open_ncr(inspection, user, ncr_description(weld, verdict))
+    refresh_assembly_state(weld.assembly, user)
+    return inspection
+
+
+def ncr_description(weld: Weld, verdict: Verdict) -> str:
+    lines = [f"Weld {weld.mark} on {weld.assembly.piece_mark} rejected at final visual inspection "
+             f"({verdict.criteria_title}):"]
+    lines += [f"- {f.criterion}: {f.message}" for f in verdict.rejections]
+    return "\n".join(lines)

@@ -36,16 +36,17 @@ def accounts():
 def _users():
     users = {}
     for username, first, last, role, stamp in _ACCOUNTS:
-        user, _ = User.objects.get_or_create(username=username, defaults=dict(
+        user, created = User.objects.get_or_create(username=username, defaults=dict(
             first_name=first, last_name=last, role=role, stamp=stamp))
-        user.set_password(PASSWORD)
-        user.save()
+        if created:  # hashing is slow on purpose; a second run keeps the password it set
+            user.set_password(PASSWORD)
+            user.save(update_fields=["password"])
         users[role] = user
     return users
 
 
 def load() -> bool:
-    """Load the shop unless it is there; always (re)set the demo accounts. True when records were made."""
+    """Load the shop unless it is there; make the demo accounts that are missing. True when records were made."""
     from inspections.models import Job
 
     users = _users()

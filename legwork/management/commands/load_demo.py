@@ -1,7 +1,7 @@
 """Load the invented demo shop: Brannock Steelworks, its people, welders, procedures and three jobs.
 
 Nothing here describes a real shop, structure or person. Safe to run again: when the demo shop is
-already there it only resets the demo passwords; `--reset` empties the database first.
+already there it only adds demo accounts that are missing; `--reset` empties the database first.
 """
 
 from django.core.management import BaseCommand, call_command

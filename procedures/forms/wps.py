@@ -93,6 +93,9 @@ class WPSForm(forms.ModelForm):
         set_unit_system(self, _system_of(self, data, self.instance))
         _positive(self)
         self.fields["pqrs"].queryset = PQR.objects.order_by("number")
+        self.fields["pqrs"].label_from_instance = (
+            lambda pqr: f"{pqr.number}: {pqr.process} {pqr.electrode}, {pqr.position}, {pqr.base_metal}, "
+                        f"tested {pqr.test_date:%Y-%m-%d}{'' if pqr.passed else ' (not passed)'}")
         if self.instance.pk:
             self.initial["positions"] = self.instance.position_list
             self.initial["joint_types"] = self.instance.joint_type_list

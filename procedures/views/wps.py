@@ -18,7 +18,7 @@ from legwork.pdf import pdf_response, render_pdf
 from legwork.roles import role_required
 from procedures.electrodes import decode
 from procedures.forms.wps import PQRForm, ReasonForm, WPSForm
-from procedures.models.base import Process
+from procedures.models.base import JointType, Process
 from procedures.models.wps import PQR, WPS, ProcedureEvent, ProcedureStateError, WPSState
 
 PAGE_SIZE = 25
@@ -83,12 +83,12 @@ def variables(wps):
     heat = wps.heat_input_range()
     process = wps.get_process_display()
     if wps.process == Process.GMAW and wps.transfer:
-        process += f", {wps.get_transfer_display().lower()} transfer"
+        process += f"; transfer: {wps.get_transfer_display()}"
     return [
         ("Process and filler metal", [
             ("Process", process),
             ("Electrode", wps.electrode),
-            ("Electrode diameter", length(wps.electrode_diameter)),
+            ("Electrode diameter", diameter(wps.electrode_diameter, system)),
             ("Current and polarity", wps.get_current_display()),
         ]),
         ("Electrical and travel", [
@@ -110,7 +110,7 @@ def variables(wps):
         ]),
         ("Joints and base metal", [
             ("Positions", ", ".join(wps.position_list) or "—"),
-            ("Joint types", ", ".join(wps.joint_type_list) or "—"),
+            ("Joint types", ", ".join(JointType(j).label for j in wps.joint_type_list if j in JointType.values) or "—"),
             ("Base metals", wps.base_metals or "—"),
             ("Base metal thickness", _range(wps.thickness_min, wps.thickness_max, length)),
             ("Fillet size", _range(wps.fillet_size_min, wps.fillet_size_max, length)),
@@ -121,6 +121,19 @@ def variables(wps):
             ("Maximum interpass", temp(wps.interpass_max)),
         ]),
     ]
+
+
+def diameter(value, system):
+    """Wire is sold by decimal inch (0.045"), rod by fraction (1/8"): a fraction only when it is exact."""
+    if value is None:
+        return "—"
+    if system == "US" and not units.inch_fraction(value.inch)[3]:
+        return f'{units._plain(value.inch)}"'
+    return units.format_length(value, system)
+
+
+def in_order(codes, order=("F", "H", "V", "OH")):
+    return ", ".join(sorted(codes, key=lambda c: order.index(c) if c in order else len(order)))
 
 
 def _heat_text(heat, system):
@@ -141,6 +154,9 @@ def _detail_context(wps):
         "blockers": wps.approval_blockers(findings),
         "sections": variables(wps),
         "decoded": decoded,
+        "decoded_positions": in_order(decoded.positions) if decoded else "",
+        "decoded_currents": in_order(decoded.currents, ("AC", "DCEP", "DCEN")) if decoded else "",
+        "decoded_processes": ", ".join(sorted(decoded.processes)) if decoded else "",
         "decode_error": decode_error,
         "pqrs": list(wps.pqrs.all()),
         "events": list(wps.events.all()),
@@ -367,7 +383,7 @@ def pqr_rows(pqr):
     return [
         ("Process", pqr.get_process_display()),
         ("Electrode", pqr.electrode),
-        ("Electrode diameter", units.format_length(pqr.electrode_diameter, system) if pqr.electrode_diameter else "—"),
+        ("Electrode diameter", diameter(pqr.electrode_diameter, system)),
         ("Current and polarity", pqr.get_current_display()),
         ("Current", f"{units._plain(pqr.amperage)} A"),
         ("Arc voltage", f"{units._plain(pqr.voltage)} V"),

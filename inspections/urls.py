@@ -2,10 +2,37 @@
 
 from django.urls import path  # noqa: F401
 
+from inspections.views import criteria as criteria_views
+from inspections.views import jobs as job_views
+from inspections.views import ncr as ncr_views
+
 app_name = "inspections"
 
 urlpatterns = [
     # --- jobs, assemblies, weld maps, tablet inspection, NCRs, photos ---
+    # jobs, assemblies, weld maps, NCRs, criteria sets (inspections.views.jobs, .ncr, .criteria)
+    path("jobs/", job_views.job_list, name="job_list"),
+    path("jobs/new/", job_views.job_create, name="job_create"),
+    path("jobs/<int:pk>/", job_views.job_detail, name="job_detail"),
+    path("jobs/<int:pk>/assemblies/new/", job_views.assembly_create, name="assembly_create"),
+    path("jobs/<int:pk>/weld-map/import/", job_views.weldmap_import, name="weldmap_import"),
+    path("jobs/<int:pk>/weld-map.csv", job_views.weldmap_export, name="weldmap_export"),
+    path("assemblies/find/", job_views.assembly_find, name="assembly_find"),
+    path("assemblies/<int:pk>/", job_views.assembly_detail, name="assembly_detail"),
+    path("assemblies/<int:pk>/submit/", job_views.assembly_submit, name="assembly_submit"),
+    path("assemblies/<int:pk>/release/", job_views.assembly_release, name="assembly_release"),
+    path("assemblies/<int:pk>/welds/new/", job_views.weld_create, name="weld_create"),
+    path("assemblies/<int:pk>/weld-check/", job_views.weld_check, name="weld_check"),
+    path("welds/<int:pk>/", job_views.weld_detail, name="weld_detail"),
+    path("welds/<int:pk>/edit/", job_views.weld_edit, name="weld_edit"),
+    path("ncrs/", ncr_views.ncr_list, name="ncr_list"),
+    path("ncrs/<int:pk>/", ncr_views.ncr_detail, name="ncr_detail"),
+    path("ncrs/<int:pk>/disposition/<slug:kind>/", ncr_views.ncr_disposition, name="ncr_disposition"),
+    path("criteria/", criteria_views.criteria_list, name="criteria_list"),
+    path("criteria/derive/", criteria_views.criteria_derive, name="criteria_derive"),
+    path("criteria/client/<int:pk>/", criteria_views.criteria_client_detail, name="criteria_client_detail"),
+    path("criteria/<str:key>/", criteria_views.criteria_detail, name="criteria_detail"),
+    # end of jobs, assemblies, weld maps, NCRs, criteria sets
     # --- strength calculator and calculation sheets ---
     # --- travelers and packets ---
 ]

@@ -31,17 +31,19 @@ ACTIONS = {
     "inspection.record": "Record and sign inspections, attach photos",
     "ncr.raise": "Raise an NCR",
     "ncr.disposition": "Disposition an NCR",
+    "assembly.submit": "Send an assembly for final inspection",
     "assembly.release": "Release an assembly",
     "criteria.derive": "Derive a client's criteria set",
     "traveler.issue": "Issue travelers and job packets",
 }
 
 _ALLOWED = {
-    Role.WELDING_ENGINEER: {"procedure.draft", "procedure.submit", "welder.manage", "job.manage", "weld.record"},
-    Role.INSPECTOR: {"inspection.record", "ncr.raise", "weld.record"},
+    Role.WELDING_ENGINEER: {"procedure.draft", "procedure.submit", "welder.manage", "job.manage", "weld.record",
+                            "assembly.submit"},
+    Role.INSPECTOR: {"inspection.record", "ncr.raise", "weld.record", "assembly.submit"},
     Role.QA_LEAD: {
         "procedure.approve", "procedure.withdraw", "continuity.log", "ncr.raise", "ncr.disposition",
-        "assembly.release", "criteria.derive", "traveler.issue", "job.manage",
+        "assembly.release", "criteria.derive", "traveler.issue", "job.manage", "assembly.submit",
     },
     Role.VIEWER: set(),
 }

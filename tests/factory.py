@@ -93,5 +93,28 @@ class Factory:
         fields.update(kwargs)
         return Weld.objects.create(**fields)
 
+    def make_inspection(self, weld=None, accepted=True, stage="final", inspector=None, **kwargs):
+        """A signed inspection row as the tablet flow stores it (verdict given, not judged: for state tests)."""
+        from inspections.models import Inspection
+
+        fields = dict(weld=weld or self.make_weld(), stage=stage, inspector=inspector or self.make_user("inspector"),
+                      accepted=accepted, criteria_key="aws-d1.1-2020-static", criteria_version=1,
+                      findings=[{"criterion": "undersize", "ok": accepted, "message": "demo", "source": "demo"}])
+        if not accepted:
+            fields.setdefault("min_size", L("3/16 in"))
+            fields.setdefault("undersize_length", L("3 in"))
+        fields.update(kwargs)
+        return Inspection.objects.create(**fields)
+
+    def make_ncr(self, inspection=None, **kwargs):
+        """An open NCR from a rejected final inspection."""
+        from inspections.models import NCR
+
+        inspection = inspection or self.make_inspection(accepted=False)
+        fields = dict(number=f"NCR-{next(_counter):04d}", weld=inspection.weld, inspection=inspection,
+                      description="Leg undersize over 3 in at the north end", raised_by=inspection.inspector)
+        fields.update(kwargs)
+        return NCR.objects.create(**fields)
+
 
 __all__ = ["Factory", "L", "parse_force"]

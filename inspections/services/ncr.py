@@ -6,6 +6,7 @@ open -> closed (use-as-is: an engineer's name and date, with the as-inspected ca
 Every step writes an NCREvent and recomputes the assembly's state.
 """
 
+import copy
 from datetime import date
 
 from django.db import transaction
@@ -82,7 +83,11 @@ def repair_problems(ncr, wps, welder, on=None) -> dict[str, list[str]]:
     if welder is None:
         problems["repair_welder"] = ["Name the welder who makes the repair."]
     else:
-        check = assembly_steps.check_welder(welder, ncr.weld, on=on or timezone.localdate())
+        # The repair is welded to the repair WPS: judge the welder for the weld made with that procedure.
+        repaired = copy.copy(ncr.weld)
+        if wps is not None:
+            repaired.wps = wps
+        check = assembly_steps.check_welder(welder, repaired, on=on or timezone.localdate())
         if not check.allowed:
             problems["repair_welder"] = [f"{welder} may not make this weld: " + " ".join(check.reasons)]
     return problems

@@ -5,6 +5,7 @@ from django.urls import path  # noqa: F401
 from inspections.views import criteria as criteria_views
 from inspections.views import jobs as job_views
 from inspections.views import ncr as ncr_views
+from inspections.views import travelers as traveler_views
 
 app_name = "inspections"
 
@@ -35,4 +36,14 @@ urlpatterns = [
     # end of jobs, assemblies, weld maps, NCRs, criteria sets
     # --- strength calculator and calculation sheets ---
     # --- travelers and packets ---
+    path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),
+    path("assemblies/<int:pk>/travelers/issue/", traveler_views.traveler_issue, name="traveler_issue"),
+    path("travelers/<int:pk>.pdf", traveler_views.traveler_download, name="traveler_download"),
+    path("travelers/<int:pk>.pdf.sha256", traveler_views.traveler_sha256, name="traveler_sha256"),
+    path("jobs/<int:pk>/packets/", traveler_views.packet_list, name="packet_list"),
+    path("jobs/<int:pk>/packets/start/", traveler_views.packet_start, name="packet_start"),
+    path("packets/<int:pk>/", traveler_views.packet_detail, name="packet_detail"),
+    path("packets/<int:pk>/progress/", traveler_views.packet_progress, name="packet_progress"),
+    path("packets/<int:pk>.pdf", traveler_views.packet_download, name="packet_download"),
+    # end of travelers and packets
 ]

@@ -26,18 +26,27 @@ class RenderedPDF:
         return hashlib.sha256(self.content).hexdigest()
 
 
-def _static_fetcher(url, *args, **kwargs):
-    """Let templates use {% static %} paths without a web server, and refuse anything off this machine."""
-    from weasyprint.urls import default_url_fetcher
+def _static_fetcher():
+    """Let templates use {% static %} paths without a web server, and refuse anything off this machine.
 
-    prefix = "/" + settings.STATIC_URL.lstrip("/")
-    if url.startswith(prefix):
-        path = finders.find(url[len(prefix):])
-        if path:
-            return default_url_fetcher("file://" + path, *args, **kwargs)
-    if url.startswith(("data:", "file://")):
-        return default_url_fetcher(url, *args, **kwargs)
-    raise ValueError(f"PDF asked for {url!r}: only data: and static files are embedded (no network).")
+    WeasyPrint 70 takes a URLFetcher instance (a plain function no longer works): data: URIs (photos, QR
+    codes) and static files are fetched, anything else is refused.
+    """
+    from weasyprint.urls import URLFetcher
+
+    class LocalFetcher(URLFetcher):
+        def fetch(self, url, headers=None):
+            prefix = "/" + settings.STATIC_URL.lstrip("/")
+            for start in (prefix, "file://" + prefix):
+                if url.startswith(start):
+                    path = finders.find(url[len(start):])
+                    if path:
+                        return super().fetch("file://" + path, headers)
+            if url.startswith(("data:", "file://")):
+                return super().fetch(url, headers)
+            raise ValueError(f"PDF asked for {url!r}: only data: and static files are embedded (no network).")
+
+    return LocalFetcher(allowed_protocols=("data", "file"))
 
 
 def render_pdf(template: str, context: dict, filename: str) -> RenderedPDF:
@@ -47,7 +56,7 @@ def render_pdf(template: str, context: dict, filename: str) -> RenderedPDF:
     context = {"cautions": CAUTIONS, "safety_note": SAFETY_NOTE, "generated_at": timezone.now(),
                "shop_name": settings.LEGWORK_SHOP_NAME, **context}
     html = render_to_string(template, context)
-    content = HTML(string=html, base_url="/", url_fetcher=_static_fetcher).write_pdf()
+    content = HTML(string=html, base_url="/", url_fetcher=_static_fetcher()).write_pdf()
     return RenderedPDF(filename=filename, content=content)
 
 

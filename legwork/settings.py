@@ -191,3 +191,5 @@ LOGGING = {
 
 # Shown on every page and printed on every PDF (legwork.cautions).
 LEGWORK_SHOP_NAME = env_str("LEGWORK_SHOP_NAME", "Legwork")
+# Where people reach this Legwork: travelers print QR codes and links to it (no trailing slash needed).
+LEGWORK_BASE_URL = env_str("LEGWORK_BASE_URL", "http://127.0.0.1:8000")

@@ -4,6 +4,7 @@ from inspections.models.criteria import ClientCriteriaSet
 from inspections.models.inspection import Inspection, InspectionStage, Photo
 from inspections.models.jobs import Assembly, AssemblyEvent, AssemblyState, Job, Weld
 from inspections.models.ncr import NCR
+from inspections.models.traveler import JobPacket, PacketState, Traveler
 
 __all__ = ["NCR", "Assembly", "AssemblyEvent", "AssemblyState", "ClientCriteriaSet", "Inspection", "InspectionStage",
-           "Job", "Photo", "Weld"]
+           "Job", "JobPacket", "PacketState", "Photo", "Traveler", "Weld"]

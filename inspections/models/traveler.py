@@ -1,0 +1,182 @@
+"""Issued travelers (one PDF per assembly revision) and job packets built in the background.
+
+An issued traveler is a stored file with its SHA-256, never rendered again in place: printing it again
+serves the same bytes, and issuing after a change writes a new revision beside it. A packet is built
+by a background task (inspections.tasks) and moves queued -> running -> done | failed; once done its
+file, like a traveler's, is never replaced.
+"""
+
+from django.conf import settings
+from django.db import models, transaction
+from django.urls import reverse
+from django.utils import timezone
+
+from procedures.models.base import SignedRecordError
+
+
+def traveler_path(traveler, filename):
+    return f"travelers/{timezone.now():%Y/%m}/{filename}"
+
+
+def packet_path(packet, filename):
+    return f"packets/{timezone.now():%Y/%m}/{filename}"
+
+
+class TravelerQuerySet(models.QuerySet):
+    def update(self, **kwargs):
+        raise SignedRecordError("An issued traveler cannot be changed; issue a new revision.")
+
+    def delete(self):
+        raise SignedRecordError("An issued traveler cannot be deleted: customers hold copies of it.")
+
+
+class Traveler(models.Model):
+    """One issued revision of an assembly's traveler: the PDF, its hash, and the data it was made from."""
+
+    assembly = models.ForeignKey("inspections.Assembly", on_delete=models.PROTECT, related_name="travelers")
+    revision = models.PositiveIntegerField()
+    document_number = models.CharField(max_length=80, unique=True)
+    file = models.FileField(upload_to=traveler_path)
+    sha256 = models.CharField("SHA-256 of the file", max_length=64)
+    snapshot_sha256 = models.CharField(
+        "SHA-256 of the data", max_length=64,
+        help_text="Fingerprint of the gathered records (printed on the traveler); equal data, equal fingerprint")
+    pages = models.PositiveIntegerField()
+    size_bytes = models.PositiveIntegerField()
+    generator_version = models.CharField(max_length=80)
+    generated_at = models.DateTimeField(default=timezone.now)
+    generated_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
+    snapshot = models.JSONField(help_text="Everything the PDF shows, as gathered when it was issued")
+
+    objects = TravelerQuerySet.as_manager()
+
+    class Meta:
+        ordering = ["assembly", "-revision"]
+        constraints = [models.UniqueConstraint(fields=["assembly", "revision"], name="traveler_revision_unique")]
+
+    def __str__(self):
+        return self.document_number
+
+    def save(self, *args, **kwargs):
+        if self.pk is not None and not self._state.adding:
+            raise SignedRecordError("An issued traveler cannot be changed; issue a new revision.")
+        super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise SignedRecordError("An issued traveler cannot be deleted: customers hold copies of it.")
+
+    def get_absolute_url(self):
+        return reverse("inspections:traveler_download", args=[self.pk])
+
+    @property
+    def filename(self):
+        return f"{self.document_number}.pdf"
+
+
+class PacketState(models.TextChoices):
+    QUEUED = "queued", "Queued"
+    RUNNING = "running", "Building"
+    DONE = "done", "Done"
+    FAILED = "failed", "Failed"
+
+
+class PacketStateError(Exception):
+    """A packet step that does not apply to the packet's stored state."""
+
+
+class JobPacket(models.Model):
+    """A job's packet: cover, index, each assembly's issued traveler, the WPSs and welder summaries, open items."""
+
+    job = models.ForeignKey("inspections.Job", on_delete=models.PROTECT, related_name="packets")
+    document_number = models.CharField(max_length=80, unique=True)
+    assembly_pks = models.JSONField(help_text="The assemblies chosen, in packet order, as chosen")
+    travelers = models.ManyToManyField(Traveler, blank=True, related_name="packets",
+                                       help_text="The traveler revisions the packet holds")
+    state = models.CharField(max_length=8, choices=PacketState.choices, default=PacketState.QUEUED, editable=False)
+    progress_done = models.PositiveIntegerField(default=0, editable=False)
+    progress_total = models.PositiveIntegerField(default=0, editable=False)
+    step = models.CharField(max_length=120, blank=True, editable=False, help_text="What the worker is doing now")
+    file = models.FileField(upload_to=packet_path, blank=True, editable=False)
+    sha256 = models.CharField(max_length=64, blank=True, editable=False)
+    pages = models.PositiveIntegerField(null=True, blank=True, editable=False)
+    index = models.JSONField(default=list, editable=False, help_text="[{title, first_page, pages}] as printed")
+    error = models.TextField(blank=True, editable=False)
+    task_id = models.CharField(max_length=64, blank=True, editable=False)
+    requested_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
+    requested_at = models.DateTimeField(default=timezone.now, editable=False)
+    started_at = models.DateTimeField(null=True, blank=True, editable=False)
+    finished_at = models.DateTimeField(null=True, blank=True, editable=False)
+
+    class Meta:
+        ordering = ["-requested_at", "-pk"]
+
+    def __str__(self):
+        return self.document_number
+
+    def get_absolute_url(self):
+        return reverse("inspections:packet_detail", args=[self.pk])
+
+    @property
+    def percent(self) -> int:
+        if self.state == PacketState.DONE:
+            return 100
+        if not self.progress_total:
+            return 0
+        return min(99, int(100 * self.progress_done / self.progress_total))
+
+    @property
+    def finished(self) -> bool:
+        return self.state in (PacketState.DONE, PacketState.FAILED)
+
+    @property
+    def filename(self):
+        return f"{self.document_number}.pdf"
+
+    # --- steps: each checks the stored state under a lock and saves only what it changes -------------------
+
+    def _locked(self):
+        return JobPacket.objects.select_for_update().get(pk=self.pk)
+
+    def _apply(self, locked, **fields):
+        for name, value in fields.items():
+            setattr(locked, name, value)
+            setattr(self, name, value)
+        locked.save(update_fields=list(fields))
+
+    def start(self, total: int):
+        """queued -> running, with the number of steps the progress bar counts."""
+        with transaction.atomic():
+            # Lock: a worker retrying a task must not start a packet another worker already runs.
+            locked = self._locked()
+            if locked.state != PacketState.QUEUED:
+                raise PacketStateError(f"{locked} is {locked.get_state_display().lower()}, not queued.")
+            self._apply(locked, state=PacketState.RUNNING, started_at=timezone.now(), progress_total=total,
+                        progress_done=0, step="Starting")
+
+    def advance(self, done: int, step: str):
+        """Record progress while running (the page polls it)."""
+        with transaction.atomic():
+            locked = self._locked()
+            if locked.state != PacketState.RUNNING:
+                raise PacketStateError(f"{locked} is {locked.get_state_display().lower()}, not running.")
+            self._apply(locked, progress_done=min(done, locked.progress_total), step=step[:120])
+
+    def finish(self, file, sha256: str, pages: int, index: list):
+        """running -> done: the file is stored once and never replaced."""
+        with transaction.atomic():
+            locked = self._locked()
+            if locked.state != PacketState.RUNNING:
+                raise PacketStateError(f"{locked} is {locked.get_state_display().lower()}, not running.")
+            locked.file = file
+            self._apply(locked, file=locked.file, sha256=sha256, pages=pages, index=index,
+                        state=PacketState.DONE, progress_done=locked.progress_total, step="Done",
+                        finished_at=timezone.now())
+
+    def fail(self, message: str):
+        """queued | running -> failed, with what went wrong in words."""
+        with transaction.atomic():
+            locked = self._locked()
+            if locked.state in (PacketState.DONE, PacketState.FAILED):
+                raise PacketStateError(f"{locked} is already {locked.get_state_display().lower()}.")
+            self._apply(locked, state=PacketState.FAILED, error=message[:2000], step="Failed",
+                        finished_at=timezone.now())

@@ -1,0 +1,132 @@
+"""Travelers (issue, list of revisions, download) and job packets (choose, start, progress, download).
+
+Files are never served from media by URL: each download checks the login (LoginRequiredMiddleware) and
+sends the stored bytes with their SHA-256 in the X-Content-SHA256 header.
+"""
+
+from django.contrib import messages
+from django.core.exceptions import PermissionDenied
+from django.http import FileResponse, Http404, HttpResponse
+from django.shortcuts import get_object_or_404, redirect, render
+from django.views.decorators.http import require_POST, require_safe
+
+from inspections import packets
+from inspections import traveler as travelers
+from inspections.models import Assembly, Job, JobPacket, PacketState, Traveler
+from legwork.roles import can, role_required
+
+
+def _file_response(field, filename, sha256, inline=True):
+    try:
+        handle = field.open("rb")
+    except (FileNotFoundError, ValueError):
+        raise Http404("The stored file is missing; ask the administrator to restore it from the backup.")
+    response = FileResponse(handle, content_type="application/pdf", as_attachment=not inline, filename=filename)
+    response["X-Content-SHA256"] = sha256
+    return response
+
+
+# --- travelers ------------------------------------------------------------------------------------------------
+
+@require_safe
+def traveler_list(request, pk):
+    """Every issued revision of the assembly's traveler, newest first, and whether the records changed since."""
+    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    revisions = list(assembly.travelers.select_related("generated_by").order_by("-revision"))
+    latest = revisions[0] if revisions else None
+    changed = None
+    if can(request.user, "traveler.issue"):
+        # Only the person who can issue needs to know whether issuing would make a new revision.
+        changed = latest is None or latest.snapshot_sha256 != travelers.fingerprint(travelers.gather(assembly.pk))
+    return render(request, "inspections/traveler_list.html", {
+        "assembly": assembly, "job": assembly.job, "revisions": revisions, "latest": latest, "changed": changed})
+
+
+@role_required("traveler.issue")
+@require_POST
+def traveler_issue(request, pk):
+    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    traveler, created = travelers.issue(assembly, request.user)
+    if created:
+        messages.success(request, f"Issued {traveler.document_number} ({traveler.pages} pages).")
+    else:
+        messages.info(request, f"Nothing changed since {traveler.document_number}: it is the current traveler "
+                               "(the stored file, unchanged).")
+    return redirect("inspections:traveler_list", pk=assembly.pk)
+
+
+@require_safe
+def traveler_download(request, pk):
+    traveler = get_object_or_404(Traveler, pk=pk)
+    return _file_response(traveler.file, traveler.filename, traveler.sha256, inline=request.GET.get("dl") != "1")
+
+
+@require_safe
+def traveler_sha256(request, pk):
+    """The sidecar line, as `sha256sum -c` reads it."""
+    traveler = get_object_or_404(Traveler, pk=pk)
+    response = HttpResponse(f"{traveler.sha256}  {traveler.filename}\n", content_type="text/plain; charset=utf-8")
+    response["Content-Disposition"] = f'attachment; filename="{traveler.filename}.sha256"'
+    return response
+
+
+# --- packets --------------------------------------------------------------------------------------------------
+
+def _packet_page(request, job, errors=None, chosen=None, status=200):
+    assemblies = list(job.assemblies.order_by("piece_mark"))
+    latest = {}
+    for traveler in Traveler.objects.filter(assembly__job=job).only("assembly_id", "revision", "document_number"):
+        if traveler.assembly_id not in latest or traveler.revision > latest[traveler.assembly_id].revision:
+            latest[traveler.assembly_id] = traveler
+    rows = [(a, latest.get(a.pk)) for a in assemblies]
+    return render(request, "inspections/packet_list.html", {
+        "job": job, "rows": rows, "errors": errors or [],
+        "chosen": set(chosen) if chosen is not None else {a.pk for a in assemblies},
+        "packets": list(job.packets.select_related("requested_by")[:20]),
+    }, status=status)
+
+
+@require_safe
+def packet_list(request, pk):
+    job = get_object_or_404(Job, pk=pk)
+    return _packet_page(request, job)
+
+
+@role_required("traveler.issue")
+@require_POST
+def packet_start(request, pk):
+    job = get_object_or_404(Job, pk=pk)
+    try:
+        chosen = [int(v) for v in request.POST.getlist("assemblies")][:2000]
+    except ValueError:
+        return _packet_page(request, job, ["The assemblies chosen could not be read; choose them again."], [], 400)
+    try:
+        packet = packets.start_packet(job, chosen, request.user)
+    except packets.PacketError as exc:
+        return _packet_page(request, job, [str(exc)], chosen, 400)
+    return redirect(packet)
+
+
+def _packet(pk):
+    return get_object_or_404(JobPacket.objects.select_related("job", "requested_by"), pk=pk)
+
+
+@require_safe
+def packet_detail(request, pk):
+    return render(request, "inspections/packet_detail.html", {"packet": _packet(pk)})
+
+
+@require_safe
+def packet_progress(request, pk):
+    """The progress block alone; htmx polls it every second until the packet is done or failed."""
+    return render(request, "inspections/packet_progress.html", {"packet": _packet(pk)})
+
+
+@require_safe
+def packet_download(request, pk):
+    packet = _packet(pk)
+    if packet.state != PacketState.DONE:
+        raise Http404("The packet is not built yet.")
+    if not packet.file:
+        raise PermissionDenied("The packet has no file.")
+    return _file_response(packet.file, packet.filename, packet.sha256, inline=request.GET.get("dl") != "1")

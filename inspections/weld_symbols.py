@@ -1,0 +1,237 @@
+"""Draw a fillet weld symbol as SVG from a weld's data. Plain Python, no Django.
+
+Two conventions, chosen by the job's unit system:
+
+- US jobs: AWS A2.4 (Standard Symbols for Welding, Brazing, and Nondestructive Examination). One
+  reference line; the arrow-side weld is drawn BELOW the line, the other-side weld ABOVE it. Size to
+  the left of the symbol (fraction of an inch, no inch mark: "1/4"; unequal legs "1/4 x 3/8"), length
+  to the right ("12"), intermittent welds as length-pitch ("4-12", pitch centre to centre).
+- SI jobs: ISO 2553:2019 system A. A dual reference line: a solid reference line and a dashed
+  identification line below it. A weld on the arrow side is drawn on the solid line, one on the other
+  side on the dashed line; a weld on both sides needs no dashed line. The size carries its meaning as a
+  prefix: "a5" for a 5 mm throat, "z6" for a 6 mm leg (we store legs, so SI symbols print "z").
+  Intermittent welds as "l (e)": segment length and, in brackets, the gap between segments
+  (e = pitch - l); the number of segments "n x" goes first when it is known.
+
+Both: the fillet is a right triangle with its perpendicular leg on the LEFT; the all-around circle sits
+at the junction of arrow and reference line; the field-weld flag rises from the same junction and points
+toward the tail; a tail (a fork at the far end) carries a reference such as the WPS number.
+
+From memory, not checked against the documents: the ISO "l (e)" form and the "n x" prefix, placing the
+dashed line below the solid one (ISO 2553 allows either; below is what we draw), the unequal-leg form
+"z6 x 8", and the AWS field-flag direction (A2.4 allows either; toward the tail is what we draw).
+
+Every element carries a class (ws-ref-line, ws-id-line, ws-arrow, ws-fillet ws-arrow-side/ws-other-side,
+ws-size, ws-length, ws-all-around, ws-field-flag, ws-tail) so tests and stylesheets can find it; the SVG
+uses presentation attributes only (no style attribute: the pages' CSP forbids inline styles).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from xml.sax.saxutils import escape, quoteattr
+
+from legwork.units import Length, format_length, parse_length
+
+AWS = "AWS A2.4"
+ISO = "ISO 2553:2019"
+SIDES = ("arrow", "other", "both")
+
+# Geometry (SVG user units; the symbol is 270 x 90 and scales with its width attribute).
+WIDTH, HEIGHT = 270, 90
+REF_Y = 45  # the reference (solid) line
+ID_GAP = 6  # ISO: the dashed identification line lies this far below the solid line
+JUNCTION_X = 46  # where the arrow meets the reference line
+REF_END_X = 206  # far end of the reference line, where the tail starts
+ARROW_TIP = (10, 82)  # the arrowhead touches the joint here
+SYMBOL_X = 118  # left (perpendicular) leg of the fillet triangle
+LEG = 13  # triangle leg length
+FONT = "DejaVu Sans, Arial, sans-serif"
+INK = "#111"
+
+
+@dataclass(frozen=True)
+class WeldSymbol:
+    """What the symbol shows, already in words: dimensions as the convention prints them."""
+
+    convention: str  # AWS or ISO
+    sides: str  # "arrow", "other", "both"
+    size: str  # "1/4", "z6"
+    length: str = ""  # "12", "4-12", "50 (100)"
+    all_around: bool = False
+    field_weld: bool = False
+    tail: str = ""
+    joint: str = "fillet"
+
+    def description(self) -> str:
+        where = {"arrow": "arrow side", "other": "other side", "both": "both sides"}[self.sides]
+        parts = [f"{self.joint.capitalize()} weld, {where}", f"size {self.size}"]
+        if self.length:
+            parts.append(f"length {self.length}")
+        if self.all_around:
+            parts.append("all around")
+        if self.field_weld:
+            parts.append("field weld")
+        if self.tail:
+            parts.append(f"reference {self.tail}")
+        return f"{', '.join(parts)} ({self.convention})"
+
+
+def _as_length(value) -> Length | None:
+    if value is None or value == "":
+        return None
+    if isinstance(value, Length):
+        return value
+    return parse_length(str(value))
+
+
+def _number(length: Length, system: str) -> str:
+    """A dimension as symbols print it: 1/4 (no inch mark) on US jobs, 6 (no unit) on SI jobs."""
+    text = format_length(length, system)
+    return text[:-1] if system == "US" else text[: -len(" mm")]
+
+
+def symbol_for(system: str, *, sides="arrow", size=None, size2=None, length=None, pitch=None, segments=None,
+               all_around=False, field_weld=False, tail="", joint="fillet") -> WeldSymbol:
+    """The symbol of a weld in the convention of its job's unit system ("US": AWS A2.4, "SI": ISO 2553).
+
+    Lengths are legwork.units.Length values or strings with a unit ("1/4 in", "6 mm"). ValueError names what
+    is wrong (an unknown side or system, a pitch not longer than the segment).
+    """
+    if system not in ("US", "SI"):
+        raise ValueError(f"Unit system must be 'US' or 'SI', not {system!r}.")
+    if sides not in SIDES:
+        raise ValueError(f"Sides must be one of {', '.join(SIDES)}, not {sides!r}.")
+    size, size2, length, pitch = (_as_length(v) for v in (size, size2, length, pitch))
+    if size is None:
+        raise ValueError("A fillet weld symbol needs the leg size.")
+    if pitch is not None and length is None:
+        raise ValueError("An intermittent weld needs its segment length as well as its pitch.")
+    if pitch is not None and pitch.mm <= length.mm:
+        raise ValueError("The pitch (centre to centre of segments) must be longer than the segment length.")
+    if system == "US":
+        size_text = _number(size, "US") + (f" x {_number(size2, 'US')}" if size2 and size2 != size else "")
+        length_text = ""
+        if length is not None:
+            length_text = _number(length, "US") + (f"-{_number(pitch, 'US')}" if pitch else "")
+        return WeldSymbol(AWS, sides, size_text, length_text, bool(all_around), bool(field_weld), tail or "", joint)
+    size_text = "z" + _number(size, "SI") + (f" x {_number(size2, 'SI')}" if size2 and size2 != size else "")
+    length_text = ""
+    if length is not None:
+        length_text = _number(length, "SI")
+        if pitch is not None:
+            gap = Length(pitch.mm - length.mm)
+            length_text = f"{length_text} ({_number(gap, 'SI')})"
+            if segments:
+                length_text = f"{int(segments)} x {length_text}"
+    return WeldSymbol(ISO, sides, size_text, length_text, bool(all_around), bool(field_weld), tail or "", joint)
+
+
+# --- drawing ---------------------------------------------------------------------------------------------------
+
+def _line(x1, y1, x2, y2, cls, dashed=False, width="1.4"):
+    dash = ' stroke-dasharray="5 3"' if dashed else ""
+    return (f'<line class="{cls}" x1="{x1}" y1="{y1}" x2="{x2}" y2="{y2}" stroke="{INK}" '
+            f'stroke-width="{width}"{dash}/>')
+
+
+def _text(x, y, text, cls, anchor="start", size=11):
+    return (f'<text class="{cls}" x="{x}" y="{y}" font-family="{FONT}" font-size="{size}" fill="{INK}" '
+            f'text-anchor="{anchor}">{escape(text)}</text>')
+
+
+def _fillet(base_y, up: bool, side: str) -> str:
+    """Right triangle standing on base_y, perpendicular leg on the left, apex up (or down)."""
+    apex_y = base_y - LEG if up else base_y + LEG
+    points = f"{SYMBOL_X},{base_y} {SYMBOL_X},{apex_y} {SYMBOL_X + LEG},{base_y}"
+    return (f'<polygon class="ws-fillet ws-{side}-side" points="{points}" fill="none" stroke="{INK}" '
+            f'stroke-width="1.4" stroke-linejoin="miter"/>')
+
+
+def _dimensions(symbol: WeldSymbol, base_y, up: bool, side: str) -> list[str]:
+    # Text sits beside the triangle: baseline just clear of the line above it, or below it.
+    y = base_y - 3 if up else base_y + 11
+    parts = [_text(SYMBOL_X - 4, y, symbol.size, f"ws-size ws-{side}-side", anchor="end")]
+    if symbol.length:
+        parts.append(_text(SYMBOL_X + LEG + 4, y, symbol.length, f"ws-length ws-{side}-side"))
+    return parts
+
+
+def _arrow() -> list[str]:
+    tip_x, tip_y = ARROW_TIP
+    head = f"{tip_x},{tip_y} {tip_x + 4.2},{tip_y - 10.6} {tip_x + 10.4},{tip_y - 5.5}"
+    return [
+        '<g class="ws-arrow">',
+        _line(JUNCTION_X, REF_Y, tip_x + 5, tip_y - 5, "ws-leader"),
+        f'<polygon class="ws-arrowhead" points="{head}" fill="{INK}" stroke="{INK}" stroke-width="0.6"/>',
+        "</g>",
+    ]
+
+
+def _field_flag() -> str:
+    top = REF_Y - 30
+    pennant = f"{JUNCTION_X},{top} {JUNCTION_X + 14},{top + 5} {JUNCTION_X},{top + 10}"
+    return ('<g class="ws-field-flag">'
+            + _line(JUNCTION_X, REF_Y, JUNCTION_X, top, "ws-flag-staff")
+            + f'<polygon class="ws-flag" points="{pennant}" fill="{INK}" stroke="{INK}" stroke-width="0.6"/>'
+            + "</g>")
+
+
+def _tail(symbol: WeldSymbol) -> list[str]:
+    parts = ['<g class="ws-tail">',
+             _line(REF_END_X, REF_Y, REF_END_X + 9, REF_Y - 9, "ws-tail-line"),
+             _line(REF_END_X, REF_Y, REF_END_X + 9, REF_Y + 9, "ws-tail-line")]
+    if symbol.tail:
+        parts.append(_text(REF_END_X + 11, REF_Y + 3.5, symbol.tail, "ws-tail-text", size=8))
+    parts.append("</g>")
+    return parts
+
+
+def svg(symbol: WeldSymbol, width: str | None = None) -> str:
+    """The symbol as a standalone <svg> element (inline in HTML, or a file of its own)."""
+    label = symbol.description()
+    size_attrs = f' width="{width}"' if width else ""
+    out = [
+        f'<svg xmlns="http://www.w3.org/2000/svg" class="weld-symbol" viewBox="0 0 {WIDTH} {HEIGHT}"'
+        f'{size_attrs} role="img" aria-label={quoteattr(label)} data-convention={quoteattr(symbol.convention)}>',
+        f"<title>{escape(label)}</title>",
+        _line(JUNCTION_X, REF_Y, REF_END_X, REF_Y, "ws-ref-line"),
+    ]
+    iso = symbol.convention == ISO
+    if iso and symbol.sides != "both":
+        # ISO 2553 system A: the identification line says which side the solid line stands for.
+        out.append(_line(JUNCTION_X + 4, REF_Y + ID_GAP, REF_END_X - 4, REF_Y + ID_GAP, "ws-id-line", dashed=True,
+                         width="1.1"))
+    out += _arrow()
+    if symbol.joint == "fillet":
+        # (side, base line, triangle points up?) for each side the weld is on.
+        if iso:
+            placements = {"arrow": [("arrow", REF_Y, True)],
+                          "other": [("other", REF_Y + ID_GAP, False)],
+                          "both": [("arrow", REF_Y, True), ("other", REF_Y, False)]}[symbol.sides]
+        else:  # AWS A2.4: arrow side below the reference line, other side above
+            placements = {"arrow": [("arrow", REF_Y, False)],
+                          "other": [("other", REF_Y, True)],
+                          "both": [("arrow", REF_Y, False), ("other", REF_Y, True)]}[symbol.sides]
+        for side, base_y, up in placements:
+            out.append(_fillet(base_y, up, side))
+            out += _dimensions(symbol, base_y, up, side)
+    else:
+        # Only fillet welds are drawn; other joints say so in words where the symbol would be.
+        out.append(_text(SYMBOL_X, REF_Y - 4, f"{symbol.joint}: see drawing", "ws-note", size=9))
+    if symbol.all_around:
+        out.append(f'<circle class="ws-all-around" cx="{JUNCTION_X}" cy="{REF_Y}" r="5.5" fill="none" '
+                   f'stroke="{INK}" stroke-width="1.4"/>')
+    if symbol.field_weld:
+        out.append(_field_flag())
+    out += _tail(symbol)
+    out.append("</svg>")
+    return "".join(out)
+
+
+def weld_symbol_svg(system: str, width: str | None = None, **weld) -> str:
+    """symbol_for(system, **weld) drawn: the one call pages and PDFs make."""
+    return svg(symbol_for(system, **weld), width=width)
+
+
+__all__ = ["AWS", "ISO", "WeldSymbol", "svg", "symbol_for", "weld_symbol_svg"]

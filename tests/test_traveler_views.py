@@ -1,0 +1,119 @@
+"""Traveler and packet pages: roles, 404s, issue from the page, stored bytes served, progress polled."""
+
+import hashlib
+
+import pytest
+from django.urls import reverse
+
+from inspections.models import JobPacket, PacketState, Traveler
+from tests.pages_travelers import build_assembly
+
+pytestmark = pytest.mark.pdf
+
+
+@pytest.fixture(autouse=True)
+def _media(settings, tmp_path):
+    settings.MEDIA_ROOT = tmp_path / "media"
+
+
+def test_the_qa_lead_issues_from_the_page_and_both_revisions_are_listed(make, client_as):
+    assembly = build_assembly(make, welds=1)
+    client = client_as("qa_lead")
+    response = client.post(reverse("inspections:traveler_issue", args=[assembly.pk]))
+    assert response.status_code == 302
+    first = Traveler.objects.get()
+    page = client.get(reverse("inspections:traveler_list", args=[assembly.pk])).content.decode()
+    assert first.sha256 in page and "Nothing has changed" in page
+    client.post(reverse("inspections:traveler_issue", args=[assembly.pk]))
+    assert Traveler.objects.count() == 1  # no change, no new revision
+    assembly.welds.update(count=2)
+    client.post(reverse("inspections:traveler_issue", args=[assembly.pk]))
+    page = client.get(reverse("inspections:traveler_list", args=[assembly.pk])).content.decode()
+    assert [t.revision for t in assembly.travelers.all()] == [1, 0]
+    for t in assembly.travelers.all():
+        assert t.document_number in page and t.sha256 in page
+
+
+@pytest.mark.parametrize("role", ["welding_engineer", "inspector", "viewer"])
+def test_other_roles_may_not_issue(role, make, client_as):
+    assembly = make.make_assembly()
+    response = client_as(role).post(reverse("inspections:traveler_issue", args=[assembly.pk]))
+    assert response.status_code == 403 and not Traveler.objects.exists()
+    page = client_as(role).get(reverse("inspections:traveler_list", args=[assembly.pk])).content.decode()
+    assert "Issue traveler" not in page
+
+
+def test_download_serves_the_stored_bytes_with_their_hash(make, client_as, users):
+    from inspections.traveler import issue, read_stored
+
+    traveler, _ = issue(build_assembly(make, welds=1), users["qa_lead"])
+    stored = read_stored(traveler)
+    for _ in range(2):
+        response = client_as("viewer").get(reverse("inspections:traveler_download", args=[traveler.pk]))
+        body = b"".join(response.streaming_content)
+        assert body == stored and response["X-Content-SHA256"] == hashlib.sha256(body).hexdigest()
+    sidecar = client_as("viewer").get(reverse("inspections:traveler_sha256", args=[traveler.pk])).content.decode()
+    assert sidecar == f"{traveler.sha256}  {traveler.filename}\n"
+
+
+@pytest.mark.parametrize("name", ["traveler_list", "traveler_download", "traveler_sha256", "packet_list",
+                                  "packet_detail", "packet_progress", "packet_download"])
+def test_missing_records_are_404(name, client_as):
+    assert client_as("qa_lead").get(reverse(f"inspections:{name}", args=[999999])).status_code == 404
+
+
+def test_anonymous_visitors_are_sent_to_log_in(make, client_as):
+    assembly = make.make_assembly()
+    response = client_as(None).get(reverse("inspections:traveler_list", args=[assembly.pk]))
+    assert response.status_code == 302 and response.url.startswith(reverse("login"))
+
+
+def test_the_packet_page_starts_a_packet_and_polls_until_done(make, client_as, django_capture_on_commit_callbacks):
+    assembly = build_assembly(make, welds=1)
+    client = client_as("qa_lead")
+    page = client.get(reverse("inspections:packet_list", args=[assembly.job.pk])).content.decode()
+    assert f'value="{assembly.pk}"' in page and "Build packet" in page
+    with django_capture_on_commit_callbacks(execute=True):
+        response = client.post(reverse("inspections:packet_start", args=[assembly.job.pk]),
+                               {"assemblies": [assembly.pk]})
+    packet = JobPacket.objects.get()
+    assert response.status_code == 302 and response.url == packet.get_absolute_url()
+    assert packet.state == PacketState.DONE, packet.error
+    progress = client.get(reverse("inspections:packet_progress", args=[packet.pk])).content.decode()
+    assert "hx-trigger" not in progress and "Open PDF" in progress  # polling stops when done
+    download = client_as("viewer").get(reverse("inspections:packet_download", args=[packet.pk]))
+    assert b"".join(download.streaming_content).startswith(b"%PDF")
+
+
+def test_a_running_packet_keeps_polling_and_cannot_be_downloaded(make, client_as, users):
+    job = make.make_job()
+    packet = JobPacket.objects.create(job=job, document_number="PKT-R", assembly_pks=[],
+                                      requested_by=users["qa_lead"])
+    packet.start(4)
+    packet.advance(1, "Traveler B1 (1 of 2)")
+    progress = client_as("viewer").get(reverse("inspections:packet_progress", args=[packet.pk])).content.decode()
+    assert 'hx-trigger="every 1s"' in progress and 'value="25"' in progress and "Traveler B1" in progress
+    assert client_as("viewer").get(reverse("inspections:packet_download", args=[packet.pk])).status_code == 404
+
+
+@pytest.mark.parametrize("data", [{}, {"assemblies": ["x"]}, {"assemblies": ["999999"]}])
+def test_bad_packet_choices_are_refused_on_the_page_and_change_nothing(data, make, client_as):
+    job = make.make_assembly().job
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]), data)
+    assert response.status_code == 400 and not JobPacket.objects.exists()
+    assert "alert-danger" in response.content.decode()
+
+
+@pytest.mark.parametrize("role", ["welding_engineer", "inspector", "viewer"])
+def test_other_roles_may_not_start_packets(role, make, client_as):
+    assembly = make.make_assembly()
+    response = client_as(role).post(reverse("inspections:packet_start", args=[assembly.job.pk]),
+                                    {"assemblies": [assembly.pk]})
+    assert response.status_code == 403 and not JobPacket.objects.exists()
+
+
+def test_the_traveler_list_keeps_a_fixed_number_of_queries(make, client_as, django_assert_max_num_queries):
+    assembly = build_assembly(make, welds=3)
+    client = client_as("viewer")
+    with django_assert_max_num_queries(8):
+        client.get(reverse("inspections:traveler_list", args=[assembly.pk]))

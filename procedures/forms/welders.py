@@ -13,6 +13,7 @@ from django.conf import settings
 from django.core.exceptions import ValidationError
 from django.utils import timezone
 
+from legwork import units
 from legwork.fields import LengthFormField, set_unit_system
 from procedures import qualification as engine
 from procedures.electrodes import decode
@@ -65,6 +66,7 @@ class QualificationForm(forms.ModelForm):
         widgets = {"test_date": DateInput()}
         labels = {"joint": "Test weld", "report": "Test report (PDF or photo)"}
         help_texts = {
+            "unit_system": "For a thickness typed without a unit",
             "test_position": "Plate: 1G, 2G, 3G, 4G, 1F-4F, or both as 3G+4G; ISO 9606-1: PA-PJ",
             "electrode": "AWS classification, e.g. E7018, E71T-1C, ER70S-6",
             "iso_revalidation": "ISO 9606-1 only",
@@ -123,7 +125,7 @@ class QualificationForm(forms.ModelForm):
         data = super().clean()
         code, process, joint = data.get("code"), data.get("process"), data.get("joint")
         position, thickness, electrode = data.get("test_position"), data.get("test_thickness"), data.get("electrode")
-        system = data.get("unit_system") or UnitSystem.US
+        system = self._system_written(data)
         if code and joint and position:
             try:
                 engine.positions_qualified(position, code, joint=joint)
@@ -145,6 +147,19 @@ class QualificationForm(forms.ModelForm):
         if not self.errors:
             self._check_facts(data)
         return data
+
+    def _system_written(self, data):
+        """A thickness written with its unit ("3/8 in", "10 mm") makes the record that system; a bare number is
+        read in the system chosen. AWS D1.1M applies its own SI figures to a record in millimetres."""
+        chosen = data.get("unit_system") or UnitSystem.US
+        if data.get("test_thickness") is None:
+            return chosen
+        try:
+            written = units.length_system(self.data.get(self.add_prefix("test_thickness"), ""))
+        except ValueError:
+            written = None
+        data["unit_system"] = written or chosen
+        return data["unit_system"]
 
     def _check_electrode(self, code, process, electrode):
         decoded = decode(electrode)

@@ -12,13 +12,11 @@ from datetime import date
 from django.db import transaction
 from django.utils import timezone
 
-from inspections.criteria import length_text
 from inspections.models import NCR, InspectionStage
 from inspections.models.ncr import Disposition, NCREvent, NCRState
 from inspections.services import StepRefused
 from inspections.services import assemblies as assembly_steps
 from legwork.roles import require
-from legwork.units import length_from_mm
 from procedures.models.wps import WPSState
 
 
@@ -112,61 +110,22 @@ def disposition_repair(ncr, user, wps, welder, notes=""):
     return locked
 
 
-def _strength():
+def _capacity():
+    """inspections.services.capacity (over inspections.strength), or None while the strength engine is missing."""
     try:
-        from inspections import strength
+        from inspections.services import capacity
     except ImportError:
         return None
-    return strength if hasattr(strength, "as_inspected_capacity") else None
-
-
-def _fexx(weld) -> str:
-    """The filler metal's strength from the WPS electrode (procedures.electrodes), 70 ksi when none is named."""
-    if weld.wps_id:
-        try:
-            from procedures.electrodes import decode
-
-            return f"{decode(weld.wps.electrode).tensile_ksi} ksi"
-        except (ImportError, ValueError):
-            pass
-    return "70 ksi"
+    return capacity
 
 
 def capacity_calculation(ncr) -> dict | None:
-    """The as-inspected capacity (inspections.strength) of the NCR's weld, as stored JSON; None when the
-    strength engine is not there. Raises StepRefused when the measurements do not allow a calculation."""
-    strength = _strength()
-    if strength is None:
+    """The as-inspected capacity snapshot of the NCR's weld (inspections.services.capacity, AISC 360-16 J2.4 via
+    inspections.strength), as stored JSON; None when the strength engine is not there."""
+    capacity = _capacity()
+    if capacity is None:
         return None
-    weld, inspection = ncr.weld, ncr.inspection
-    system = weld.assembly.job.unit_system
-    spec = min(weld.size, weld.size2) if weld.size2 else weld.size  # the engine takes an equal-leg fillet
-    measured = min(inspection.min_size, spec) if inspection.min_size is not None else spec
-    undersize = inspection.undersize_length if inspection.undersize_length is not None else length_from_mm(0)
-    required = weld.required_strength
-
-    def text(length):  # with its unit, so the trail speaks in the job's system
-        return length_text(length, system)
-
-    try:
-        result = strength.as_inspected_capacity(
-            text(spec), text(weld.length), text(measured), text(min(undersize, weld.length)), fexx=_fexx(weld),
-            angle=weld.load_angle, required=None if required is None else f"{required.kn} kN")
-    except ValueError as exc:
-        raise StepRefused(f"The capacity cannot be calculated from this inspection: {exc}", code="capacity") from None
-    findings = [{"criterion": f.criterion, "ok": f.ok, "message": f.message, "source": f.source}
-                for f in result.findings]
-    return {
-        "engine": "inspections.strength.as_inspected_capacity",
-        "system": system,
-        "method": result.method,
-        "fexx": _fexx(weld),
-        "lrfd_kip": str(result.as_inspected.lrfd_kip), "asd_kip": str(result.as_inspected.asd_kip),
-        "lrfd_kN": str(result.as_inspected.lrfd_kN), "asd_kN": str(result.as_inspected.asd_kN),
-        "ratio": None if result.ratio is None else str(result.ratio),
-        "steps": [list(step) for step in result.steps],
-        "findings": findings,
-    }
+    return capacity.capacity_for_inspection(ncr.inspection)
 
 
 def disposition_use_as_is(ncr, user, engineer_name, approved_on, notes=""):
@@ -194,9 +153,10 @@ def disposition_use_as_is(ncr, user, engineer_name, approved_on, notes=""):
             if calculation is None:
                 raise StepRefused("This weld has a required strength, and the strength calculation is not "
                                   "available: use-as-is cannot be approved without it.", code="no_strength")
-            short = [f["message"] for f in calculation["findings"] if f["criterion"] == "demand_capacity"
-                     and not f["ok"]]
-            if short:
+            if calculation.get("error"):
+                raise StepRefused(f"This weld has a required strength: {calculation['error']}", code="capacity")
+            if calculation.get("ok") is False:
+                short = [f["message"] for f in calculation.get("findings", []) if not f.get("ok", True)]
                 raise StepRefused(["As inspected, the weld does not carry its required strength: repair or scrap.",
                                    *short], code="capacity")
         old = locked.state

@@ -153,7 +153,7 @@ class Length:
         return bool(self.mm)
 
     def __str__(self):
-        return f"{self.mm.normalize()} mm"
+        return f"{_plain(self.mm)} mm"
 
 
 def length_from_mm(mm) -> Length:
@@ -209,13 +209,20 @@ def inch_fraction(inches: Decimal, finest: int = 32) -> tuple[int, int, int, boo
 
 
 def format_length(length: Length, system: str = "US", *, mm_places: int = 2) -> str:
-    """Print a length as a person of that system writes it: 3/16", 1-1/2", 12"; 6 mm, 2.5 mm."""
+    """Print a length as a person of that system writes it: 3/16", 1-1/2", 12"; 6 mm, 2.5 mm.
+
+    US: exact binary fractions as they are, others to the nearest 1/32, except a length under 1/32 in
+    that is no binary fraction (0.01 in), which prints in decimal inches rather than as 0".
+    """
     if not isinstance(length, Length):
         length = parse_length(length)
     if _system(system) == "SI":
         value = length.mm.quantize(Decimal(1).scaleb(-mm_places), rounding=ROUND_HALF_UP)
         return f"{_plain(value)} mm"
-    whole, num, den, _ = inch_fraction(length.inch)
+    whole, num, den, exact = inch_fraction(length.inch)
+    if not exact and 0 < length.inch < Decimal(1) / 32:
+        # Tolerances finer than 1/32 (the 0.01 in undercut limit) would print as 0": show decimals.
+        return f'{_plain(length.inch.quantize(Decimal("0.001"), rounding=ROUND_HALF_UP))}"'
     if num == 0:
         return f'{whole}"'
     if whole == 0:
@@ -485,7 +492,6 @@ def parse_area(text, default_unit=None) -> Area:
         return text
     base, _ = _parse_scaled(text, "area", _AREA_UNITS, default_unit, allow_zero=False)
     return Area(base)
-
 
 
 # --- welding current, arc voltage, heat input: the electrical side of a WPS ------------------------

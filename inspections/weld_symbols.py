@@ -37,13 +37,14 @@ AWS = "AWS A2.4"
 ISO = "ISO 2553:2019"
 SIDES = ("arrow", "other", "both")
 
-# Geometry (SVG user units; the symbol is 270 x 90 and scales with its width attribute).
-WIDTH, HEIGHT = 270, 90
-REF_Y = 45  # the reference (solid) line
+# Geometry (SVG user units; the symbol is 270 x 60 and scales with its width attribute).
+WIDTH, HEIGHT = 270, 60  # drawn from y = TOP down
+TOP = 12
+REF_Y = 40  # the reference (solid) line
 ID_GAP = 6  # ISO: the dashed identification line lies this far below the solid line
 JUNCTION_X = 46  # where the arrow meets the reference line
 REF_END_X = 206  # far end of the reference line, where the tail starts
-ARROW_TIP = (10, 82)  # the arrowhead touches the joint here
+ARROW_TIP = (16, 68)  # the arrowhead touches the joint here
 SYMBOL_X = 118  # left (perpendicular) leg of the fillet triangle
 LEG = 13  # triangle leg length
 FONT = "DejaVu Sans, Arial, sans-serif"
@@ -169,7 +170,7 @@ def _arrow() -> list[str]:
 
 
 def _field_flag() -> str:
-    top = REF_Y - 30
+    top = REF_Y - 25
     pennant = f"{JUNCTION_X},{top} {JUNCTION_X + 14},{top + 5} {JUNCTION_X},{top + 10}"
     return ('<g class="ws-field-flag">'
             + _line(JUNCTION_X, REF_Y, JUNCTION_X, top, "ws-flag-staff")
@@ -192,7 +193,7 @@ def svg(symbol: WeldSymbol, width: str | None = None) -> str:
     label = symbol.description()
     size_attrs = f' width="{width}"' if width else ""
     out = [
-        f'<svg xmlns="http://www.w3.org/2000/svg" class="weld-symbol" viewBox="0 0 {WIDTH} {HEIGHT}"'
+        f'<svg xmlns="http://www.w3.org/2000/svg" class="weld-symbol" viewBox="0 {TOP} {WIDTH} {HEIGHT}"'
         f'{size_attrs} role="img" aria-label={quoteattr(label)} data-convention={quoteattr(symbol.convention)}>',
         f"<title>{escape(label)}</title>",
         _line(JUNCTION_X, REF_Y, REF_END_X, REF_Y, "ws-ref-line"),

@@ -3,6 +3,7 @@
 from django.contrib import admin
 
 from inspections.models import NCR, Assembly, AssemblyEvent, ClientCriteriaSet, Inspection, Job, Photo, Weld
+from inspections.models.ncr import NCREvent
 from procedures.admin import AppendOnlyAdmin
 
 
@@ -24,7 +25,7 @@ class WeldAdmin(admin.ModelAdmin):
     list_select_related = ["assembly", "wps"]
 
 
-for model in (Inspection, Photo, AssemblyEvent, ClientCriteriaSet):
+for model in (Inspection, Photo, AssemblyEvent, NCREvent, ClientCriteriaSet):
     admin.site.register(model, AppendOnlyAdmin)
 
 

@@ -2,7 +2,7 @@
 
 from django.contrib import admin
 
-from procedures.models import PQR, WPS, ContinuityEntry, ProcedureEvent, Qualification, Welder
+from procedures.models import PQR, WPS, ContinuityEntry, ProcedureEvent, Qualification, Welder, WelderEvent
 
 
 class AppendOnlyAdmin(admin.ModelAdmin):
@@ -32,11 +32,23 @@ class WPSAdmin(admin.ModelAdmin):
 
 
 admin.site.register(ProcedureEvent, AppendOnlyAdmin)
+admin.site.register(WelderEvent, AppendOnlyAdmin)
 
 
 @admin.register(PQR)
 class PQRAdmin(admin.ModelAdmin):
+    """A PQR behind a procedure that is (or was) approved records a test that happened: read-only."""
+
     list_display = ["number", "process", "electrode", "test_date"]
+
+    def _in_use(self, obj):
+        return obj is not None and obj.procedures.exclude(state="draft").exists()
+
+    def has_change_permission(self, request, obj=None):
+        return super().has_change_permission(request, obj) and not self._in_use(obj)
+
+    def has_delete_permission(self, request, obj=None):
+        return super().has_delete_permission(request, obj) and not self._in_use(obj)
 
 
 @admin.register(Welder)
@@ -46,7 +58,9 @@ class WelderAdmin(admin.ModelAdmin):
 
 
 @admin.register(Qualification)
-class QualificationAdmin(admin.ModelAdmin):
+class QualificationAdmin(AppendOnlyAdmin):
+    """A welder's test record states what happened at the test: recorded through the welder page, never edited."""
+
     list_display = ["welder", "process", "joint", "test_position", "test_date", "result"]
     list_select_related = ["welder"]
 

@@ -21,7 +21,7 @@ from procedures.models.base import JointType, Position, Process, UnitSystem
 from procedures.models.welders import Qualification, QualificationCode, Welder
 from procedures.models.wps import WPS
 
-REPORT_MAX_BYTES = getattr(settings, "LEGWORK_REPORT_MAX_BYTES", 10 * 1024 * 1024)
+REPORT_MAX_BYTES = settings.LEGWORK_REPORT_MAX_BYTES
 REPORT_KINDS = {".pdf": "PDF", ".png": "PNG", ".jpg": "JPEG", ".jpeg": "JPEG"}
 
 

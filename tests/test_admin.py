@@ -1,0 +1,48 @@
+"""The admin cannot change what is signed: approved procedures, test records, inspections, history."""
+
+import pytest
+from django.urls import reverse
+
+from procedures.models.wps import WPSState
+
+
+@pytest.fixture
+def admin_client_(client, make):
+    admin = make.make_user("qa_lead", username="shop-admin", is_staff=True, is_superuser=True)
+    client.force_login(admin)
+    return client
+
+
+def test_an_approved_wps_cannot_be_changed_in_the_admin(admin_client_, make):
+    wps = make.make_wps(state=WPSState.APPROVED)
+    url = reverse("admin:procedures_wps_change", args=[wps.pk])
+    response = admin_client_.post(url, {"title": "Changed behind the QA lead's back"})
+    assert response.status_code == 403
+    wps.refresh_from_db()
+    assert wps.title != "Changed behind the QA lead's back"
+
+
+def test_a_draft_wps_can_still_be_opened_in_the_admin(admin_client_, make):
+    wps = make.make_wps()
+    assert admin_client_.get(reverse("admin:procedures_wps_change", args=[wps.pk])).status_code == 200
+
+
+def test_a_welder_test_record_is_read_only_in_the_admin(admin_client_, make):
+    qualification = make.make_qualification()
+    url = reverse("admin:procedures_qualification_change", args=[qualification.pk])
+    assert admin_client_.post(url, {"examiner": "someone else"}).status_code == 403
+    assert admin_client_.post(reverse("admin:procedures_qualification_delete", args=[qualification.pk]),
+                              {"post": "yes"}).status_code == 403
+
+
+def test_a_pqr_behind_an_approved_wps_is_read_only_in_the_admin(admin_client_, make):
+    pqr = make.make_pqr()
+    wps = make.make_wps(state=WPSState.APPROVED)
+    wps.pqrs.add(pqr)
+    assert admin_client_.post(reverse("admin:procedures_pqr_change", args=[pqr.pk]), {}).status_code == 403
+
+
+@pytest.mark.parametrize("model", ["inspections_inspection", "inspections_ncr", "procedures_procedureevent",
+                                   "procedures_continuityentry", "inspections_assemblyevent"])
+def test_signed_records_and_history_cannot_be_added_in_the_admin(admin_client_, model):
+    assert admin_client_.get(reverse(f"admin:{model}_add")).status_code == 403

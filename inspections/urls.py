@@ -5,6 +5,7 @@ from django.urls import path  # noqa: F401
 from inspections.views import criteria as criteria_views
 from inspections.views import jobs as job_views
 from inspections.views import ncr as ncr_views
+from inspections.views import strength as strength_views
 from inspections.views import travelers as traveler_views
 
 app_name = "inspections"
@@ -35,6 +36,15 @@ urlpatterns = [
     path("criteria/<str:key>/", criteria_views.criteria_detail, name="criteria_detail"),
     # end of jobs, assemblies, weld maps, NCRs, criteria sets
     # --- strength calculator and calculation sheets ---
+    path("strength/", strength_views.strength_calculator, name="strength_calculator"),
+    path("strength/sheet/", strength_views.strength_sheet, name="strength_sheet"),
+    path("strength/sheet.pdf", strength_views.strength_sheet_pdf, name="strength_sheet_pdf"),
+    path("weld/<int:pk>/capacity/", strength_views.weld_capacity, name="weld_capacity"),
+    path("weld/<int:pk>/capacity.pdf", strength_views.weld_capacity_pdf, name="weld_capacity_pdf"),
+    path("inspection/<int:pk>/capacity/", strength_views.inspection_capacity, name="inspection_capacity"),
+    path("inspection/<int:pk>/capacity.pdf", strength_views.inspection_capacity_pdf,
+         name="inspection_capacity_pdf"),
+    # end of strength calculator and calculation sheets
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),
     path("assemblies/<int:pk>/travelers/issue/", traveler_views.traveler_issue, name="traveler_issue"),

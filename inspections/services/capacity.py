@@ -122,7 +122,7 @@ def _findings(findings) -> list:
 
 
 def _ratio(value: Decimal | None) -> str | None:
-    return None if value is None else _fig(value, 3)
+    return None if value is None else format(significant(Decimal(value), 3), "f")  # 1.50, 0.619
 
 
 def _snapshot(kind: str, title: str, function: str, system: str, method: str) -> dict:
@@ -163,8 +163,8 @@ def _lines(weld) -> int:
 
 def _subject(weld) -> list:
     assembly = weld.assembly
-    return [("Job", str(assembly.job)), ("Assembly", f"{assembly.piece_mark} (drawing {assembly.drawing} rev "
-                                                       f"{assembly.drawing_revision})"), ("Weld", weld.mark)]
+    return [["Job", str(assembly.job)], ["Assembly", f"{assembly.piece_mark} (drawing {assembly.drawing} rev "
+                                                       f"{assembly.drawing_revision})"], ["Weld", weld.mark]]
 
 
 def _weld_inputs(weld, system: str, fexx: str, fexx_source: str) -> list:
@@ -262,8 +262,8 @@ def capacity_for_inspection(inspection, method: str = "LRFD") -> dict:
     snapshot = _snapshot("as_inspected", f"As-inspected capacity of weld {weld.mark}", "as_inspected_capacity",
                          system, method)
     snapshot["subject"] = _subject(weld) + [
-        ("Inspection", f"{inspection.get_stage_display()}, {timezone.localtime(inspection.inspected_at):%Y-%m-%d %H:%M}"
-                       f", {inspection.inspector}, {'accepted' if inspection.accepted else 'rejected'}")]
+        ["Inspection", f"{inspection.get_stage_display()}, {timezone.localtime(inspection.inspected_at):%Y-%m-%d %H:%M}"
+                       f", {inspection.inspector}, {'accepted' if inspection.accepted else 'rejected'}"]]
     snapshot["links"] = {"sheet": reverse("inspections:inspection_capacity", args=[inspection.pk]),
                          "pdf": reverse("inspections:inspection_capacity_pdf", args=[inspection.pk])}
     if weld.joint_type != "fillet":
@@ -462,7 +462,9 @@ def capacity_context(*, weld=None, inspection=None, ncr=None, method: str = "LRF
 
     NCR: the calculation stored with its use-as-is disposition when there is one (as issued, never recomputed),
     otherwise the live figure from the inspection that opened it. Weld: the design capacity, and the as-inspected
-    capacity of its latest current inspection when that found a leg under size."""
+    capacity of its latest current inspection when that found a leg under size. Inspection: the as-inspected
+    capacity when it found a leg under size (nothing otherwise: a full-size weld has its design capacity).
+    The inspection should come with weld__wps selected, else one query reads the WPS."""
     capacities = []
     if ncr is not None:
         stored = normalize(ncr.capacity_calculation)
@@ -472,12 +474,18 @@ def capacity_context(*, weld=None, inspection=None, ncr=None, method: str = "LRF
         else:
             capacities.append(capacity_for_inspection(ncr.inspection, method))
     elif inspection is not None:
-        capacities.append(capacity_for_inspection(inspection, method))
+        if found_undersize(inspection, inspection.weld):
+            capacities.append(capacity_for_inspection(inspection, method))
     elif weld is not None:
         capacities.append(capacity_for_weld(weld, method))
         latest = latest_inspection(weld)
-        smallest = min(weld.size, weld.size2) if weld.size2 is not None else weld.size
-        if latest is not None and latest.min_size is not None and latest.min_size < smallest:
+        if latest is not None and found_undersize(latest, weld):
             latest.weld = weld  # already loaded with its job and WPS
             capacities.append(capacity_for_inspection(latest, method))
     return {"capacities": capacities}
+
+
+def found_undersize(inspection, weld) -> bool:
+    """Did the inspection record a leg under the specified size? Only then is an as-inspected figure news."""
+    smallest = min(weld.size, weld.size2) if weld.size2 is not None else weld.size
+    return inspection.min_size is not None and inspection.min_size < smallest

@@ -351,9 +351,9 @@ def _canopy(job, users, procedures, welders, today):
     truss = Assembly.objects.create(job=job, piece_mark="K-07", drawing="NV-C-210", drawing_revision="B",
                                     quantity=8, description="Canopy truss node, S355 plates")
     k1 = _weld(truss, "N1", gmaw, [ingrid], day, size=L("6 mm"), length=L("220 mm"), count=2, sides="both",
-               thickness1=L("10 mm"), thickness2=L("15 mm"), position="H")
+               thickness1=L("10 mm"), thickness2=L("15 mm"), position="PB")
     k2 = _weld(truss, "N2", gmaw, [ingrid], day, size=L("5 mm"), length=L("140 mm"), count=4,
-               thickness1=L("8 mm"), thickness2=L("10 mm"), position="F")
+               thickness1=L("8 mm"), thickness2=L("10 mm"), position="PA")
     _inspect(k1, users, throat=L("4.3 mm"), undercut_depth=L("0.3 mm"))
     _inspect(k2, users, throat=L("3.5 mm"), pore_max=L("1.5 mm"))
 

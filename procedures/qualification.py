@@ -428,6 +428,27 @@ class QualificationFacts:
 _ALL_POSITIONS = set(AWS_POSITIONS) | set(ISO_POSITIONS)
 
 
+# A weld map may record its position in the other system's words. The correspondence (shared domain.md,
+# published): 1F = PA, 2F = PB, 3F = PF or PG, 4F = PD; 1G = PA, 2G = PC, 3G = PF or PG, 4G = PE.
+ISO_TO_AWS = {"PA": "F", "PB": "H", "PC": "H", "PD": "OH", "PE": "OH", "PF": "V", "PG": "V"}
+AWS_TO_ISO = {"fillet": {"F": "PA", "H": "PB", "OH": "PD"}, "groove": {"F": "PA", "H": "PC", "OH": "PE"}}
+
+
+def _translate_position(position, code, joint):
+    """An ISO 6947 position on an AWS job reads as F/H/V/OH; F/H/OH on an ISO job read as ISO 6947 codes.
+
+    V on an ISO job is refused: ISO tells vertical-up (PF) from vertical-down (PG), AWS letters do not.
+    """
+    if code == AWS and position in ISO_TO_AWS:
+        return ISO_TO_AWS[position]
+    if code == ISO and position in AWS_POSITIONS:
+        if position == "V":
+            raise ValueError("An ISO 9606-1 job needs the vertical direction: record the weld as PF (vertical up) "
+                             "or PG (vertical down), not V.")
+        return AWS_TO_ISO.get(joint, AWS_TO_ISO["fillet"])[position]
+    return position
+
+
 @dataclass(frozen=True)
 class WeldDemand:
     """What a weld asks of the welder: process, joint, position, base metal thickness, electrode, code."""
@@ -448,6 +469,7 @@ class WeldDemand:
         put("electrode", _electrode(self.electrode))
         known = AWS_POSITIONS if self.code == AWS else ISO_POSITIONS
         position = self.position.strip().upper() if isinstance(self.position, str) else None
+        position = _translate_position(position, self.code, self.joint)
         if position not in known:
             hint = " (ISO codes are for an ISO 9606-1 job)" if position in _ALL_POSITIONS else ""
             raise ValueError(f"Weld position for {self.code} must be one of {', '.join(known)}{hint}, "

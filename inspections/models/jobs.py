@@ -6,7 +6,7 @@ from django.urls import reverse
 from django.utils import timezone
 
 from legwork.fields import ForceField, LengthField
-from procedures.models.base import JointType, Position, UnitSystem
+from procedures.models.base import WELD_POSITION_CHOICES, JointType, Position, UnitSystem
 
 
 class Job(models.Model):
@@ -129,7 +129,7 @@ class Weld(models.Model):
     pitch = LengthField("pitch (intermittent)", null=True, blank=True)
     thickness1 = LengthField("thickness of part 1")
     thickness2 = LengthField("thickness of part 2")
-    position = models.CharField(max_length=2, choices=Position.choices, default=Position.F)
+    position = models.CharField(max_length=2, choices=WELD_POSITION_CHOICES, default=Position.F)
     wps = models.ForeignKey("procedures.WPS", null=True, blank=True, on_delete=models.PROTECT, related_name="welds",
                             verbose_name="WPS")
     welders = models.ManyToManyField("procedures.Welder", blank=True, related_name="welds")

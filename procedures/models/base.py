@@ -24,6 +24,15 @@ class Position(models.TextChoices):
     OH = "OH", "Overhead"
 
 
+# A weld's position on the weld map: AWS words, or ISO 6947 codes for a metric shop's ISO jobs.
+WELD_POSITION_CHOICES = [
+    ("AWS", Position.choices),
+    ("ISO 6947", [("PA", "PA flat"), ("PB", "PB horizontal-vertical"), ("PC", "PC horizontal"),
+                  ("PD", "PD horizontal-overhead"), ("PE", "PE overhead"), ("PF", "PF vertical up"),
+                  ("PG", "PG vertical down")]),
+]
+
+
 class Current(models.TextChoices):
     AC = "AC", "AC"
     DCEP = "DCEP", "DCEP (reverse)"

@@ -606,11 +606,11 @@ def test_bad_qualification_facts_are_refused(changes, message):
 @pytest.mark.parametrize(
     "changes, message",
     [
-        (dict(position="PA"), "ISO codes are for an ISO 9606-1 job"),
         (dict(position="sideways"), "must be one of F, H, V, OH"),
         (dict(position=None), "must be one of"),
         (dict(code=ISO, position="PB", electrode=None), "a butt weld cannot be in PB"),  # ISO 6947
-        (dict(code=ISO, position="V"), "PA, PB"),
+        (dict(code=ISO, position="V"), "PF \\(vertical up\\) or PG"),
+        (dict(code=ISO, position="P9"), "PA, PB"),
         (dict(thickness="0 mm"), "more than zero"),
         (dict(thickness=None), "length must be text"),
         (dict(process=None), "Process must be one of"),
@@ -690,3 +690,29 @@ def test_any_input_gives_an_answer_or_a_value_error(junk):
             call()
         except ValueError:
             pass
+
+
+# --- positions written in the other system's words (shared domain.md: ISO 6947 / AWS correspondence, published) --
+
+def test_an_iso_position_on_an_aws_weld_reads_as_the_aws_letter():
+    from procedures.qualification import WeldDemand
+
+    assert WeldDemand("FCAW", "fillet", "PB", "1/2 in").position == "H"
+    assert WeldDemand("FCAW", "fillet", "PG", "1/2 in").position == "V"
+    assert WeldDemand("FCAW", "fillet", "PD", "1/2 in").position == "OH"
+
+
+def test_an_aws_letter_on_an_iso_weld_reads_as_the_iso_code_for_its_joint():
+    from procedures.qualification import WeldDemand
+
+    iso = "ISO 9606-1:2012"
+    assert WeldDemand("GMAW", "fillet", "H", "10 mm", code=iso).position == "PB"
+    assert WeldDemand("GMAW", "groove", "H", "10 mm", code=iso).position == "PC"
+    assert WeldDemand("GMAW", "groove", "OH", "10 mm", code=iso).position == "PE"
+
+
+def test_vertical_without_its_direction_is_refused_on_an_iso_weld():
+    from procedures.qualification import WeldDemand
+
+    with pytest.raises(ValueError, match="PF .vertical up. or PG"):
+        WeldDemand("GMAW", "fillet", "V", "10 mm", code="ISO 9606-1:2012")

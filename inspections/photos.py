@@ -8,11 +8,13 @@ over JPEG on current tablets.
 
 import hashlib
 import io
+import threading
 import warnings
+from contextlib import contextmanager
 from dataclasses import dataclass
 
 from django.conf import settings
-from PIL import Image, ImageOps, UnidentifiedImageError
+from PIL import Image, ImageFile, ImageOps, UnidentifiedImageError
 
 ALLOWED = {"JPEG": ("image/jpeg", "jpg"), "PNG": ("image/png", "png"), "WEBP": ("image/webp", "webp")}
 THUMBNAIL_PX = 320
@@ -47,10 +49,8 @@ def clean_photo(upload) -> CleanPhoto:
     if size > max_bytes:
         raise PhotoError(f"The photo is {_mb(size)}; the limit is {_mb(max_bytes)}. Take it at a lower resolution.")
     upload.seek(0)
-    # Pillow's own bomb guard reads this global: warn at the limit, refuse at twice it. We refuse at the limit.
-    Image.MAX_IMAGE_PIXELS = max_pixels
     try:
-        with warnings.catch_warnings():
+        with _strict_pillow(max_pixels), warnings.catch_warnings():
             warnings.simplefilter("error", Image.DecompressionBombWarning)
             with Image.open(upload, formats=list(ALLOWED)) as image:
                 fmt = image.format
@@ -71,6 +71,26 @@ def clean_photo(upload) -> CleanPhoto:
         raise PhotoError(f"The photo could not be read ({type(exc).__name__}): it may be damaged or cut short; "
                          "take it again.") from None
     return cleaned
+
+
+_PILLOW_GLOBALS = threading.Lock()
+
+
+@contextmanager
+def _strict_pillow(max_pixels):
+    """Pillow's limits are process globals: set ours while decoding and put back what was there.
+
+    WeasyPrint sets ImageFile.LOAD_TRUNCATED_IMAGES = True when imported (it draws what it can of a broken image);
+    an upload cut short must be refused instead, so it is off while a photo is decoded. Pillow's own bomb guard
+    reads MAX_IMAGE_PIXELS (a warning at the limit, an error at twice it); we refuse at the limit.
+    """
+    with _PILLOW_GLOBALS:
+        saved = ImageFile.LOAD_TRUNCATED_IMAGES, Image.MAX_IMAGE_PIXELS
+        ImageFile.LOAD_TRUNCATED_IMAGES, Image.MAX_IMAGE_PIXELS = False, max_pixels
+        try:
+            yield
+        finally:
+            ImageFile.LOAD_TRUNCATED_IMAGES, Image.MAX_IMAGE_PIXELS = saved
 
 
 def _reencode(image: Image.Image, fmt: str) -> CleanPhoto:

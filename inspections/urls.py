@@ -3,6 +3,7 @@
 from django.urls import path  # noqa: F401
 
 from inspections.views import criteria as criteria_views
+from inspections.views import inspect as inspect_views
 from inspections.views import jobs as job_views
 from inspections.views import ncr as ncr_views
 from inspections.views import strength as strength_views
@@ -35,6 +36,17 @@ urlpatterns = [
     path("criteria/client/<int:pk>/", criteria_views.criteria_client_detail, name="criteria_client_detail"),
     path("criteria/<str:key>/", criteria_views.criteria_detail, name="criteria_detail"),
     # end of jobs, assemblies, weld maps, NCRs, criteria sets
+    # tablet inspection and photos (inspections.views.inspect)
+    path("inspect/", inspect_views.inspect_home, name="inspect_home"),
+    path("a/<int:pk>/", inspect_views.inspect_assembly, name="inspect_assembly"),
+    path("inspect/weld/<int:pk>/", inspect_views.inspect_weld, name="inspect_weld"),
+    path("inspect/weld/<int:pk>/preview/", inspect_views.inspect_preview, name="inspect_preview"),
+    path("inspection/<int:pk>/", inspect_views.inspection_detail, name="inspection_detail"),
+    path("inspection/<int:pk>/correct/", inspect_views.inspection_correct, name="inspection_correct"),
+    path("inspection/<int:pk>/photos/", inspect_views.photo_add, name="photo_add"),
+    path("photos/<int:pk>/", inspect_views.photo_file, name="photo_file"),
+    path("photos/<int:pk>/thumbnail/", inspect_views.photo_file, {"size": "thumbnail"}, name="photo_thumbnail"),
+    # end of tablet inspection
     # --- strength calculator and calculation sheets ---
     path("strength/", strength_views.strength_calculator, name="strength_calculator"),
     path("strength/sheet/", strength_views.strength_sheet, name="strength_sheet"),

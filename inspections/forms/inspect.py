@@ -109,6 +109,7 @@ class InspectionForm(forms.ModelForm):
 class CorrectionForm(InspectionForm):
     correction_reason = forms.CharField(
         label="Why is this inspection being corrected?", max_length=2000,
+        error_messages={"required": "Say why the inspection is being corrected."},
         widget=forms.Textarea(attrs={"rows": 2}),
         help_text="Kept with both records: e.g. 'misread the gauge on the web side'.")
 

@@ -11,7 +11,7 @@ from decimal import Decimal
 from django.db import transaction
 
 from inspections.acceptance import Verdict, evaluate
-from inspections.models import Inspection, InspectionStage, Weld
+from inspections.models import Assembly, AssemblyState, Inspection, InspectionStage, Weld
 from inspections.models.inspection import COUNT_OBSERVATIONS, FLAG_OBSERVATIONS, LENGTH_OBSERVATIONS
 from legwork.units import Length, format_length
 
@@ -110,9 +110,12 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
 
     if stage not in InspectionStage.values:
         raise InspectionError(f"Stage must be one of {', '.join(InspectionStage.values)}, not {stage!r}.")
-    weld = Weld.objects.select_for_update().select_related("assembly__job__client_criteria").get(pk=weld.pk)
-    if weld.assembly.is_closed:
-        raise InspectionError(f"Assembly {weld.assembly.piece_mark} is {weld.assembly.get_state_display().lower()}: "
+    # Lock the weld row (a no-op on SQLite, whose IMMEDIATE transaction already holds the write lock), and read
+    # the assembly's state afresh under it; the weld map data itself is what the form was judged against.
+    Weld.objects.select_for_update().filter(pk=weld.pk).values_list("pk", flat=True).get()
+    state = Assembly.objects.filter(pk=weld.assembly_id).values_list("state", flat=True).get()
+    if state in (AssemblyState.RELEASED, AssemblyState.SCRAPPED):
+        raise InspectionError(f"Assembly {weld.assembly.piece_mark} is {AssemblyState(state).label.lower()}: "
                               "its welds take no more inspections.")
     if supersedes is not None:
         supersedes = Inspection.objects.select_for_update().get(pk=supersedes.pk)

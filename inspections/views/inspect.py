@@ -83,7 +83,7 @@ def _sign(request, form, weld, supersedes=None):
     except (InspectionError, ValidationError, ValueError) as exc:
         form.add_error(None, _message(exc))
         return None
-    ncr = inspection.ncrs.first()
+    ncr = None if inspection.accepted else inspection.ncrs.first()
     if inspection.accepted:
         messages.success(request, f"Signed: weld {weld.mark} accepted.")
     elif ncr is not None:

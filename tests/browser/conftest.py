@@ -14,7 +14,7 @@ CHROMIUM = Path("/usr/bin/chromium")
 CHROMEDRIVER = Path("/usr/bin/chromedriver")
 
 
-@pytest.fixture(scope="session")
+@pytest.fixture(scope="module")
 def browser():
     if not CHROMIUM.exists() or not CHROMEDRIVER.exists():
         pytest.skip("Debian's chromium and chromium-driver are not installed (/usr/bin/chromium, "
@@ -34,6 +34,9 @@ def browser():
     try:
         yield driver
     finally:
+        # Quit while this module's live server requests are still the current ones: Chrome's idle keep-alive
+        # sockets closing later would make the server threads close a database connection from a later test.
+        driver.get("about:blank")
         driver.quit()
         shutil.rmtree(profile, ignore_errors=True)
 

@@ -13,6 +13,7 @@ Every change writes an AssemblyEvent (who, when, from, to, why).
 from dataclasses import dataclass, field
 
 from django.db import transaction
+from django.db.models import OuterRef, Q, Subquery
 from django.utils import timezone
 
 from inspections.models import NCR, Assembly, AssemblyEvent, AssemblyState, Inspection, InspectionStage
@@ -78,7 +79,12 @@ def weld_statuses(weld_ids) -> dict[int, WeldStatus]:
     statuses = {pk: WeldStatus(pk) for pk in weld_ids}
     if not weld_ids:
         return statuses
+    # Only the latest current inspection of each weld and its latest current final one come back (at most two
+    # rows a weld): a weld inspected a hundred times must not cost a hundred model instances on every save.
+    newest = Inspection.objects.current().filter(weld_id=OuterRef("weld_id")).order_by("-inspected_at", "-pk")
     current = (Inspection.objects.current().filter(weld_id__in=weld_ids)
+               .filter(Q(pk=Subquery(newest.values("pk")[:1]))
+                       | Q(pk=Subquery(newest.filter(stage=InspectionStage.FINAL).values("pk")[:1])))
                .select_related("inspector").order_by("weld_id", "-inspected_at", "-pk"))
     for inspection in current:
         status = statuses[inspection.weld_id]

@@ -38,3 +38,10 @@ def _fast_passwords(request):
     """Hashing demo passwords with the production hasher costs seconds per test; tests need no strength."""
     if request.config.pluginmanager.hasplugin("django"):  # engine tests may run without Django
         request.getfixturevalue("settings").PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]
+
+
+@pytest.fixture(autouse=True)
+def _media_in_a_temp_folder(request, tmp_path_factory):
+    """Photos, reports and PDFs written by tests go to a throwaway folder, never the project's var/media."""
+    if request.config.pluginmanager.hasplugin("django"):
+        request.getfixturevalue("settings").MEDIA_ROOT = str(tmp_path_factory.mktemp("media"))

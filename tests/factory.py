@@ -9,7 +9,7 @@ from datetime import date
 
 from legwork.models import User
 from legwork.units import parse_force, parse_length, parse_speed, parse_temperature
-from procedures.models import WPS, Qualification, Welder
+from procedures.models import PQR, WPS, Qualification, Welder
 from procedures.models.wps import WPSState
 
 _counter = itertools.count(1)
@@ -48,6 +48,18 @@ class Factory:
             WPS.objects.filter(pk=wps.pk).update(state=state)  # fixture shortcut past the approval flow
             wps.refresh_from_db()
         return wps
+
+    def make_pqr(self, **kwargs):
+        """A passed FCAW fillet test coupon: 25 V, 200 A, 10 in/min = 30 kJ/in."""
+        fields = dict(
+            number=f"PQR-{300 + next(_counter)}", code="AWS D1.1:2020", unit_system="US", test_date=date(2025, 11, 4),
+            process="FCAW", electrode="E71T-1C", electrode_diameter=L("0.045 in"), current="DCEP", amperage=200,
+            voltage=25, travel_speed=parse_speed("10 in/min"), position="3F", base_metal="ASTM A572 Gr 50",
+            thickness=L("1 in"), shielding_gas="100% CO2", preheat=parse_temperature("50 F"), visual="pass",
+            macroetch="pass", fillet_break="pass", laboratory="Ridgeway Testing Lab",
+        )
+        fields.update(kwargs)
+        return PQR.objects.create(**fields)
 
     def make_welder(self, **kwargs):
         n = next(_counter)

@@ -555,3 +555,20 @@ def test_filler_strength_refuses_ksi_given_as_mpa():  # E60 to E120 (AWS A5.1, A
     assert filler_strength("70 ksi").ksi == Decimal(70)
     with pytest.raises(ValueError, match="did you mean 70 ksi"):
         filler_strength("70 MPa")
+
+
+# D. K. Miller, "Fillet Welds That Are Too Long", Welding Innovation Vol. XVIII No. 1 (2001), Lincoln Electric
+# design file: end-loaded 1/4 in [6 mm] welds up to 25 in [600 mm] and 3/8 in [10 mm] welds up to 37.5 in long
+# are fully effective (l <= 100 w); past that the AISC 360 J2.2b reduction applies.
+@pytest.mark.parametrize("leg, length", [("1/4 in", "25 in"), ("3/8 in", "37.5 in"), ("6 mm", "600 mm")])
+def test_end_loaded_welds_up_to_100_legs_long_are_fully_effective(leg, length):
+    result = fillet_strength(leg, length, end_loaded=True)
+    assert result.beta == 1
+    assert result.effective_length == parse_length(length)
+
+
+@pytest.mark.parametrize("leg, length", [("1/4 in", "26 in"), ("3/8 in", "38 in")])
+def test_end_loaded_welds_just_past_100_legs_lose_effective_length(leg, length):  # Miller (2001); AISC 360-16 J2.2b
+    result = fillet_strength(leg, length, end_loaded=True)
+    assert result.beta < 1
+    assert result.effective_length < parse_length(length)

@@ -4,6 +4,7 @@ from django.contrib import admin
 
 from inspections.models import NCR, Assembly, AssemblyEvent, ClientCriteriaSet, Inspection, Job, Photo, Weld
 from inspections.models.ncr import NCREvent
+from inspections.models.traveler import JobPacket, Traveler
 from procedures.admin import AppendOnlyAdmin
 
 
@@ -25,7 +26,7 @@ class WeldAdmin(admin.ModelAdmin):
     list_select_related = ["assembly", "wps"]
 
 
-for model in (Inspection, Photo, AssemblyEvent, NCREvent, ClientCriteriaSet):
+for model in (Inspection, Photo, AssemblyEvent, NCREvent, ClientCriteriaSet, Traveler, JobPacket):
     admin.site.register(model, AppendOnlyAdmin)
 
 

@@ -288,6 +288,7 @@ def _garage(job, users, procedures, welders, today):
                thickness1=L("3/8 in"), thickness2=L("5/8 in"), position="H")
     w2 = _weld(beam, "W2", fcaw, [priya], day, size=L("3/16 in"), length=L("4 in"), count=4,
                thickness1=L("5/16 in"), thickness2=L("3/8 in"), position="V")
+    _inspect(w1, users, stage="fit_up", fit_up_ok=True)
     _inspect(w1, users, min_size=L("1/4 in"), undercut_depth=L("1/64 in"), convexity=L("1/16 in"),
              face_width=L("3/8 in"))
     _inspect(w2, users, min_size=L("3/16 in"))

@@ -42,9 +42,14 @@ class InspectionForm(forms.ModelForm):
         labels = {**FLAG_LABELS, "min_size": "Smallest leg measured", "pores_per_4in": "Pores in the worst 4 in"}
         widgets = {"remarks": forms.Textarea(attrs={"rows": 2})}
 
+    fit_up_ok = forms.BooleanField(
+        required=False, label="Fit-up acceptable",
+        help_text="Fit-up only: joint, root opening, alignment and cleanliness match the drawing and the WPS.")
+
     def __init__(self, *args, weld: Weld, **kwargs):
         super().__init__(*args, **kwargs)
         self.weld = weld
+        self.fields["fit_up_ok"].widget.attrs.update({"role": "switch", "class": "form-check-input lw-flag"})
         self.verdict = None
         system = weld.assembly.job.unit_system
         set_unit_system(self, system)
@@ -84,6 +89,8 @@ class InspectionForm(forms.ModelForm):
         weld = self.weld
         if self.errors:
             return data
+        if data.get("stage") == InspectionStage.FIT_UP:
+            return self._clean_fit_up(data)
         if data.get("min_size") is None and data.get("throat") is None:
             self.add_error("min_size", "Enter the smallest leg measured (or, on ISO jobs, the throat).")
             return data
@@ -96,6 +103,16 @@ class InspectionForm(forms.ModelForm):
             self.verdict = judge(weld, data)
         except ValueError as exc:
             raise forms.ValidationError(str(exc), code="engine") from None
+        return data
+
+    def _clean_fit_up(self, data):
+        """Fit-up comes before welding: weld measurements and weld defects belong to a later inspection."""
+        for name in [*LENGTH_OBSERVATIONS, "pores_per_4in", *FLAG_OBSERVATIONS]:
+            if data.get(name) not in (None, False):
+                self.add_error(name, "Fit-up comes before welding: record this at the in-process or final "
+                                     "inspection, or choose that stage.")
+        if not self.errors:
+            self.verdict = judge(self.weld, data, InspectionStage.FIT_UP)
         return data
 
     def _post_clean(self):

@@ -10,7 +10,7 @@ from decimal import Decimal
 
 from django.db import transaction
 
-from inspections.acceptance import Verdict, evaluate
+from inspections.acceptance import Finding, Verdict, evaluate
 from inspections.models import Assembly, AssemblyState, Inspection, InspectionStage, Weld
 from inspections.models.inspection import COUNT_OBSERVATIONS, FLAG_OBSERVATIONS, LENGTH_OBSERVATIONS
 from legwork.units import Length, format_length
@@ -64,11 +64,32 @@ def observed_for_engine(observed: dict) -> dict:
     return out
 
 
-def judge(weld: Weld, observed: dict) -> Verdict:
+# A fit-up inspection is a hold point before welding: there is no weld yet to measure against the visual
+# acceptance criteria, so the inspector judges the joint against the drawing and the WPS.
+FIT_UP_SOURCE = ("AWS D1.1/D1.1M:2020 clause 7, fabrication: fit-up and dimensional tolerances (clause from "
+                 "memory); ISO 5817 applies to the finished weld only. The inspector judges the joint against the "
+                 "drawing and the WPS.")
+
+
+def judge_fit_up(weld: Weld, acceptable: bool) -> Verdict:
+    """The fit-up hold point: accepted when the inspector found the joint ready to weld."""
+    key, version = weld.assembly.job.criteria_identity()
+    message = ("joint, root opening, alignment and cleanliness checked against the drawing and the WPS — "
+               + ("ready to weld" if acceptable else "not ready to weld: correct the fit-up and inspect again"))
+    finding = Finding(criterion="fit_up", ok=bool(acceptable), message=message, source=FIT_UP_SOURCE,
+                      measured=bool(acceptable), criteria_key=key, criteria_version=version)
+    return Verdict(accepted=bool(acceptable), findings=(finding,), criteria_key=key, criteria_version=version,
+                   criteria_title="Fit-up hold point", system=weld.assembly.job.unit_system)
+
+
+def judge(weld: Weld, observed: dict, stage: str | None = None) -> Verdict:
     """The verdict of the job's criteria set (client set or built-in) on these observations of this weld.
 
+    At the fit-up stage there is no weld yet: the inspector's fit-up judgement (observed["fit_up_ok"]) decides.
     Raises ValueError (from the engine) when the observations cannot be judged, e.g. a required leg is missing.
     """
+    if stage == InspectionStage.FIT_UP:
+        return judge_fit_up(weld, bool(observed.get("fit_up_ok")))
     return evaluate(weld.assembly.job.criteria_for_evaluation(), weld_for_engine(weld), observed_for_engine(observed))
 
 
@@ -125,7 +146,7 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
             raise InspectionError("That inspection has already been corrected; correct the latest one instead.")
         if not reason.strip():
             raise InspectionError("Say why the inspection is being corrected.")
-    verdict = judge(weld, observed)
+    verdict = judge(weld, observed, stage)
     key, version = weld.assembly.job.criteria_identity()
     values = observed_for_engine(observed)
     inspection = Inspection(

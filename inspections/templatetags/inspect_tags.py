@@ -37,7 +37,7 @@ def status_class(word):
 CRITERIA = {
     "undersize": "Undersize", "undercut": "Undercut", "porosity": "Porosity", "convexity": "Convexity",
     "crack": "Cracks", "fusion": "Fusion", "crater": "Craters", "overlap": "Overlap", "arc_strike": "Arc strikes",
-    "throat": "Throat", "surface_pore": "Surface pores", "crater_pipe": "End crater pipe",
+    "throat": "Throat", "surface_pore": "Surface pores", "crater_pipe": "End crater pipe", "fit_up": "Fit-up",
 }
 
 

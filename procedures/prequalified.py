@@ -49,7 +49,8 @@ from procedures.electrodes import Electrode, decode
 CODE = "AWS D1.1:2020"
 KNOWN_CODES = {"AWS D1.1:2020": CODE, "AWS D1.1/D1.1M:2020": CODE}
 SEVERITIES = ("error", "not_prequalified", "warning")
-GENERAL = "__all__"  # findings_by_field() key for findings that concern the whole WPS (the usual key for a whole form's errors)
+# findings_by_field() key for findings that concern the whole WPS (the usual key for a whole form's errors)
+GENERAL = "__all__"
 
 
 @dataclass(frozen=True)

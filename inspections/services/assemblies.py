@@ -12,8 +12,8 @@ Every change writes an AssemblyEvent (who, when, from, to, why).
 
 from dataclasses import dataclass, field
 
-from django.db import transaction
-from django.db.models import OuterRef, Q, Subquery
+from django.db import connections, router, transaction
+from django.db.models import Exists, OuterRef, Q, Subquery
 from django.utils import timezone
 
 from inspections.models import NCR, Assembly, AssemblyEvent, AssemblyState, Inspection, InspectionStage
@@ -172,29 +172,76 @@ def scrap(assembly, user, reason):
     return locked
 
 
+def _state_facts_query(assembly_pk):
+    """Assembly `assembly_pk` -> (a weld rejected or an NCR open, any current final inspection).
+
+    The same rules as WeldStatus.rejected and WeldStatus.final, asked as EXISTS questions, so that a save does
+    not build a WeldStatus (two inspections and every NCR) for each weld of the assembly.
+    """
+    open_ncr = NCR.objects.filter(weld__assembly_id=OuterRef("pk")).exclude(state=NCRState.CLOSED)
+    newest = (Inspection.objects.current().filter(weld_id=OuterRef("weld_id"))
+              .order_by("-inspected_at", "-pk").values("pk")[:1])
+    use_as_is = NCR.objects.filter(inspection_id=OuterRef("pk"), state=NCRState.CLOSED,
+                                   disposition=Disposition.USE_AS_IS)
+    # A weld rejects when its latest current inspection rejected it, unless that is its current final
+    # inspection and an NCR on it was closed as use-as-is (WeldStatus.rejected).
+    latest_rejects = (Inspection.objects.filter(weld__assembly_id=OuterRef("pk"), accepted=False,
+                                                pk=Subquery(newest))
+                      .exclude(Q(stage=InspectionStage.FINAL) & Exists(use_as_is)))
+    any_final = Inspection.objects.current().filter(weld__assembly_id=OuterRef("pk"), stage=InspectionStage.FINAL)
+    return (Assembly.objects.filter(pk=assembly_pk)
+            .values_list(Exists(open_ncr) | Exists(latest_rejects), Exists(any_final)))
+
+
+# Building that nested query costs far more than running it (about 100 times, on SQLite), so its SQL is compiled
+# once per database connection alias, with a marker where the assembly's pk goes, and run with fresh parameters.
+_PK_MARK = -7_406_193_117
+_compiled_facts: dict[str, tuple[str, tuple]] = {}
+
+
+def _state_facts(assembly_pk) -> tuple[bool, bool]:
+    """_state_facts_query's answer for one assembly, in one query."""
+    connection = connections[router.db_for_read(Assembly)]
+    compiled = _compiled_facts.get(connection.alias)
+    if compiled is None:
+        sql, params = _state_facts_query(_PK_MARK).query.get_compiler(connection=connection).as_sql()
+        if sum(1 for p in params if p == _PK_MARK) != 1:  # pragma: no cover - a Django change would show here
+            raise RuntimeError("The assembly pk must appear once in the state query's parameters.")
+        compiled = _compiled_facts[connection.alias] = (sql, tuple(params))
+    sql, params = compiled
+    with connection.cursor() as cursor:
+        cursor.execute(sql, [assembly_pk if p == _PK_MARK else p for p in params])
+        row = cursor.fetchone()
+    if row is None:
+        raise Assembly.DoesNotExist(f"No assembly with pk {assembly_pk}.")
+    return bool(row[0]), bool(row[1])
+
+
 def refresh_assembly_state(assembly, user=None, reason=""):
     """Recompute the state after an inspection or an NCR step; returns the (possibly unchanged) state.
 
     Called by the inspection flow after every saved inspection and by the NCR steps. `user` is who caused it;
-    when not given, the inspector of the assembly's latest inspection.
+    when not given, the inspector of the assembly's latest inspection. Two queries when nothing changes: the
+    locked state and _state_facts.
     """
     with transaction.atomic():
-        locked = _locked(assembly)
-        if locked.state == AssemblyState.SCRAPPED:
-            return locked.state
-        statuses = weld_statuses(locked.welds.values_list("pk", flat=True))
-        rejected = [s for s in statuses.values() if s.rejected]
-        any_final = any(s.final is not None for s in statuses.values())
-        target = locked.state
+        # Lock the row (as _locked does) but read only the state: the caller's instance is saved with
+        # update_fields, so its other fields are never written back.
+        state = Assembly.objects.select_for_update().filter(pk=assembly.pk).values_list("state", flat=True).get()
+        assembly.state = state
+        if state == AssemblyState.SCRAPPED:
+            return state
+        rejected, any_final = _state_facts(assembly.pk)
+        target = state
         if rejected:
             target = AssemblyState.REJECTED
-        elif locked.state == AssemblyState.REJECTED:
+        elif state == AssemblyState.REJECTED:
             target = AssemblyState.AWAITING_INSPECTION
-        elif locked.state == AssemblyState.IN_FABRICATION and any_final:
+        elif state == AssemblyState.IN_FABRICATION and any_final:
             target = AssemblyState.AWAITING_INSPECTION
-        if target != locked.state:
+        if target != state:
             if user is None:
-                latest = (Inspection.objects.filter(weld__assembly=locked).select_related("inspector")
+                latest = (Inspection.objects.filter(weld__assembly_id=assembly.pk).select_related("inspector")
                           .order_by("-inspected_at", "-pk").first())
                 if latest is None:
                     raise ValueError("refresh_assembly_state needs the user who caused the change.")
@@ -202,13 +249,12 @@ def refresh_assembly_state(assembly, user=None, reason=""):
             if not reason:
                 reason = {
                     AssemblyState.REJECTED: "An inspection rejected a weld, or an NCR is open",
-                    AssemblyState.AWAITING_INSPECTION: "Nothing rejected any more" if locked.state ==
+                    AssemblyState.AWAITING_INSPECTION: "Nothing rejected any more" if state ==
                     AssemblyState.REJECTED else "Final inspection started",
                 }[target]
-            extra = {"released_by": None, "released_at": None} if locked.state == AssemblyState.RELEASED else {}
-            _move(locked, target, user, reason, **extra)
-        assembly.state = locked.state
-        return locked.state
+            extra = {"released_by": None, "released_at": None} if state == AssemblyState.RELEASED else {}
+            _move(assembly, target, user, reason, **extra)
+        return assembly.state
 
 
 # --- welder eligibility: procedures.eligibility decides; these only shape its answers for the weld map ------

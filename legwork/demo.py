@@ -279,14 +279,14 @@ def _garage(job, users, procedures, welders, today):
     from inspections.services.ncr import disposition_use_as_is
 
     fcaw, smaw = procedures["fcaw"], procedures["smaw"]
-    dana, luis, priya = welders["B-07"], welders["B-12"], welders["B-19"]
+    dana, luis = welders["B-07"], welders["B-12"]  # B-19 welds nothing here: her FCAW lapses within weeks
     day = today - timedelta(days=6)
 
     beam = Assembly.objects.create(job=job, piece_mark="B12", drawing="E-204", drawing_revision="2", quantity=4,
                                    description="W18x35 beam, shear tabs both ends")
     w1 = _weld(beam, "W1", fcaw, [dana], day, size=L("1/4 in"), length=L("9 in"), count=2, sides="both",
                thickness1=L("3/8 in"), thickness2=L("5/8 in"), position="H")
-    w2 = _weld(beam, "W2", fcaw, [priya], day, size=L("3/16 in"), length=L("4 in"), count=4,
+    w2 = _weld(beam, "W2", fcaw, [dana], day, size=L("3/16 in"), length=L("4 in"), count=4,
                thickness1=L("5/16 in"), thickness2=L("3/8 in"), position="V")
     _inspect(w1, users, stage="fit_up", fit_up_ok=True)
     _inspect(w1, users, min_size=L("1/4 in"), undercut_depth=L("1/64 in"), convexity=L("1/16 in"),

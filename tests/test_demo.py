@@ -25,3 +25,12 @@ def test_the_demo_shows_every_state_a_user_meets(db):
     assert Inspection.objects.filter(accepted=False).exists() and Inspection.objects.filter(accepted=True).exists()
     assert set(NCR.objects.values_list("state", flat=True)) >= {"open", "closed"}
     assert "released" in set(Assembly.objects.values_list("state", flat=True))
+
+
+def test_the_demo_has_a_welder_in_each_continuity_state(db):
+    from procedures.eligibility import welder_statuses
+    from procedures.models import Welder
+
+    call_command("load_demo", verbosity=0)
+    states = {status.state for status in welder_statuses(Welder.objects.all()).values()}
+    assert {"qualified", "lapsing", "lapsed"} <= states

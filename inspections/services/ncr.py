@@ -198,6 +198,9 @@ def close_ncrs_for(inspection) -> list:
     """
     if not inspection.accepted or inspection.stage != InspectionStage.FINAL:
         return []
+    # The usual accepted inspection has no repair waiting on it: one plain EXISTS, no savepoint, no lock.
+    if not NCR.objects.filter(weld_id=inspection.weld_id, state=NCRState.DISPOSITIONED).exists():
+        return []
     closed = []
     with transaction.atomic():
         waiting = (NCR.objects.select_for_update()

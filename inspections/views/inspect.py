@@ -21,6 +21,7 @@ from legwork.roles import can, role_required
 
 SEARCH_LIMIT = 30
 WELD_RELATED = ("assembly__job__client_criteria", "wps")
+SIGN_RELATED = ("assembly__job__client_criteria",)
 MORE_FIELDS = ("porosity_sum_1in", "porosity_sum_12in", "pore_max", "pores_per_4in", "convexity", "face_width",
                "throat", "crater_depth")
 
@@ -55,22 +56,25 @@ def inspect_assembly(request, pk):
     })
 
 
-def _weld(pk):
-    return get_object_or_404(Weld.objects.select_related(*WELD_RELATED), pk=pk)
+def _weld(pk, related=WELD_RELATED):
+    return get_object_or_404(Weld.objects.select_related(*related), pk=pk)
 
 
 @require_http_methods(["GET", "POST"])
 @role_required("inspection.record")
 def inspect_weld(request, pk):
     """The inspection form for one weld; saving signs it."""
-    weld = _weld(pk)
     if request.method == "POST":
+        # Signing needs the weld, its assembly, job and criteria; the WPS only shows if the form comes back with
+        # errors (then read on demand), so the save does not join and convert the WPS row.
+        weld = _weld(pk, related=SIGN_RELATED)
         form = InspectionForm(request.POST, weld=weld)
         if form.is_valid():
             inspection = _sign(request, form, weld)
             if inspection is not None:
                 return redirect(inspection)
     else:
+        weld = _weld(pk)
         form = InspectionForm(weld=weld)
     return _form_page(request, form, weld)
 

@@ -191,6 +191,10 @@ def disposition_scrap(ncr, user, notes):
     return locked
 
 
+_repair_waiting_sql = assembly_steps.CompiledQuery(
+    NCR, lambda weld_id: NCR.objects.filter(weld_id=weld_id, state=NCRState.DISPOSITIONED).values_list("pk")[:1])
+
+
 def close_ncrs_for(inspection) -> list:
     """After an accepted final inspection: close the weld's NCRs dispositioned for repair. Returns those closed.
 
@@ -199,7 +203,7 @@ def close_ncrs_for(inspection) -> list:
     if not inspection.accepted or inspection.stage != InspectionStage.FINAL:
         return []
     # The usual accepted inspection has no repair waiting on it: one plain EXISTS, no savepoint, no lock.
-    if not NCR.objects.filter(weld_id=inspection.weld_id, state=NCRState.DISPOSITIONED).exists():
+    if not _repair_waiting_sql.rows(inspection.weld_id):
         return []
     closed = []
     with transaction.atomic():

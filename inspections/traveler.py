@@ -36,7 +36,7 @@ from legwork.pdf import RenderedPDF, render_pdf
 from legwork.roles import require
 from legwork.units import Length, format_force, format_length
 
-GENERATOR = "legwork-traveler 1"  # bump when the layout or the gathered data changes meaning
+GENERATOR = "legwork-traveler 2"  # bump when the layout or the gathered data changes meaning
 TEMPLATE = "pdf/traveler.html"
 PHOTO_MAX_PX = 360  # thumbnails are 320 px (inspections.photos); anything larger is shrunk before embedding
 PHOTOS_MAX = 24  # more than this many photos: the newest are embedded, the rest listed by caption
@@ -335,8 +335,10 @@ def _thumbnail_uri(name: str) -> str | None:
 
 def symbol_svg(row: dict, system: str) -> str:
     """The weld's symbol as an SVG string ("" when the weld's data cannot be drawn)."""
+    # Printed without the tail's WPS reference (the WPS column beside it prints it) and without a <title>:
+    # each drawn text costs WeasyPrint about as much as a table cell, on every row.
     try:
-        return weld_symbols.weld_symbol_svg(system, **row["symbol"])
+        return weld_symbols.weld_symbol_svg(system, title=False, **{**row["symbol"], "tail": ""})
     except ValueError:
         return ""
 

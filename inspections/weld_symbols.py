@@ -188,14 +188,18 @@ def _tail(symbol: WeldSymbol) -> list[str]:
     return parts
 
 
-def svg(symbol: WeldSymbol, width: str | None = None) -> str:
-    """The symbol as a standalone <svg> element (inline in HTML, or a file of its own)."""
+def svg(symbol: WeldSymbol, width: str | None = None, *, title: bool = True) -> str:
+    """The symbol as a standalone <svg> element (inline in HTML, or a file of its own).
+
+    title=False leaves out the <title> child (the aria-label still names the symbol): a PDF embeds the symbol
+    as an image, where a title is never shown, and WeasyPrint spends as long on it as on a drawn text.
+    """
     label = symbol.description()
     size_attrs = f' width="{width}"' if width else ""
     out = [
         f'<svg xmlns="http://www.w3.org/2000/svg" class="weld-symbol" viewBox="0 {TOP} {WIDTH} {HEIGHT}"'
         f'{size_attrs} role="img" aria-label={quoteattr(label)} data-convention={quoteattr(symbol.convention)}>',
-        f"<title>{escape(label)}</title>",
+        f"<title>{escape(label)}</title>" if title else "",
         _line(JUNCTION_X, REF_Y, REF_END_X, REF_Y, "ws-ref-line"),
     ]
     iso = symbol.convention == ISO
@@ -230,9 +234,9 @@ def svg(symbol: WeldSymbol, width: str | None = None) -> str:
     return "".join(out)
 
 
-def weld_symbol_svg(system: str, width: str | None = None, **weld) -> str:
+def weld_symbol_svg(system: str, width: str | None = None, *, title: bool = True, **weld) -> str:
     """symbol_for(system, **weld) drawn: the one call pages and PDFs make."""
-    return svg(symbol_for(system, **weld), width=width)
+    return svg(symbol_for(system, **weld), width=width, title=title)
 
 
 __all__ = ["AWS", "ISO", "WeldSymbol", "svg", "symbol_for", "weld_symbol_svg"]

@@ -307,11 +307,18 @@ def fingerprint(snapshot: dict) -> str:
 
 # --- render ----------------------------------------------------------------------------------------------------
 
+QR_SCALE = 4  # pixels per module: a 37-module code is a 156 px PNG, printed 26 mm wide (about 150 dpi)
+
+
 def qr_data_uri(payload: str) -> str:
-    """A QR code (segno) as an SVG data: URI; the payload is exactly the text given."""
+    """A QR code (segno) as a PNG data: URI; the payload is exactly the text given.
+
+    A small black-and-white PNG rather than an SVG: WeasyPrint draws an SVG node by node on every render (the
+    QR's one path has a segment per dark run), a PNG is embedded as is. The template prints it with
+    image-rendering: pixelated so viewers and printers do not blur the module edges."""
     import segno
 
-    return segno.make(payload, error="m").svg_data_uri(scale=3, border=2)
+    return segno.make(payload, error="m").png_data_uri(scale=QR_SCALE, border=2)
 
 
 def _thumbnail_uri(name: str) -> str | None:
@@ -336,9 +343,10 @@ def _thumbnail_uri(name: str) -> str | None:
 def symbol_svg(row: dict, system: str) -> str:
     """The weld's symbol as an SVG string ("" when the weld's data cannot be drawn)."""
     # Printed without the tail's WPS reference (the WPS column beside it prints it) and without a <title>:
-    # each drawn text costs WeasyPrint about as much as a table cell, on every row.
+    # each drawn text costs WeasyPrint about as much as a table cell, on every row. The lean drawing puts every
+    # line in one path (WeasyPrint draws an SVG node by node at each occurrence): ~13 nodes a symbol down to ~5.
     try:
-        return weld_symbols.weld_symbol_svg(system, title=False, **{**row["symbol"], "tail": ""})
+        return weld_symbols.weld_symbol_svg(system, lean=True, **{**row["symbol"], "tail": ""})
     except ValueError:
         return ""
 

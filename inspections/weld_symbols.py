@@ -209,16 +209,7 @@ def svg(symbol: WeldSymbol, width: str | None = None, *, title: bool = True) -> 
                          width="1.1"))
     out += _arrow()
     if symbol.joint == "fillet":
-        # (side, base line, triangle points up?) for each side the weld is on.
-        if iso:
-            placements = {"arrow": [("arrow", REF_Y, True)],
-                          "other": [("other", REF_Y + ID_GAP, False)],
-                          "both": [("arrow", REF_Y, True), ("other", REF_Y, False)]}[symbol.sides]
-        else:  # AWS A2.4: arrow side below the reference line, other side above
-            placements = {"arrow": [("arrow", REF_Y, False)],
-                          "other": [("other", REF_Y, True)],
-                          "both": [("arrow", REF_Y, False), ("other", REF_Y, True)]}[symbol.sides]
-        for side, base_y, up in placements:
+        for side, base_y, up in _placements(symbol):
             out.append(_fillet(base_y, up, side))
             out += _dimensions(symbol, base_y, up, side)
     else:
@@ -234,9 +225,78 @@ def svg(symbol: WeldSymbol, width: str | None = None, *, title: bool = True) -> 
     return "".join(out)
 
 
-def weld_symbol_svg(system: str, width: str | None = None, *, title: bool = True, **weld) -> str:
-    """symbol_for(system, **weld) drawn: the one call pages and PDFs make."""
-    return svg(symbol_for(system, **weld), width=width, title=title)
+def _placements(symbol: WeldSymbol) -> list[tuple[str, float, bool]]:
+    """(side, base line, triangle points up?) for each side the weld is on."""
+    if symbol.convention == ISO:
+        return {"arrow": [("arrow", REF_Y, True)],
+                "other": [("other", REF_Y + ID_GAP, False)],
+                "both": [("arrow", REF_Y, True), ("other", REF_Y, False)]}[symbol.sides]
+    # AWS A2.4: arrow side below the reference line, other side above
+    return {"arrow": [("arrow", REF_Y, False)],
+            "other": [("other", REF_Y, True)],
+            "both": [("arrow", REF_Y, False), ("other", REF_Y, True)]}[symbol.sides]
 
 
-__all__ = ["AWS", "ISO", "WeldSymbol", "svg", "symbol_for", "weld_symbol_svg"]
+def print_svg(symbol: WeldSymbol, width: str | None = None) -> str:
+    """The same drawing in as few SVG elements as it takes, for a PDF.
+
+    WeasyPrint draws an SVG image node by node on every occurrence (it caches the parsed file, not the drawing),
+    so a traveler of 20 welds drew some 250 nodes. Here every stroked line (reference line, arrow leader, fillet
+    triangles, tail fork, field-flag staff) is ONE path, the two filled heads (arrowhead, pennant) a second one;
+    the ISO dashed identification line, the all-around circle and the texts stay elements of their own. Same
+    geometry and classes as svg(): the stroked path's subpaths are, in order, the reference line, the leader,
+    the fillet triangle(s) (arrow side first), the tail fork and the flag staff. No <title> and no tail text.
+    """
+    f = _fmt
+    tip_x, tip_y = ARROW_TIP
+    strokes = [f"M{f(JUNCTION_X)} {f(REF_Y)}H{f(REF_END_X)}",  # reference line
+               f"M{f(JUNCTION_X)} {f(REF_Y)}L{f(tip_x + 5)} {f(tip_y - 5)}"]  # arrow leader
+    fills = [f"M{f(tip_x)} {f(tip_y)}L{f(tip_x + 4.2)} {f(tip_y - 10.6)}L{f(tip_x + 10.4)} {f(tip_y - 5.5)}Z"]
+    texts = []
+    classes = ["ws-ref-line", "ws-arrow"]
+    if symbol.joint == "fillet":
+        for side, base_y, up in _placements(symbol):
+            apex_y = base_y - LEG if up else base_y + LEG
+            strokes.append(f"M{f(SYMBOL_X)} {f(base_y)}V{f(apex_y)}L{f(SYMBOL_X + LEG)} {f(base_y)}Z")
+            classes.append(f"ws-fillet-{side}-side")
+            texts += _dimensions(symbol, base_y, up, side)
+    else:
+        texts.append(_text(SYMBOL_X, REF_Y - 4, f"{symbol.joint}: see drawing", "ws-note", size=9))
+    strokes.append(f"M{f(REF_END_X + 9)} {f(REF_Y - 9)}L{f(REF_END_X)} {f(REF_Y)}L{f(REF_END_X + 9)} {f(REF_Y + 9)}")
+    classes.append("ws-tail")
+    if symbol.field_weld:
+        top = REF_Y - 25
+        strokes.append(f"M{f(JUNCTION_X)} {f(REF_Y)}V{f(top)}")
+        fills.append(f"M{f(JUNCTION_X)} {f(top)}L{f(JUNCTION_X + 14)} {f(top + 5)}L{f(JUNCTION_X)} {f(top + 10)}Z")
+        classes.append("ws-field-flag")
+    size_attrs = f' width="{width}"' if width else ""
+    out = [
+        f'<svg xmlns="http://www.w3.org/2000/svg" class="weld-symbol" viewBox="0 {TOP} {WIDTH} {HEIGHT}"'
+        f'{size_attrs} role="img" aria-label={quoteattr(symbol.description())} '
+        f'data-convention={quoteattr(symbol.convention)} data-sides="{symbol.sides}">',
+        f'<path class="ws-strokes {" ".join(classes)}" d="{"".join(strokes)}" fill="none" stroke="{INK}" '
+        f'stroke-width="1.4"/>',
+        f'<path class="ws-heads" d="{"".join(fills)}" fill="{INK}" stroke="{INK}" stroke-width="0.6"/>',
+    ]
+    if symbol.convention == ISO and symbol.sides != "both":
+        out.append(_line(JUNCTION_X + 4, REF_Y + ID_GAP, REF_END_X - 4, REF_Y + ID_GAP, "ws-id-line", dashed=True,
+                         width="1.1"))
+    if symbol.all_around:
+        out.append(f'<circle class="ws-all-around" cx="{JUNCTION_X}" cy="{REF_Y}" r="5.5" fill="none" '
+                   f'stroke="{INK}" stroke-width="1.4"/>')
+    out += texts
+    out.append("</svg>")
+    return "".join(out)
+
+
+def _fmt(value: float) -> str:
+    return f"{value:g}"
+
+
+def weld_symbol_svg(system: str, width: str | None = None, *, title: bool = True, lean: bool = False, **weld) -> str:
+    """symbol_for(system, **weld) drawn: the one call pages and PDFs make (lean=True: print_svg, for PDFs)."""
+    symbol = symbol_for(system, **weld)
+    return print_svg(symbol, width=width) if lean else svg(symbol, width=width, title=title)
+
+
+__all__ = ["AWS", "ISO", "WeldSymbol", "print_svg", "svg", "symbol_for", "weld_symbol_svg"]

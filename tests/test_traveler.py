@@ -1,11 +1,14 @@
 """Travelers: gathered in fixed queries, rendered for real, read back with pypdf, issued once per change."""
 
+import base64
 import hashlib
 import io
 import re
 
 import pytest
+import segno
 from django.core.files.storage import default_storage
+from PIL import Image
 from pypdf import PdfReader
 
 from inspections import traveler as traveler_module
@@ -116,20 +119,38 @@ def test_the_qr_code_carries_the_assembly_url_and_is_embedded(make, users, monke
     traveler, _ = issue(assembly, users["qa_lead"])
     url = f"http://127.0.0.1:8160/inspections/a/{assembly.pk}/"
     assert assembly_url(assembly.pk) == url and encoded == [url] and traveler.snapshot["url"] == url
-    assert real(url).startswith("data:image/svg+xml")
+    # The QR code is a small PNG whose modules are exactly segno's matrix for the URL (so it scans as the URL).
+    uri = real(url)
+    assert uri.startswith("data:image/png;base64,")
+    with Image.open(io.BytesIO(base64.b64decode(uri.split(",", 1)[1]))) as image:
+        png = image.convert("1")
+    matrix = segno.make(url, error="m").matrix
+    scale, border = traveler_module.QR_SCALE, 2
+    assert png.size == ((len(matrix) + 2 * border) * scale,) * 2
+    for row, modules in enumerate(matrix):
+        for col, dark in enumerate(modules):
+            pixel = png.getpixel(((col + border) * scale + scale // 2, (row + border) * scale + scale // 2))
+            assert (pixel == 0) == bool(dark), (row, col)
     reader = PdfReader(io.BytesIO(read_stored(traveler)))
     first = reader.pages[0]
     assert url in first.extract_text().replace("\n", "")
-    # The QR code is drawn as vector paths (an SVG image): the first page holds an XObject form for it.
-    resources = first["/Resources"]
-    assert "/XObject" in resources or len(first.get_contents().get_data()) > 10_000
+    # Embedded on the first page as that very image: same pixel size, black and white, not interpolated.
+    qr_images = [img for img in first.images if img.image.size == png.size]
+    assert len(qr_images) == 1
+    assert qr_images[0].image.convert("1").tobytes() == png.tobytes()
+    xobjects = [x.get_object() for x in first["/Resources"]["/XObject"].values()]
+    (qr_xobject,) = [x for x in xobjects if x.get("/Subtype") == "/Image" and x.get("/Width") == png.size[0]]
+    assert qr_xobject["/Interpolate"].value is False  # image-rendering: pixelated keeps the module edges sharp
 
 
 def test_photos_are_embedded_downscaled_and_captioned(make, users):
     assembly = build_assembly(make, welds=2, photos=2)
     traveler, _ = issue(assembly, users["qa_lead"])
     reader = PdfReader(io.BytesIO(read_stored(traveler)))
-    images = [image for page in reader.pages for image in page.images]
+    qr_png = traveler_module.qr_data_uri(traveler.snapshot["url"]).split(",", 1)[1]
+    with Image.open(io.BytesIO(base64.b64decode(qr_png))) as qr:
+        qr_size = qr.size
+    images = [image for page in reader.pages for image in page.images if image.image.size != qr_size]  # not the QR
     assert len(images) == 2
     assert all(max(image.image.size) <= traveler_module.PHOTO_MAX_PX for image in images)
     assert "Photos" in reader.pages[-1].extract_text() or "Photos" in pdf_text(read_stored(traveler))[0]

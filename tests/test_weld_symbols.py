@@ -7,6 +7,7 @@ other side on the dashed line; no dashed line for a weld on both sides; "z" pref
 for intermittent welds is from memory).
 """
 
+import re
 import xml.etree.ElementTree as ET
 
 import pytest
@@ -146,3 +147,93 @@ def test_bad_weld_data_raises_a_value_error_with_a_reason(kwargs, message):
     system = kwargs.pop("system")
     with pytest.raises(ValueError, match=message):
         symbol_for(system, **kwargs)
+
+
+# --- the lean drawing for PDFs (print_svg): same meaning, fewer elements -----------------------------------------
+
+def lean(system, **weld):
+    return ET.fromstring(weld_symbol_svg(system, lean=True, **weld))
+
+
+def subpaths(root):
+    """The stroked path's subpaths as lists of absolute points (M, L, H, V, Z commands only)."""
+    (path,) = by_class(root, "ws-strokes")
+    out = []
+    for command, args in re.findall(r"([MLHVZ])([^MLHVZ]*)", path.get("d")):
+        numbers = [float(n) for n in args.replace(",", " ").split()]
+        if command == "M":
+            out.append([tuple(numbers)])
+        elif command == "L":
+            out[-1].append(tuple(numbers))
+        elif command == "H":
+            out[-1].append((numbers[0], out[-1][-1][1]))
+        elif command == "V":
+            out[-1].append((out[-1][-1][0], numbers[0]))
+    return out
+
+
+def triangles(root):
+    return [points for points in subpaths(root) if len(points) == 3 and points[0][0] == points[1][0]]
+
+
+def test_the_lean_symbol_draws_every_line_as_one_path_and_both_heads_as_another():
+    root = lean("US", sides="arrow", size="1/4 in", length="12 in", field_weld=True)
+    shapes = [e for e in root if e.tag != "{http://www.w3.org/2000/svg}text"]
+    assert [e.tag.split("}")[1] for e in shapes] == ["path", "path"]
+    assert root.find("s:title", NS) is None and not by_class(root, "ws-tail-text")
+    reference, leader = subpaths(root)[:2]
+    assert reference == [(46, REF_Y), (206, REF_Y)]  # the reference line, at REF_Y
+    assert leader[0] == reference[0] and leader[1][1] > REF_Y  # the arrow leaves the line's left end downward
+
+
+@pytest.mark.parametrize("system, sides, below", [("US", "arrow", True), ("US", "other", False),
+                                                  ("SI", "arrow", False)])
+def test_the_lean_symbol_puts_the_fillet_on_the_side_the_convention_says(system, sides, below):
+    root = lean(system, sides=sides, size="1/4 in" if system == "US" else "6 mm", length="6 in")
+    assert root.get("data-sides") == sides and root.get("data-convention") == (AWS if system == "US" else ISO)
+    (triangle,) = triangles(root)
+    ys = [y for _, y in triangle]
+    assert (max(ys) > REF_Y) == below and REF_Y in ys  # standing on (or hanging from) the reference line
+    xs = sorted(x for x, _ in triangle)
+    assert xs[0] == xs[1] < xs[2]  # perpendicular leg on the left
+    (size,) = by_class(root, "ws-size")
+    (length,) = by_class(root, "ws-length")
+    assert f"ws-{sides}-side" in size.get("class")
+    assert float(size.get("x")) < xs[0] < xs[2] < float(length.get("x"))  # size left, length right
+    assert not by_class(root, "ws-id-line") if system == "US" else by_class(root, "ws-id-line")
+
+
+def test_the_lean_iso_symbol_keeps_the_dashed_line_and_hangs_the_other_side_from_it():
+    root = lean("SI", sides="other", size="8 mm", length="50 mm", pitch="150 mm", segments=4)
+    (ident,) = by_class(root, "ws-id-line")
+    assert ident.get("stroke-dasharray") and float(ident.get("y1")) > REF_Y
+    (triangle,) = triangles(root)
+    assert min(y for _, y in triangle) == float(ident.get("y1"))
+    assert texts(root, "ws-size") == ["z8"] and texts(root, "ws-length") == ["4 x 50 (100)"]
+    assert not by_class(lean("SI", sides="both", size="5 mm"), "ws-id-line")
+
+
+def test_the_lean_symbol_prints_both_sides_intermittent_lengths_and_unequal_legs():
+    root = lean("US", sides="both", size="1/4 in", size2="3/8 in", length="4 in", pitch="12 in")
+    assert len(triangles(root)) == 2
+    assert texts(root, "ws-size") == ["1/4 x 3/8"] * 2 and texts(root, "ws-length") == ["4-12"] * 2
+
+
+def test_the_lean_symbol_keeps_all_around_and_field_flag_at_the_junction():
+    root = lean("US", sides="arrow", size="1/4 in", all_around=True, field_weld=True)
+    (circle,) = by_class(root, "ws-all-around")
+    assert (float(circle.get("cx")), float(circle.get("cy"))) == subpaths(root)[1][0]  # where the leader starts
+    staff = subpaths(root)[-1]
+    assert "ws-field-flag" in by_class(root, "ws-strokes")[0].get("class")
+    assert staff[0] == (float(circle.get("cx")), REF_Y) and staff[1][1] < REF_Y  # the staff rises from it
+    (heads,) = by_class(root, "ws-heads")
+    assert heads.get("d").count("Z") == 2  # arrowhead and pennant
+    plain = lean("US", sides="arrow", size="1/4 in")
+    assert not by_class(plain, "ws-all-around") and "ws-field-flag" not in by_class(plain, "ws-strokes")[0].get("class")
+    assert by_class(plain, "ws-heads")[0].get("d").count("Z") == 1
+
+
+def test_the_lean_symbol_says_so_for_a_groove_and_escapes_text():
+    root = lean("US", size="1/4 in", joint="groove")
+    assert not triangles(root) and "see drawing" in texts(root, "ws-note")[0]
+    assert "&lt;A&amp;B&gt;" in weld_symbol_svg("US", lean=True, size="1/4 in", joint="<A&B>")

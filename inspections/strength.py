@@ -402,13 +402,28 @@ def _inches(value: Decimal) -> Length:
     return Length(value * MM_PER_INCH)
 
 
-def _throat(a: Decimal, b: Decimal | None, system: str) -> tuple[Decimal, Step]:
-    """Effective throat in inches, AISC 360-16 J2.2a: 0.707 w for equal legs, a b / sqrt(a^2 + b^2) unequal."""
+def _throat_value(a: Decimal, b: Decimal | None) -> Decimal:
+    """AISC 360-16 J2.2a: 0.707 w for equal legs, a b / sqrt(a^2 + b^2) for unequal legs (any one unit)."""
     if b is None or b == a:
-        throat = a * THROAT_EQUAL_LEGS
+        return a * THROAT_EQUAL_LEGS
+    return a * b / (a * a + b * b).sqrt()
+
+
+def effective_throat(leg, leg2=None) -> Length:
+    """Effective throat of a fillet from its specified legs (AISC 360-16 J2.2a); ISO 5817's nominal a."""
+    a = parse_length(leg)
+    b = None if leg2 is None else parse_length(leg2)
+    if a.mm <= 0 or (b is not None and b.mm <= 0):
+        raise ValueError("A fillet leg must be greater than zero, e.g. 1/4 in or 6 mm.")
+    return Length(_throat_value(a.mm, None if b is None else b.mm))
+
+
+def _throat(a: Decimal, b: Decimal | None, system: str) -> tuple[Decimal, Step]:
+    """Effective throat in inches, AISC 360-16 J2.2a, with its step for the calculation trail."""
+    throat = _throat_value(a, b)
+    if b is None or b == a:
         return throat, Step("Effective throat (AISC 360-16 J2.2a)",
                             f"E = 0.707 w = 0.707 x {_dim(_inches(a), system)}", _calc_len(_inches(throat), system))
-    throat = a * b / (a * a + b * b).sqrt()
     da, db = _dim(_inches(a), system), _dim(_inches(b), system)
     return throat, Step("Effective throat, unequal legs (AISC 360-16 J2.2a, shortest distance root to face)",
                         f"E = a b / sqrt(a^2 + b^2) = {da} x {db} / sqrt(({da})^2 + ({db})^2)",

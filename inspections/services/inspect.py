@@ -6,18 +6,14 @@ set's key and version in one transaction, then moves the repair loop on: an NCR 
 inspection, open NCRs closed by an accepted one, the assembly's state refreshed.
 """
 
-from decimal import Decimal
 
 from django.db import transaction
 
 from inspections.acceptance import Finding, Verdict, evaluate
 from inspections.models import Assembly, AssemblyState, Inspection, InspectionStage, Weld
 from inspections.models.inspection import COUNT_OBSERVATIONS, FLAG_OBSERVATIONS, LENGTH_OBSERVATIONS
+from inspections.strength import effective_throat
 from legwork.units import Length, format_length
-
-# Effective throat of a fillet from its legs (AISC 360-16 J2.2a: 0.707 w for equal legs; a b / sqrt(a^2 + b^2)
-# for unequal legs a, b: geometry of the right triangle). Used as ISO 5817's nominal a when the map gives a leg.
-EQUAL_LEG_THROAT = Decimal("0.707")
 
 
 class InspectionError(ValueError):
@@ -25,11 +21,8 @@ class InspectionError(ValueError):
 
 
 def nominal_throat(weld: Weld) -> Length:
-    """The nominal throat a of the specified fillet."""
-    if weld.size2 is None or weld.size2 == weld.size:
-        return weld.size * EQUAL_LEG_THROAT
-    a, b = weld.size.mm, weld.size2.mm
-    return Length(a * b / (a * a + b * b).sqrt())
+    """The nominal throat a of the specified fillet (the strength engine's effective throat, AISC 360-16 J2.2a)."""
+    return effective_throat(weld.size, weld.size2)
 
 
 def weld_for_engine(weld: Weld) -> dict:

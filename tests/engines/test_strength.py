@@ -572,3 +572,21 @@ def test_end_loaded_welds_just_past_100_legs_lose_effective_length(leg, length):
     result = fillet_strength(leg, length, end_loaded=True)
     assert result.beta < 1
     assert result.effective_length < parse_length(length)
+
+
+# AISC 360-16 J2.2a: effective throat = shortest distance from the root to the face of the diagrammatic
+# weld: 0.707 w for equal legs; a b / sqrt(a^2 + b^2) for unequal legs (a 6 x 8 mm fillet: 48 / 10 = 4.8 mm).
+def test_effective_throat_of_equal_and_unequal_legs():
+    from inspections.strength import effective_throat
+
+    assert effective_throat("1/4 in").inch == Decimal("0.17675")
+    assert effective_throat("6 mm", "8 mm") == parse_length("4.8 mm")
+    assert effective_throat("6 mm", "6 mm") == effective_throat("6 mm")
+
+
+@pytest.mark.parametrize("leg, leg2", [("0 in", None), ("1/4 in", "0 in"), ("nonsense", None)])
+def test_effective_throat_refuses_a_leg_that_is_not_one(leg, leg2):
+    from inspections.strength import effective_throat
+
+    with pytest.raises(ValueError):
+        effective_throat(leg, leg2)

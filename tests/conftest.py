@@ -1,8 +1,23 @@
-"""Shared fixtures: one user per role, clients signed in as each, and the invented demo shop."""
+"""Shared fixtures: one user per role, clients signed in as each, and the invented demo shop.
+
+Also the one Hypothesis profile of the suite: no test may depend on how fast the machine is, so there is no
+deadline and no "too slow" health check, and a fixed example budget. CI loads the `ci` profile
+(HYPOTHESIS_PROFILE=ci), which also derandomizes, so a run is repeatable from its commit alone.
+"""
+
+import os
 
 import pytest
+from hypothesis import HealthCheck, settings
 
 from legwork.roles import Role
+
+settings.register_profile("legwork", deadline=None, max_examples=100,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.register_profile("ci", parent=settings.get_profile("legwork"), derandomize=True, database=None,
+                          print_blob=True)
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "legwork"))
+
 
 ROLES = [r.value for r in Role]
 

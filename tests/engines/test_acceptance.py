@@ -7,7 +7,7 @@ Values the reference marks "from memory" say so in the test name or comment. The
 from decimal import Decimal
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import given
 from hypothesis import strategies as st
 
 from inspections.acceptance import CHECKS, evaluate
@@ -602,7 +602,6 @@ def _scaled(limit, factor: Decimal, system_values):
     return None
 
 
-@settings(suppress_health_check=[HealthCheck.too_slow], deadline=None)
 @given(_cases, st.integers(min_value=1, max_value=100).map(lambda n: Decimal(n) / 100))
 def test_tightening_a_set_never_turns_a_reject_into_an_accept(case, factor):
     key, weld, seen = case

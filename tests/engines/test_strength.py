@@ -311,7 +311,7 @@ def test_as_inspected_accepts_kN_and_does_not_credit_oversize():
     assert a.ratio == Decimal(100) / KIP_TO_KN / a.specified.lrfd_kip
 
 
-@settings(max_examples=60, deadline=None)
+@settings(max_examples=60)
 @given(spec=st.integers(3, 12), short=st.integers(1, 12), length=st.integers(4, 96), under=st.integers(0, 96))
 def test_as_inspected_lies_between_conservative_and_specified(spec, short, length, under):
     short, under = min(short, spec), min(under, length)
@@ -329,7 +329,7 @@ legs_16ths = st.integers(1, 24)
 lengths_8ths = st.integers(1, 800)
 
 
-@settings(max_examples=150, deadline=None)
+@settings(max_examples=150)
 @given(leg=legs_16ths, length=lengths_8ths, end_loaded=st.booleans())
 def test_capacity_grows_with_leg(leg, length, end_loaded):
     # Domain: any leg and length. Strictly while l >= 4 w (AISC 360-16 J2.2b); once l < 4 w the l/4 cap holds it.
@@ -340,7 +340,7 @@ def test_capacity_grows_with_leg(leg, length, end_loaded):
         assert big.nominal_kip > small.nominal_kip
 
 
-@settings(max_examples=150, deadline=None)
+@settings(max_examples=150)
 @given(leg=legs_16ths, length=lengths_8ths, end_loaded=st.booleans())
 def test_capacity_grows_with_length(leg, length, end_loaded):
     # Domain: strictly up to 300 w; end-loaded welds over 300 w stay at 180 w (AISC 360-16 J2.2b)
@@ -351,7 +351,7 @@ def test_capacity_grows_with_length(leg, length, end_loaded):
         assert long.nominal_kip > short.nominal_kip
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=100)
 @given(leg=legs_16ths, length=st.integers(8, 400), fexx=st.sampled_from([60, 70, 80, 90, 100, 110, 120]))
 def test_ninety_degrees_is_exactly_1_5_times_zero(leg, length, fexx):  # AISC 360-16 J2.4(a)
     along = fillet_strength(f"{leg}/16 in", f"{length}/8 in", f"{fexx} ksi", angle=0)
@@ -359,14 +359,14 @@ def test_ninety_degrees_is_exactly_1_5_times_zero(leg, length, fexx):  # AISC 36
     assert across.nominal_kip == Decimal("1.5") * along.nominal_kip
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=100)
 @given(a=st.integers(0, 90), b=st.integers(0, 90))
 def test_directional_factor_rises_with_angle(a, b):  # AISC 360-16 J2.4(a), 1.0 to 1.5
     low, high = sorted((a, b))
     assert 1 <= directional_factor(low) <= directional_factor(high) <= Decimal("1.5")
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=100)
 @given(leg=legs_16ths, length=lengths_8ths, angle=st.integers(0, 90), end_loaded=st.booleans())
 def test_unequal_legs_with_a_equal_b_is_the_equal_leg_weld(leg, length, angle, end_loaded):
     args = (f"{leg}/16 in", f"{length}/8 in", "70 ksi", angle)
@@ -374,7 +374,7 @@ def test_unequal_legs_with_a_equal_b_is_the_equal_leg_weld(leg, length, angle, e
         fillet_strength(*args, end_loaded=end_loaded).nominal_kip
 
 
-@settings(max_examples=100, deadline=None)
+@settings(max_examples=100)
 @given(leg=legs_16ths, length=lengths_8ths, fexx=st.sampled_from([60, 70, 80, 100, 120]),
        angle=st.integers(0, 90), end_loaded=st.booleans())
 def test_si_and_us_inputs_agree(leg, length, fexx, angle, end_loaded):
@@ -387,7 +387,7 @@ def test_si_and_us_inputs_agree(leg, length, fexx, angle, end_loaded):
     assert abs(si.lrfd_kip / us.lrfd_kip - 1) < Decimal("1e-8")
 
 
-@settings(max_examples=60, deadline=None)
+@settings(max_examples=60)
 @given(longs=st.lists(st.integers(4, 48), max_size=3), trans=st.lists(st.integers(4, 48), max_size=3))
 def test_weld_group_is_the_larger_of_the_two_cases(longs, trans):  # AISC 360-16 J2.4(c)
     if not longs and not trans:
@@ -437,7 +437,7 @@ def test_fexx_at_the_range_ends_is_accepted():  # E60 to E120, 410 to 830 MPa
         fillet_strength("1/4 in", "4 in", fexx)
 
 
-@settings(max_examples=200, deadline=None)
+@settings(max_examples=200)
 @given(leg=st.one_of(st.text(max_size=12), st.none(), st.integers(), st.floats()), angle=st.one_of(
     st.text(max_size=6), st.integers(-400, 400), st.floats(allow_nan=True)))
 def test_any_input_either_works_or_raises_value_error(leg, angle):

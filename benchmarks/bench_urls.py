@@ -4,8 +4,8 @@ from django.http import HttpResponse
 from django.urls import include, path
 from django.views.decorators.http import require_POST
 
+from core.units import parse_length
 from inspections.models import Inspection, Weld
-from legwork.units import parse_length
 
 FINDINGS = [{"criterion": "undersize", "ok": True, "message": "bare insert", "source": "benchmark", "limit": None,
              "measured": None}]

@@ -96,10 +96,10 @@ def _seed(existing: int, welds_per_assembly: int = 10, per_weld: int = 10):
     from django.contrib.sessions.backends.db import SessionStore
     from django.db import transaction
 
+    from core.models import User
+    from core.units import parse_length as L
     from inspections.models import Assembly, Inspection, Job, Weld
     from inspections.services.inspect import findings_json, judge
-    from legwork.models import User
-    from legwork.units import parse_length as L
 
     inspector = User.objects.create(username="bench-inspector", role="inspector", first_name="Bench")
     job = Job.objects.create(number="J-BENCH", name="Benchmark framing", customer="Brannock Steelworks (bench)",

@@ -84,10 +84,10 @@ def traveler_step(big: int, qa: int) -> dict:
     from django.template.loader import render_to_string
     from weasyprint import HTML
 
+    from core.models import User
+    from core.pdf import _static_fetcher
     from inspections import traveler
     from inspections.models import Assembly
-    from legwork.models import User
-    from legwork.pdf import _static_fetcher
 
     assembly, user = Assembly.objects.get(pk=big), User.objects.get(pk=qa)
     traveler.render(traveler.gather(big), document_number="WARM-UP", revision=0)  # fonts and caches, once
@@ -98,7 +98,7 @@ def traveler_step(big: int, qa: int) -> dict:
     t2 = time.perf_counter()
     context = traveler.render_context(snapshot, document_number="BARE", revision=0, issued_at=issued.generated_at,
                                       issued_by="")
-    from legwork.roles import CAUTIONS, SAFETY_NOTE
+    from core.roles import CAUTIONS, SAFETY_NOTE
 
     html = render_to_string(traveler.TEMPLATE, {"cautions": CAUTIONS, "safety_note": SAFETY_NOTE,
                                                 "shop_name": "Legwork", **context})
@@ -114,10 +114,10 @@ def batch_step(job: int) -> dict:
     from django.template.loader import render_to_string
     from weasyprint import HTML
 
+    from core.pdf import _static_fetcher
+    from core.roles import CAUTIONS, SAFETY_NOTE
     from inspections import traveler
     from inspections.models import Assembly
-    from legwork.pdf import _static_fetcher
-    from legwork.roles import CAUTIONS, SAFETY_NOTE
 
     pks = list(Assembly.objects.filter(job_id=job).exclude(piece_mark="BIG-20").order_by("piece_mark")
                .values_list("pk", flat=True)[:10])
@@ -149,9 +149,9 @@ def batch_step(job: int) -> dict:
 
 def packet_step(job: int, qa: int) -> dict:
     _setup()
+    from core.models import User
     from inspections.models import Assembly, JobPacket
     from inspections.packets import build_packet
-    from legwork.models import User
 
     pks = list(Assembly.objects.filter(job_id=job).exclude(piece_mark="BIG-20").order_by("piece_mark")
                .values_list("pk", flat=True))

@@ -19,7 +19,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from decimal import Decimal
 
-from legwork.units import Length, UnitError, format_length, inch_fraction, length_system, parse_length, significant
+from core.units import Length, UnitError, format_length, inch_fraction, length_system, parse_length, significant
 
 from .criteria import CriteriaSet, derive, get_criteria, list_criteria, resolve
 from .criteria.base import SYSTEMS, Banded, Count, Limit, Permission, Proportional, Ratio, Threshold, is_measured

@@ -2,10 +2,9 @@
 
 from django.contrib import admin
 
-from inspections.models import NCR, Assembly, AssemblyEvent, ClientCriteriaSet, Inspection, Job, Photo, Weld
-from inspections.models.ncr import NCREvent
+from core.admin import ReadOnlyAdmin
+from inspections.models import NCR, Assembly, ClientCriteriaSet, Inspection, Job, Photo, Weld
 from inspections.models.traveler import JobPacket, Traveler
-from procedures.admin import AppendOnlyAdmin
 
 
 @admin.register(Job)
@@ -26,10 +25,10 @@ class WeldAdmin(admin.ModelAdmin):
     list_select_related = ["assembly", "wps"]
 
 
-for model in (Inspection, Photo, AssemblyEvent, NCREvent, ClientCriteriaSet, Traveler, JobPacket):
-    admin.site.register(model, AppendOnlyAdmin)
+for model in (Inspection, Photo, ClientCriteriaSet, Traveler, JobPacket):
+    admin.site.register(model, ReadOnlyAdmin)
 
 
 @admin.register(NCR)
-class NCRAdmin(AppendOnlyAdmin):
+class NCRAdmin(ReadOnlyAdmin):
     list_display = ["number", "weld", "state", "disposition"]

@@ -6,8 +6,9 @@ own revision, hash and "page X of Y", so it is never re-rendered: a traveler alr
 is reused as stored), every part is spooled to a temporary file, and pypdf merges the parts at the end. The
 cover is rendered last, once the page numbers of the index are known.
 
-start_packet() is what a view calls: it records the packet (queued) and enqueues the task after commit.
-build_packet(pk) is what the task runs (inspections.tasks), with progress saved after every step.
+start_packet() is what a view calls: it records the packet (queued) and enqueues build_packet_task after commit.
+The task (django-tasks: inline in development and tests, `manage.py db_worker` in production) takes the packet's
+primary key only and runs build_packet(pk), with progress saved after every step.
 """
 
 from __future__ import annotations
@@ -22,46 +23,78 @@ from pathlib import Path
 from django.core.files import File
 from django.db import transaction
 from django.utils import timezone
+from django_tasks import task
 
+from core.errors import Refused
+from core.pdf import render_pdf
+from core.roles import require
+from core.transitions import transition
 from inspections import traveler as travelers
 from inspections.models import Assembly, JobPacket, PacketState
-from inspections.models.traveler import PacketStateError
-from legwork.pdf import render_pdf
-from legwork.roles import require
+from inspections.services.numbering import next_in_job
+from procedures import printing
+from procedures.models import WPS
 
 log = logging.getLogger(__name__)
 COVER_TEMPLATE = "pdf/packet_cover.html"
 
 
-class PacketError(ValueError):
-    """A packet that cannot be started as asked (no assemblies, assemblies of another job)."""
 
 
 def start_packet(job, assembly_pks, user) -> JobPacket:
     """Record a queued packet for these assemblies of the job and enqueue its build after commit."""
-    from inspections.tasks import build_packet_task
-
     require(user, "traveler.issue")
     wanted = list(dict.fromkeys(int(pk) for pk in assembly_pks))
     if not wanted:
-        raise PacketError("Choose at least one assembly.")
+        raise Refused("Choose at least one assembly.")
     found = set(Assembly.objects.filter(job=job, pk__in=wanted).values_list("pk", flat=True))
     if found != set(wanted):
-        raise PacketError("Some of the assemblies chosen are not on this job.")
+        raise Refused("Some of the assemblies chosen are not on this job.")
     order = {pk: mark for pk, mark in Assembly.objects.filter(pk__in=wanted).values_list("pk", "piece_mark")}
     wanted.sort(key=lambda pk: order[pk])
     with transaction.atomic():
-        count = JobPacket.objects.filter(job=job).count()
-        packet = JobPacket.objects.create(job=job, document_number=f"PKT-{job.number}-{count + 1:03d}-"
+        number = next_in_job(job, JobPacket.objects.filter(job=job))
+        packet = JobPacket.objects.create(job=job, document_number=f"PKT-{job.number}-{number:03d}-"
                                           f"{timezone.now():%Y%m%d%H%M%S}", assembly_pks=wanted,
                                           requested_by=user)
         # Enqueue only once the packet row is committed: a worker must find it (STYLE.md, pretix's rule).
-        transaction.on_commit(lambda: _enqueue(packet.pk, build_packet_task))
+        transaction.on_commit(lambda: _enqueue(packet.pk))
     return packet
 
 
-def _enqueue(pk, task):
-    result = task.enqueue(pk)
+# --- packet steps: queued -> running -> done | failed, each through core.transitions ---------------------------
+
+def start(packet, total: int):
+    """queued -> running, with the number of steps the progress bar counts (a retried task finds it running)."""
+    return transition(packet, allowed_from={PacketState.QUEUED}, to=PacketState.RUNNING, reason="Build started",
+                      started_at=timezone.now(), progress_total=total, progress_done=0, step="Starting")
+
+
+def advance(packet, done: int, step: str):
+    """Record progress while running (the page polls it); progress is not history, so no row is written."""
+    with transaction.atomic():
+        locked = JobPacket.objects.select_for_update().get(pk=packet.pk)
+        if locked.state != PacketState.RUNNING:
+            raise Refused(f"{locked} is {locked.get_state_display().lower()}, not building.", code="state")
+        packet.progress_done, packet.step = min(done, locked.progress_total), step[:120]
+        JobPacket.objects.filter(pk=packet.pk).update(progress_done=packet.progress_done, step=packet.step)
+
+
+def finish(packet, file, sha256: str, pages: int, index: list):
+    """running -> done: the file is stored once and never replaced."""
+    return transition(packet, allowed_from={PacketState.RUNNING}, to=PacketState.DONE, reason="Built",
+                      file=file, sha256=sha256, pages=pages, index=index, progress_done=packet.progress_total,
+                      step="Done", finished_at=timezone.now())
+
+
+def fail(packet, message: str):
+    """queued | running -> failed, with what went wrong in words."""
+    return transition(packet, allowed_from={PacketState.QUEUED, PacketState.RUNNING}, to=PacketState.FAILED,
+                      reason=message[:2000], error=message[:2000], step="Failed", finished_at=timezone.now())
+
+
+def _enqueue(pk):
+    result = build_packet_task.enqueue(pk)
     # The immediate backend has already run it; the database backend gives the id the worker will use.
     JobPacket.objects.filter(pk=pk, task_id="").update(task_id=str(result.id)[:64])
 
@@ -81,19 +114,25 @@ def _spool(directory: Path, name: str, content: bytes) -> Path:
     return path
 
 
+@task()
+def build_packet_task(packet_pk: int) -> int:
+    """Build one queued job packet; returns the packet's pk (its state says done or failed)."""
+    return build_packet(packet_pk).pk
+
+
 def build_packet(packet_pk: int) -> JobPacket:
     """Build a queued packet; on any failure the packet says so (failed, with the error) instead of hanging."""
     packet = JobPacket.objects.select_related("job", "requested_by").get(pk=packet_pk)
-    if packet.state != PacketState.QUEUED:
+    try:
+        start(packet, total=len(packet.assembly_pks) + 3)  # each assembly, the WPSs, the welders, cover and merge
+    except Refused:
         return packet  # a retried task finds it running or done: nothing to do
     directory = Path(tempfile.mkdtemp(prefix="legwork-packet-"))
     try:
         _build(packet, directory)
-    except PacketStateError:
-        raise
     except Exception as exc:  # noqa: BLE001 - any failure must reach the page, never leave it "building"
         log.exception("Packet %s failed", packet.pk)
-        packet.fail(f"{type(exc).__name__}: {exc}")
+        fail(packet, f"{type(exc).__name__}: {exc}")
     finally:
         shutil.rmtree(directory, ignore_errors=True)
     packet.refresh_from_db()
@@ -101,11 +140,8 @@ def build_packet(packet_pk: int) -> JobPacket:
 
 
 def _build(packet: JobPacket, directory: Path):
-    from procedures.models import WPS
-
     user = packet.requested_by
     pks = list(packet.assembly_pks)
-    packet.start(total=len(pks) + 3)  # each assembly, the WPSs, the welder summaries, cover and merge
     parts: list[Part] = []
     wps_pks, welder_pks, open_items, rows = {}, {}, [], []
     for done, pk in enumerate(pks, start=1):
@@ -126,26 +162,22 @@ def _build(packet: JobPacket, directory: Path):
         for welder in snapshot["welders_used"]:
             welder_pks[welder["pk"]] = welder
         open_items += [f"{mark}: {item}" for item in snapshot["open_items"]]
-        packet.advance(done, f"Traveler {mark} ({done} of {len(pks)})")
+        advance(packet, done, f"Traveler {mark} ({done} of {len(pks)})")
         del snapshot  # one assembly's records in memory at a time
 
-    from procedures.views.wps import wps_snapshot  # the WPS print of the procedures pages
-
     for wps in WPS.objects.filter(pk__in=wps_pks).order_by("number", "revision"):
-        rendered = render_pdf("pdf/wps.html", wps_snapshot(wps), f"wps-{wps.pk}.pdf")
+        rendered = render_pdf("pdf/wps.html", printing.wps_document(wps), f"wps-{wps.pk}.pdf")
         parts.append(Part(f"WPS {wps.number} rev {wps.revision}", _spool(directory, f"wps-{wps.pk}.pdf",
                                                                          rendered.content),
                           travelers.page_count(rendered.content), "wps"))
-    packet.advance(len(pks) + 1, "WPSs")
+    advance(packet, len(pks) + 1, "WPSs")
 
     for welder_pk in sorted(welder_pks, key=lambda pk: welder_pks[pk]["stamp"]):
         content = _welder_summary(welder_pk)
-        if content is None:
-            continue
         parts.append(Part(f"Welder {welder_pks[welder_pk]['stamp']} {welder_pks[welder_pk]['name']}: "
                           "qualification summary", _spool(directory, f"welder-{welder_pk}.pdf", content),
                           travelers.page_count(content), "welder"))
-    packet.advance(len(pks) + 2, "Welder qualification summaries")
+    advance(packet, len(pks) + 2, "Welder qualification summaries")
 
     context = {"packet": packet, "job": packet.job, "rows": rows, "open_items": open_items,
                "requested_by": travelers._person(user)}
@@ -156,18 +188,12 @@ def _build(packet: JobPacket, directory: Path):
     cover, index = _cover(context, parts)
     path, sha256, pages = _merge(directory, cover, parts)
     with path.open("rb") as handle:
-        packet.finish(File(handle, name=packet.filename), sha256, pages, index)
+        finish(packet, File(handle, name=packet.filename), sha256, pages, index)
 
 
-def _welder_summary(welder_pk) -> bytes | None:
-    """The welder's qualification summary as the welder pages print it (procedures.views.welders)."""
-    try:
-        from procedures.views.welders import _detail_context, _welder_with_records
-    except ImportError:
-        return None
-    welder = _welder_with_records(welder_pk)
-    context = _detail_context(welder)
-    context.pop("check_form", None)
+def _welder_summary(welder_pk) -> bytes:
+    """The welder's qualification summary as the welder pages print it (procedures.printing)."""
+    context = printing.welder_context(printing.welder_with_records(welder_pk))
     return render_pdf("pdf/welder_summary.html", context, f"welder-{welder_pk}.pdf").content
 
 

@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 from decimal import Decimal, InvalidOperation, localcontext
 from typing import NamedTuple
 
-from legwork.units import (
+from core.units import (
     KIP_TO_KN,
     KSI_TO_MPA,
     MM_PER_INCH,

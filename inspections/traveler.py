@@ -2,7 +2,7 @@
 
 gather(pk) reads everything the traveler shows in a FIXED number of queries whatever the number of welds,
 welders, inspections and photos, and returns a JSON-ready dict of words and numbers as printed (the
-snapshot). render(snapshot, ...) turns it into a PDF through legwork.pdf and never queries the database
+snapshot). render(snapshot, ...) turns it into a PDF through core.pdf and never queries the database
 (it reads the photo thumbnails from storage). issue(assembly, user) stores the PDF as a new Traveler
 revision when the data changed since the last one, and otherwise hands back the last one: an issued
 traveler is never rendered again, so printing it again gives the same bytes.
@@ -28,13 +28,13 @@ from django.db import transaction
 from django.urls import reverse
 from django.utils import timezone
 
+from core.pdf import RenderedPDF, render_pdf
+from core.roles import require
+from core.units import Length, format_force, format_length
 from inspections import weld_symbols
 from inspections.models import Assembly, Inspection, InspectionStage, Photo, Weld
 from inspections.models.traveler import Traveler
 from inspections.services.assemblies import weld_statuses
-from legwork.pdf import RenderedPDF, render_pdf
-from legwork.roles import require
-from legwork.units import Length, format_force, format_length
 
 GENERATOR = "legwork-traveler 2"  # bump when the layout or the gathered data changes meaning
 TEMPLATE = "pdf/traveler.html"
@@ -144,7 +144,7 @@ def _capacity(weld: Weld, final: Inspection | None, system: str) -> dict | None:
 
 
 def _kip(value):
-    from legwork.units import parse_force
+    from core.units import parse_force
 
     return parse_force(f"{value} kip")
 

@@ -31,7 +31,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from xml.sax.saxutils import escape, quoteattr
 
-from legwork.units import Length, format_length, parse_length
+from core.units import Length, format_length, parse_length
 
 AWS = "AWS A2.4"
 ISO = "ISO 2553:2019"
@@ -96,7 +96,7 @@ def symbol_for(system: str, *, sides="arrow", size=None, size2=None, length=None
                all_around=False, field_weld=False, tail="", joint="fillet") -> WeldSymbol:
     """The symbol of a weld in the convention of its job's unit system ("US": AWS A2.4, "SI": ISO 2553).
 
-    Lengths are legwork.units.Length values or strings with a unit ("1/4 in", "6 mm"). ValueError names what
+    Lengths are core.units.Length values or strings with a unit ("1/4 in", "6 mm"). ValueError names what
     is wrong (an unknown side or system, a pitch not longer than the segment).
     """
     if system not in ("US", "SI"):

@@ -49,9 +49,10 @@ INSTALLED_APPS = [
     "template_partials",
     "django_tasks",
     "django_tasks_db",
-    "legwork",
+    "core",
     "procedures",
     "inspections",
+    "demo",
 ]
 
 MIDDLEWARE = [
@@ -80,7 +81,7 @@ TEMPLATES = [
                 "django.template.context_processors.request",
                 "django.contrib.auth.context_processors.auth",
                 "django.contrib.messages.context_processors.messages",
-                "legwork.roles.role_context",
+                "core.roles.role_context",
             ],
         },
     },
@@ -105,7 +106,7 @@ else:
     }
 
 DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
-AUTH_USER_MODEL = "legwork.User"
+AUTH_USER_MODEL = "core.User"
 LOGIN_URL = "login"
 LOGIN_REDIRECT_URL = "home"
 LOGOUT_REDIRECT_URL = "login"

@@ -4,7 +4,7 @@ from django.contrib import admin
 from django.contrib.auth import views as auth_views
 from django.urls import include, path
 
-from legwork import views
+from core import views
 
 urlpatterns = [
     path("", views.home, name="home"),
@@ -15,5 +15,5 @@ urlpatterns = [
     path("admin/", admin.site.urls),
 ]
 
-handler403 = "legwork.views.forbidden"
-handler404 = "legwork.views.not_found"
+handler403 = "core.views.forbidden"
+handler404 = "core.views.not_found"

@@ -2,20 +2,8 @@
 
 from django.contrib import admin
 
-from procedures.models import PQR, WPS, ContinuityEntry, ProcedureEvent, Qualification, Welder, WelderEvent
-
-
-class AppendOnlyAdmin(admin.ModelAdmin):
-    """History rows: visible, never changed or deleted."""
-
-    def has_add_permission(self, request, obj=None):
-        return False
-
-    def has_change_permission(self, request, obj=None):
-        return False
-
-    def has_delete_permission(self, request, obj=None):
-        return False
+from core.admin import ReadOnlyAdmin
+from procedures.models import PQR, WPS, ContinuityEntry, Qualification, Welder
 
 
 @admin.register(WPS)
@@ -29,10 +17,6 @@ class WPSAdmin(admin.ModelAdmin):
 
     def has_delete_permission(self, request, obj=None):
         return super().has_delete_permission(request, obj) and (obj is None or obj.is_editable)
-
-
-admin.site.register(ProcedureEvent, AppendOnlyAdmin)
-admin.site.register(WelderEvent, AppendOnlyAdmin)
 
 
 @admin.register(PQR)
@@ -58,7 +42,7 @@ class WelderAdmin(admin.ModelAdmin):
 
 
 @admin.register(Qualification)
-class QualificationAdmin(AppendOnlyAdmin):
+class QualificationAdmin(ReadOnlyAdmin):
     """A welder's test record states what happened at the test: recorded through the welder page, never edited."""
 
     list_display = ["welder", "process", "joint", "test_position", "test_date", "result"]
@@ -66,6 +50,6 @@ class QualificationAdmin(AppendOnlyAdmin):
 
 
 @admin.register(ContinuityEntry)
-class ContinuityEntryAdmin(AppendOnlyAdmin):
+class ContinuityEntryAdmin(ReadOnlyAdmin):
     list_display = ["welder", "process", "date", "source"]
     list_select_related = ["welder"]

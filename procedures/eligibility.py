@@ -23,7 +23,7 @@ from django.db import IntegrityError, transaction
 from django.db.models import prefetch_related_objects
 from django.utils import timezone
 
-from legwork.units import Length, format_length
+from core.units import Length, format_length
 from procedures import qualification as engine
 from procedures.models import ContinuityEntry, Qualification, Welder
 

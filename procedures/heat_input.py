@@ -17,7 +17,7 @@ from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 
-from legwork.units import (
+from core.units import (
     HeatInput,
     format_heat_input,
     parse_amperage,

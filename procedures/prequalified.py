@@ -1,7 +1,7 @@
 """Review a WPS against the prequalified limits of AWS D1.1/D1.1M:2020 clause 5, finding by finding.
 
 How findings are formed: review() first parses the whole WPS dict into a Procedure (every length, temperature,
-current and speed through legwork.units; a malformed value raises ValueError naming its key, before any rule
+current and speed through core.units; a malformed value raises ValueError naming its key, before any rule
 runs). Then each rule in RULES looks at the Procedure and yields zero or more Findings. A rule checks only what
 the WPS states: a missing key is not a finding. Every Finding carries
 
@@ -28,7 +28,7 @@ from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, fields
 from decimal import Decimal
 
-from legwork.units import (
+from core.units import (
     Length,
     Speed,
     Temperature,

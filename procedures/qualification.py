@@ -22,7 +22,7 @@ from dataclasses import dataclass
 from datetime import date, datetime, timedelta
 from decimal import Decimal
 
-from legwork.units import Length, UnitError, format_length, parse_length
+from core.units import Length, UnitError, format_length, parse_length
 from procedures import electrodes
 
 AWS = "AWS D1.1:2020"

@@ -10,7 +10,7 @@ import os
 import pytest
 from hypothesis import HealthCheck, settings
 
-from legwork.roles import Role
+from core.roles import Role
 
 settings.register_profile("legwork", deadline=None, max_examples=100,
                           suppress_health_check=[HealthCheck.too_slow])

@@ -4,11 +4,12 @@ Plain methods, sensible defaults, override anything by keyword. No record here d
 shop, structure or person.
 """
 
+import io
 import itertools
 from datetime import date
 
-from legwork.models import User
-from legwork.units import parse_force, parse_length, parse_speed, parse_temperature
+from core.models import User
+from core.units import Length, parse_force, parse_length, parse_speed, parse_temperature
 from procedures.models import PQR, WPS, Qualification, Welder
 from procedures.models.wps import WPSState
 
@@ -30,7 +31,9 @@ class Factory:
         user.save()
         return user
 
-    def make_wps(self, state=WPSState.DRAFT, **kwargs):
+    def make_wps(self, state=WPSState.DRAFT, via_steps=True, **kwargs):
+        """A WPS in `state`, taken there through the real steps; via_steps=False stores the row in that state
+        directly (a record whose review would not pass today, e.g. submitted before a rule was added)."""
         fields = dict(
             number=f"BSW-{100 + next(_counter)}", revision=0, title="FCAW fillet, structural shapes, all positions",
             code="AWS D1.1:2020", unit_system="US", process="FCAW", electrode="E71T-1C",
@@ -43,9 +46,25 @@ class Factory:
             preheat_min=parse_temperature("50 F"),
         )
         fields.update(kwargs)
+        if not via_steps:
+            return WPS.objects.create(state=state, **fields)
         wps = WPS.objects.create(**fields)
-        if state != WPSState.DRAFT:
-            WPS.objects.filter(pk=wps.pk).update(state=state)  # fixture shortcut past the approval flow
+        return self.move_wps(wps, state)
+
+    def move_wps(self, wps, state):
+        """Take a draft WPS to `state` through the real steps (procedures.services.wps)."""
+        from procedures.services import wps as steps
+
+        engineer, qa = self.make_user("welding_engineer"), self.make_user("qa_lead")
+        if state == WPSState.DRAFT:
+            return wps
+        steps.submit(wps, engineer)
+        if state in (WPSState.APPROVED, WPSState.SUPERSEDED, WPSState.WITHDRAWN):
+            steps.approve(wps, qa)
+        if state == WPSState.WITHDRAWN:
+            steps.withdraw(wps, qa, "No longer used")
+        if state == WPSState.SUPERSEDED:
+            steps.approve(steps.submit(steps.new_revision(wps, engineer), engineer), qa)
             wps.refresh_from_db()
         return wps
 
@@ -105,28 +124,62 @@ class Factory:
         fields.update(kwargs)
         return Weld.objects.create(**fields)
 
-    def make_inspection(self, weld=None, accepted=True, stage="final", inspector=None, **kwargs):
-        """A signed inspection row as the tablet flow stores it (verdict given, not judged: for state tests)."""
-        from inspections.models import Inspection
+    def make_inspection(self, weld=None, *, accepted=None, stage="final", user=None, supersedes=None, reason="",
+                        **observed):
+        """A signed inspection through the one signing path (inspections.services.inspect.sign_inspection).
 
-        fields = dict(weld=weld or self.make_weld(), stage=stage, inspector=inspector or self.make_user("inspector"),
-                      accepted=accepted, criteria_key="aws-d1.1-2020-static", criteria_version=1,
-                      findings=[{"criterion": "undersize", "ok": accepted, "message": "demo", "source": "demo"}])
-        if not accepted:
-            fields.setdefault("min_size", L("3/16 in"))
-            fields.setdefault("undersize_length", L("3 in"))
-        fields.update(kwargs)
-        return Inspection.objects.create(**fields)
+        With no observations: accepted=True (the default) measures the full specified leg; accepted=False a leg
+        1/16 in under size over 3 in of a 12 in weld (AWS D1.1:2020 Table 8.1 allows 10 % of the length), so the
+        engine rejects it and an NCR opens for a final inspection. At fit-up, `accepted` is the inspector's call.
+        Text values are lengths ("3/16 in").
+        """
+        from inspections.services.inspect import sign_inspection
 
-    def make_ncr(self, inspection=None, **kwargs):
-        """An open NCR from a rejected final inspection."""
-        from inspections.models import NCR
+        weld = weld or (supersedes.weld if supersedes is not None else self.make_weld())
+        user = user or (supersedes.inspector if supersedes is not None else self.make_user("inspector"))
+        observed = {k: (parse_length(v) if isinstance(v, str) else v) for k, v in observed.items()}
+        if stage == "fit_up":
+            observed.setdefault("fit_up_ok", accepted is not False)
+        elif not observed:
+            if accepted is False:
+                observed = {"min_size": Length(weld.size.mm - L("1/16 in").mm), "undersize_length": L("3 in")}
+            else:
+                observed = {"min_size": weld.size}
+        inspection = sign_inspection(weld, observed, stage, user, supersedes=supersedes, reason=reason)
+        if accepted is not None:
+            assert inspection.accepted == accepted, f"the engine judged {observed} otherwise: {inspection.findings}"
+        return inspection
+
+    def make_ncr(self, inspection=None):
+        """The NCR a rejected final inspection opened (inspections.services.ncr.open_ncr)."""
+        from inspections.services.ncr import open_ncr
 
         inspection = inspection or self.make_inspection(accepted=False)
-        fields = dict(number=f"NCR-{next(_counter):04d}", weld=inspection.weld, inspection=inspection,
-                      description="Leg undersize over 3 in at the north end", raised_by=inspection.inspector)
-        fields.update(kwargs)
-        return NCR.objects.create(**fields)
+        return open_ncr(inspection, inspection.inspector, "Leg undersize over 3 in at the north end")
+
+    def make_photo(self, inspection=None, content=None):
+        """A stored photo (files go to the test media folder) cleaned as an upload would be."""
+        from django.core.files.base import ContentFile
+
+        from inspections.models import Photo
+        from inspections.photos import clean_photo
+
+        inspection = inspection or self.make_inspection()
+        clean = clean_photo(io.BytesIO(content or png_bytes()))
+        return Photo.objects.create(
+            inspection=inspection, width=clean.width, height=clean.height, content_type=clean.content_type,
+            sha256=clean.sha256, uploaded_by=inspection.inspector,
+            image=ContentFile(clean.content, name=f"{inspection.pk}-test.{clean.extension}"),
+            thumbnail=ContentFile(clean.thumbnail, name=f"{inspection.pk}-test-thumb.jpg"))
 
 
-__all__ = ["Factory", "L", "parse_force"]
+def png_bytes(size=(40, 30), color=(200, 60, 20), fmt="PNG", **save):
+    """An image file's bytes, made in memory."""
+    from PIL import Image
+
+    out = io.BytesIO()
+    Image.new("RGB", size, color).save(out, fmt, **save)
+    return out.getvalue()
+
+
+__all__ = ["Factory", "L", "parse_force", "png_bytes"]

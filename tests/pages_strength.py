@@ -1,7 +1,6 @@
 """Role-matrix rows for the strength calculator and the calculation sheets: reading is open to every role."""
 
 from tests.conftest import ROLES
-from tests.pages_inspect import make_inspection
 
 OK, FOUND = 200, 302
 ALL_OK = {role: OK for role in ROLES}
@@ -13,6 +12,6 @@ PAGES = {
     "inspections:strength_sheet_pdf": (lambda make: {}, ALL_REDIRECTED),
     "inspections:weld_capacity": (lambda make: {"pk": make.make_weld().pk}, ALL_OK),
     "inspections:weld_capacity_pdf": (lambda make: {"pk": make.make_weld().pk}, ALL_OK),
-    "inspections:inspection_capacity": (lambda make: {"pk": make_inspection(make).pk}, ALL_OK),
-    "inspections:inspection_capacity_pdf": (lambda make: {"pk": make_inspection(make).pk}, ALL_OK),
+    "inspections:inspection_capacity": (lambda make: {"pk": make.make_inspection().pk}, ALL_OK),
+    "inspections:inspection_capacity_pdf": (lambda make: {"pk": make.make_inspection().pk}, ALL_OK),
 }

@@ -2,10 +2,10 @@
 
 from datetime import date
 
-from legwork.units import parse_force, parse_length
+from core.units import parse_force, parse_length
+from inspections import packets
 from procedures.models.wps import WPSState
 from tests.conftest import ROLES
-from tests.pages_inspect import make_inspection, make_photo
 
 OK, DENIED = 200, 403
 ALL_OK = {role: OK for role in ROLES}
@@ -36,13 +36,13 @@ def build_assembly(make, welds=3, photos=0, *, job=None, required_every=5, inspe
         made.append(weld)
     if inspect:
         for i, weld in enumerate(made):
-            make_inspection(make, weld, user=inspector, stage="fit_up")
-            final = make_inspection(make, weld, user=inspector, stage="final",
+            make.make_inspection(weld, user=inspector, stage="fit_up")
+            final = make.make_inspection(weld, user=inspector, stage="final",
                                     min_size=parse_length("3/16 in") if i == 0 else parse_length("1/4 in"))
             if i < photos:
-                make_photo(make, final)
+                make.make_photo(final)
         for extra in range(max(0, photos - len(made))):
-            make_photo(make, make_inspection(make, made[extra % len(made)], user=inspector, stage="in_process"))
+            make.make_photo(make.make_inspection(made[extra % len(made)], user=inspector, stage="in_process"))
     assembly.refresh_from_db()
     return assembly
 
@@ -71,8 +71,8 @@ def _packet(make, done=False):
     packet = JobPacket.objects.create(job=assembly.job, document_number=f"PKT-TEST-{assembly.pk}",
                                       assembly_pks=[assembly.pk], requested_by=make.make_user("qa_lead"))
     if done:
-        packet.start(1)
-        packet.finish(ContentFile(b"%PDF-test", name=f"{packet.document_number}.pdf"), "0" * 64, 1, [])
+        packets.start(packet, 1)
+        packets.finish(packet, ContentFile(b"%PDF-test", name=f"{packet.document_number}.pdf"), "0" * 64, 1, [])
     return packet
 
 

@@ -42,7 +42,7 @@ def test_a_pqr_behind_an_approved_wps_is_read_only_in_the_admin(admin_client_, m
     assert admin_client_.post(reverse("admin:procedures_pqr_change", args=[pqr.pk]), {}).status_code == 403
 
 
-@pytest.mark.parametrize("model", ["inspections_inspection", "inspections_ncr", "procedures_procedureevent",
-                                   "procedures_continuityentry", "inspections_assemblyevent"])
+@pytest.mark.parametrize("model", ["inspections_inspection", "inspections_ncr", "core_event",
+                                   "procedures_continuityentry", "inspections_photo"])
 def test_signed_records_and_history_cannot_be_added_in_the_admin(admin_client_, model):
     assert admin_client_.get(reverse(f"admin:{model}_add")).status_code == 403

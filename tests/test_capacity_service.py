@@ -11,18 +11,17 @@ from decimal import Decimal
 import pytest
 from django.template import Context, Template
 
+from core.units import parse_force, significant
 from inspections import strength
 from inspections.models import Inspection, Weld
 from inspections.services.capacity import (
-    capacity_context,
+    capacity_cards,
     capacity_for_inspection,
     capacity_for_weld,
     length_arg,
     normalize,
 )
-from legwork.units import parse_force, significant
 from tests.factory import L
-from tests.pages_inspect import make_inspection
 
 pytestmark = pytest.mark.django_db
 
@@ -56,7 +55,7 @@ def test_the_snapshot_is_plain_json(make):
     weld = make.make_weld(required_strength=parse_force("40 kip"), count=3)
     snapshot = capacity_for_weld(_weld(weld.pk))
     assert json.loads(json.dumps(snapshot)) == snapshot
-    inspection = make_inspection(make, weld, min_size="3/16 in", undersize_length="2 in")
+    inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="2 in")
     snapshot = capacity_for_inspection(_inspection(inspection.pk))
     assert json.loads(json.dumps(snapshot)) == snapshot
 
@@ -117,7 +116,7 @@ def test_a_groove_weld_gets_a_message_not_a_figure(make):
 def test_an_impossible_angle_on_the_weld_map_is_a_message_not_a_crash(make):
     snapshot = capacity_for_weld(_weld(make.make_weld(load_angle=200).pk))
     assert "outside 0 to 90 degrees" in snapshot["error"]
-    inspection = make_inspection(make, make.make_weld(load_angle=120), min_size="3/16 in", undersize_length="1 in")
+    inspection = make.make_inspection(make.make_weld(load_angle=120), min_size="3/16 in", undersize_length="1 in")
     assert "outside 0 to 90" in capacity_for_inspection(_inspection(inspection.pk))["error"]
 
 
@@ -142,7 +141,7 @@ def test_length_arg_is_exact_for_fractions_and_millimetres():
 
 def test_as_inspected_capacity_of_an_undersize_weld(make):
     weld = make.make_weld(size=L("5/16 in"), required_strength=parse_force("50 kip"))
-    inspection = make_inspection(make, weld, min_size="1/4 in", undersize_length="2 in")
+    inspection = make.make_inspection(weld, min_size="1/4 in", undersize_length="2 in")
     snapshot = capacity_for_inspection(_inspection(inspection.pk))
     # invented scenario, AISC 360-16 J2.4: Rn = 42 x (0.707 x 1/4 x 2 + 0.707 x 5/16 x 10) = 107.64075 kip
     assert figure(snapshot, 0, "nominal_kip") == Decimal("107.64075")
@@ -153,7 +152,7 @@ def test_as_inspected_capacity_of_an_undersize_weld(make):
 
 def test_a_leg_under_size_without_a_length_counts_the_whole_length(make):
     weld = make.make_weld(size=L("5/16 in"))
-    inspection = make_inspection(make, weld, min_size="1/4 in")
+    inspection = make.make_inspection(weld, min_size="1/4 in")
     snapshot = capacity_for_inspection(_inspection(inspection.pk))
     assert figure(snapshot, 0) == figure(snapshot, 1)  # as inspected = conservative
     assert any("whole length" in a for a in snapshot["assumptions"])
@@ -171,7 +170,7 @@ def test_no_leg_measured_means_the_specified_weld(make):
 
 def test_as_inspected_unequal_legs_go_to_the_engine(make):
     weld = make.make_weld(size=L("1/4 in"), size2=L("3/8 in"))
-    inspection = make_inspection(make, weld, min_size="3/16 in", undersize_length="12 in")
+    inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="12 in")
     snapshot = capacity_for_inspection(_inspection(inspection.pk))
     # our choice (engine docstring): each leg credited min(measured, specified) -> an equal 3/16 in fillet
     assert figure(snapshot, 0) == strength.fillet_strength("3/16 in", "12 in").lrfd_kip
@@ -179,7 +178,7 @@ def test_as_inspected_unequal_legs_go_to_the_engine(make):
 
 def test_asd_reads_the_required_strength_against_rn_over_omega(make):
     weld = make.make_weld(required_strength=parse_force("40 kip"))
-    inspection = make_inspection(make, weld, min_size="3/16 in", undersize_length="6 in")
+    inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="6 in")
     lrfd = capacity_for_inspection(_inspection(inspection.pk))
     asd = capacity_for_inspection(_inspection(inspection.pk), method="ASD")
     assert asd["method"] == "ASD" and Decimal(asd["ratio"]) > Decimal(lrfd["ratio"])  # Omega 2.00 vs phi 0.75
@@ -187,7 +186,7 @@ def test_asd_reads_the_required_strength_against_rn_over_omega(make):
 
 def test_an_inspection_snapshot_takes_no_query_when_its_records_are_selected(make, django_assert_num_queries):
     weld = make.make_weld(wps=make.make_wps())
-    inspection = _inspection(make_inspection(make, weld, min_size="3/16 in", undersize_length="1 in").pk)
+    inspection = _inspection(make.make_inspection(weld, min_size="3/16 in", undersize_length="1 in").pk)
     with django_assert_num_queries(0):
         capacity_for_inspection(inspection)
 
@@ -207,8 +206,8 @@ def test_normalize_reads_the_older_ncr_json():
 
 def test_the_weld_card_shows_design_and_the_latest_undersize_inspection(make):
     weld = make.make_weld(size=L("5/16 in"))
-    make_inspection(make, weld, min_size="1/4 in", undersize_length="3 in")
-    titles = [c["title"] for c in capacity_context(weld=_weld(weld.pk))["capacities"]]
+    make.make_inspection(weld, min_size="1/4 in", undersize_length="3 in")
+    titles = [c["title"] for c in capacity_cards(weld=_weld(weld.pk))]
     assert titles == [f"Design capacity of weld {weld.mark}", f"As-inspected capacity of weld {weld.mark}"]
 
 
@@ -216,24 +215,24 @@ def test_the_ncr_card_shows_the_stored_calculation_when_there_is_one(make):
     from inspections.models import NCR
 
     weld = make.make_weld(size=L("5/16 in"))
-    inspection = make_inspection(make, weld, min_size="3/16 in", undersize_length="3 in")
+    inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="3 in")
     ncr = NCR.objects.get(inspection=inspection) if NCR.objects.filter(inspection=inspection).exists() else None
     if ncr is None:
         pytest.skip("signing a rejected inspection does not open an NCR in this tree")
-    live = capacity_context(ncr=ncr)["capacities"][0]
+    live = capacity_cards(ncr=ncr)[0]
     assert live["kind"] == "as_inspected" and not live.get("stored")
     stored = capacity_for_inspection(_inspection(inspection.pk))
     NCR.objects.filter(pk=ncr.pk).update(capacity_calculation=stored)
     ncr.refresh_from_db()
-    card = capacity_context(ncr=ncr)["capacities"][0]
+    card = capacity_cards(ncr=ncr)[0]
     assert card["stored"] is True and card["results"] == stored["results"]
 
 
-def test_the_summary_tag_renders_the_card(make):
+def test_the_summary_partial_renders_the_cards(make):
     weld = make.make_weld(required_strength=parse_force("30 kip"))
-    inspection = make_inspection(make, weld, min_size="3/16 in", undersize_length="2 in")
-    html = Template("{% load strength_tags %}{% capacity_summary inspection=inspection %}").render(
-        Context({"inspection": _inspection(inspection.pk)}))
+    inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="2 in")
+    html = Template('{% include "inspections/partials/capacity_summary.html" %}').render(
+        Context({"capacities": capacity_cards(inspection=_inspection(inspection.pk))}))
     assert "As-inspected capacity of weld" in html and "Calculation sheet" in html
     assert "The engineer of record decides" in html and "carries it" in html
     html = Template('{% include "inspections/partials/capacity_summary.html" with capacity=c %}').render(

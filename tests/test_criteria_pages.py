@@ -4,8 +4,8 @@ only unless an engineer signs; verdicts keep the key and version they were judge
 import pytest
 from django.urls import reverse
 
+from core.errors import RecordLocked
 from inspections.models import ClientCriteriaSet
-from procedures.models.base import SignedRecordError
 from tests.pages_jobs import make_client_set
 
 URL = "inspections:criteria_derive"
@@ -78,7 +78,7 @@ def test_a_client_set_can_be_the_base_of_the_next(client_as, make):
 def test_a_stored_set_is_never_edited(make):
     stored = make_client_set(make)
     stored.title = "changed"
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         stored.save()
 
 

@@ -2,9 +2,9 @@
 
 from django.core.management import call_command
 
+from core.models import User
+from demo import scenario as demo
 from inspections.models import NCR, Assembly, Inspection, Job
-from legwork import demo
-from legwork.models import User
 from procedures.models import WPS
 
 

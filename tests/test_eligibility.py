@@ -13,6 +13,7 @@ from procedures import eligibility
 from procedures.eligibility import State, check_welder, check_welds, describe, record_production, welder_status
 from procedures.models import ContinuityEntry
 from procedures.qualification import WeldDemand
+from procedures.services import welders as welder_steps
 from tests.factory import L
 
 TEST_DAY = date(2026, 3, 10)  # the factory's test date
@@ -84,14 +85,14 @@ def test_a_weld_without_a_date_or_wps_gives_no_continuity(make, fcaw_wps):
 def test_manual_entries_keep_a_qualification_alive_too(make, users):
     welder = make.make_welder()
     make.make_qualification(welder, process="FCAW")
-    ContinuityEntry.log_manual(welder, "FCAW", date(2026, 9, 1), "Shop repair work order 5512", users["qa_lead"])
+    welder_steps.log_continuity(welder, "FCAW", date(2026, 9, 1), "Shop repair work order 5512", users["qa_lead"])
     assert welder_status(welder, on=date(2026, 10, 1)).state == State.QUALIFIED
 
 
 def test_a_use_after_continuity_lapsed_does_not_revive_the_test(make, users):
     welder = make.make_welder()
     make.make_qualification(welder, process="FCAW")
-    ContinuityEntry.log_manual(welder, "FCAW", date(2026, 10, 1), "Welded after the lapse", users["qa_lead"])
+    welder_steps.log_continuity(welder, "FCAW", date(2026, 10, 1), "Welded after the lapse", users["qa_lead"])
     status = welder_status(welder, on=date(2026, 10, 2))
     assert status.state == State.LAPSED
     assert "continuity lapsed on 2026-09-11" in status.reason
@@ -100,7 +101,7 @@ def test_a_use_after_continuity_lapsed_does_not_revive_the_test(make, users):
 def test_use_of_another_process_does_not_count(make, users):
     welder = make.make_welder()
     make.make_qualification(welder, process="FCAW")
-    ContinuityEntry.log_manual(welder, "SMAW", date(2026, 9, 1), "Stick repairs", users["qa_lead"])
+    welder_steps.log_continuity(welder, "SMAW", date(2026, 9, 1), "Stick repairs", users["qa_lead"])
     assert welder_status(welder, on=date(2026, 10, 1)).state == State.LAPSED
 
 
@@ -127,7 +128,7 @@ def test_inactive_and_untested_welders_have_their_own_state(make, users):
     untested = make.make_welder()
     gone = make.make_welder()
     make.make_qualification(gone)
-    gone.deactivate(users["welding_engineer"], "Left the shop")
+    welder_steps.deactivate(gone, users["welding_engineer"], "Left the shop")
     assert welder_status(untested).state == State.UNTESTED
     assert welder_status(gone).state == State.INACTIVE
     failed = make.make_welder()
@@ -221,7 +222,7 @@ def test_it_refuses_a_welder_with_no_test(make):
 def test_it_refuses_an_inactive_welder_from_the_day_of_deactivation(make, users):
     welder = make.make_welder()
     make.make_qualification(welder, test_date=date(2026, 11, 20))
-    welder.deactivate(users["welding_engineer"], "Left the shop")
+    welder_steps.deactivate(welder, users["welding_engineer"], "Left the shop")
     today = eligibility.timezone.localdate()
     assert check_welder(welder, demand(), date(2026, 11, 21)).allowed
     answer = check_welder(welder, demand(), today)
@@ -326,7 +327,7 @@ def test_a_lapse_date_is_never_typed_it_moves_with_the_last_use(make, users):
     welder = make.make_welder()
     make.make_qualification(welder, test_date=date(2026, 3, 31))
     before = welder_status(welder, on=date(2026, 4, 1)).lapses_on
-    ContinuityEntry.log_manual(welder, "FCAW", date(2026, 8, 31), "Tank repair", users["qa_lead"])
+    welder_steps.log_continuity(welder, "FCAW", date(2026, 8, 31), "Tank repair", users["qa_lead"])
     after = welder_status(welder, on=date(2026, 9, 1)).lapses_on
     assert before == date(2026, 10, 1)  # valid through 2026-09-30
     assert after == date(2027, 2, 28) + timedelta(days=1)  # 2026-08-31 + 6 months, clamped to 2027-02-28

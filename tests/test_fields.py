@@ -4,8 +4,8 @@ from decimal import Decimal
 
 import pytest
 
-from legwork.fields import LengthFormField, TemperatureFormField
-from legwork.units import Length, parse_length, parse_temperature
+from core.fields import LengthFormField, TemperatureFormField
+from core.units import Length, parse_length, parse_temperature
 from tests.factory import L
 
 

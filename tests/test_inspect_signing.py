@@ -4,13 +4,12 @@ version; a signed inspection is changed by no path (model, queryset, form, admin
 import pytest
 from django.urls import reverse
 
+from core.errors import RecordLocked, Refused
 from inspections.acceptance import evaluate
 from inspections.models import NCR, Inspection, Photo
 from inspections.models.jobs import AssemblyState
-from inspections.services.inspect import InspectionError, judge, nominal_throat, sign_inspection, weld_for_engine
-from procedures.models.base import SignedRecordError
+from inspections.services.inspect import judge, nominal_throat, sign_inspection, weld_for_engine
 from tests.factory import L
-from tests.pages_inspect import make_inspection, make_photo
 
 
 @pytest.fixture(autouse=True)
@@ -45,7 +44,7 @@ def test_the_verdict_is_the_engines_for_the_jobs_criteria(make):
 
 
 def test_signing_stores_findings_with_sources_and_the_criteria_version(make):
-    inspection = make_inspection(make, min_size="1/4 in")
+    inspection = make.make_inspection(min_size="1/4 in")
     inspection.refresh_from_db()
     assert inspection.accepted
     assert inspection.criteria_key == "aws-d1.1-2020-static" and inspection.criteria_version >= 1
@@ -54,7 +53,7 @@ def test_signing_stores_findings_with_sources_and_the_criteria_version(make):
 
 
 def test_a_rejected_final_inspection_opens_an_ncr_and_rejects_the_assembly(make):
-    inspection = make_inspection(make, min_size="1/8 in")
+    inspection = make.make_inspection(min_size="1/8 in")
     ncr = NCR.objects.get(inspection=inspection)
     assert "undersize" in ncr.description
     inspection.weld.assembly.refresh_from_db()
@@ -62,47 +61,47 @@ def test_a_rejected_final_inspection_opens_an_ncr_and_rejects_the_assembly(make)
 
 
 def test_a_rejected_in_process_inspection_opens_no_ncr(make):
-    make_inspection(make, min_size="1/8 in", stage="in_process")
+    make.make_inspection(min_size="1/8 in", stage="in_process")
     assert NCR.objects.count() == 0
 
 
 def test_it_refuses_to_save_a_signed_inspection_again(make):
-    inspection = make_inspection(make)
+    inspection = make.make_inspection()
     inspection.remarks = "changed"
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         inspection.save()
     assert Inspection.objects.get(pk=inspection.pk).remarks == ""
 
 
 def test_it_refuses_to_delete_a_signed_inspection(make):
-    inspection = make_inspection(make)
-    with pytest.raises(SignedRecordError):
+    inspection = make.make_inspection()
+    with pytest.raises(RecordLocked):
         inspection.delete()
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         Inspection.objects.filter(pk=inspection.pk).delete()
     assert Inspection.objects.filter(pk=inspection.pk).exists()
 
 
 def test_it_refuses_bulk_updates_of_signed_inspections(make):
-    inspection = make_inspection(make, min_size="1/8 in")
-    with pytest.raises(SignedRecordError):
+    inspection = make.make_inspection(min_size="1/8 in")
+    with pytest.raises(RecordLocked):
         Inspection.objects.filter(pk=inspection.pk).update(accepted=True)
     assert not Inspection.objects.get(pk=inspection.pk).accepted
 
 
 def test_photos_are_append_only_too(make):
-    photo = make_photo(make)
+    photo = make.make_photo()
     photo.caption = "changed"
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         photo.save()
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         photo.delete()
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         Photo.objects.filter(pk=photo.pk).update(caption="x")
 
 
 def test_the_admin_shows_inspections_read_only(make, client):
-    inspection = make_inspection(make, min_size="1/8 in")
+    inspection = make.make_inspection(min_size="1/8 in")
     admin = make.make_user("qa_lead", is_staff=True, is_superuser=True)
     client.force_login(admin)
     url = reverse("admin:inspections_inspection_change", args=[inspection.pk])
@@ -116,8 +115,8 @@ def test_the_admin_shows_inspections_read_only(make, client):
 
 
 def test_a_correction_supersedes_and_keeps_the_old_record(make):
-    old = make_inspection(make, min_size="1/8 in")
-    new = make_inspection(make, old.weld, user=old.inspector, supersedes=old, reason="misread the gauge",
+    old = make.make_inspection(min_size="1/8 in")
+    new = make.make_inspection(old.weld, user=old.inspector, supersedes=old, reason="misread the gauge",
                           min_size="1/4 in")
     assert new.supersedes == old and new.correction_reason == "misread the gauge"
     assert list(Inspection.objects.filter(weld=old.weld).current()) == [new]
@@ -126,19 +125,19 @@ def test_a_correction_supersedes_and_keeps_the_old_record(make):
 
 
 def test_it_refuses_to_correct_an_inspection_twice(make):
-    old = make_inspection(make, min_size="1/8 in")
-    make_inspection(make, old.weld, supersedes=old, reason="first")
-    with pytest.raises(InspectionError, match="already been corrected"):
-        make_inspection(make, old.weld, supersedes=old, reason="second")
+    old = make.make_inspection(min_size="1/8 in")
+    make.make_inspection(old.weld, supersedes=old, reason="first")
+    with pytest.raises(Refused, match="already been corrected"):
+        make.make_inspection(old.weld, supersedes=old, reason="second")
     assert Inspection.objects.count() == 2
 
 
 def test_it_refuses_a_correction_without_a_reason_or_of_another_weld(make):
-    old = make_inspection(make)
-    with pytest.raises(InspectionError, match="why"):
-        make_inspection(make, old.weld, supersedes=old, reason="  ")
-    with pytest.raises(InspectionError, match="same weld"):
-        make_inspection(make, make.make_weld(), supersedes=old, reason="wrong weld")
+    old = make.make_inspection()
+    with pytest.raises(Refused, match="why"):
+        make.make_inspection(old.weld, supersedes=old, reason="  ")
+    with pytest.raises(Refused, match="same weld"):
+        make.make_inspection(make.make_weld(), supersedes=old, reason="wrong weld")
     assert Inspection.objects.count() == 1
 
 
@@ -170,6 +169,6 @@ def test_a_released_assembly_takes_no_more_inspections(make):
 
     weld = make.make_weld()
     Assembly.objects.filter(pk=weld.assembly_id).update(state=AssemblyState.RELEASED)  # fixture shortcut
-    with pytest.raises(InspectionError, match="released"):
-        make_inspection(make, weld)
+    with pytest.raises(Refused, match="released"):
+        make.make_inspection(weld)
     assert Inspection.objects.count() == 0

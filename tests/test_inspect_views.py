@@ -6,7 +6,6 @@ from django.urls import reverse
 
 from inspections.models import NCR, Inspection
 from tests.factory import L
-from tests.pages_inspect import make_inspection, make_photo
 
 
 @pytest.fixture(autouse=True)
@@ -51,8 +50,8 @@ def test_the_assembly_page_shows_each_welds_state(make, client_as):
     bad = make.make_weld(assembly=assembly, mark="W1")
     good = make.make_weld(assembly=assembly, mark="W2")
     make.make_weld(assembly=assembly, mark="W3")
-    make_inspection(make, bad, min_size="1/8 in")
-    make_inspection(make, good)
+    make.make_inspection(bad, min_size="1/8 in")
+    make.make_inspection(good)
     html = client_as("viewer").get(reverse("inspections:inspect_assembly", args=[assembly.pk])).content.decode()
     assert "Open NCR" in html and "Accepted" in html and "Not inspected" in html
     assert reverse("inspections:inspect_weld", args=[good.pk]) not in html  # a viewer gets no form links
@@ -64,7 +63,7 @@ def test_the_assembly_page_uses_the_same_queries_for_2_or_20_welds(make, client_
         for i in range(n):
             weld = make.make_weld(assembly=assembly, mark=f"W{i}", wps=make.make_wps() if i % 2 else None)
             if i % 3 == 0:
-                make_inspection(make, weld, min_size="1/8 in" if i % 2 else "1/4 in")
+                make.make_inspection(weld, min_size="1/8 in" if i % 2 else "1/4 in")
         return reverse("inspections:inspect_assembly", args=[assembly.pk])
 
     small, large = page(2), page(20)
@@ -177,7 +176,7 @@ def test_signing_a_missing_weld_is_404(client_as, db):
 def test_the_weld_form_uses_a_fixed_number_of_queries(make, client_as, django_assert_num_queries):
     weld = make.make_weld()
     for _ in range(3):
-        make_inspection(make, weld)
+        make.make_inspection(weld)
     client = client_as("inspector")
     url = reverse("inspections:inspect_weld", args=[weld.pk])
     client.get(url)
@@ -188,9 +187,9 @@ def test_the_weld_form_uses_a_fixed_number_of_queries(make, client_as, django_as
 # --- the inspection page and corrections ------------------------------------------------------------------
 
 def test_the_inspection_page_shows_findings_sources_photos_and_the_chain(make, client_as):
-    old = make_inspection(make, min_size="1/8 in")
-    new = make_inspection(make, old.weld, supersedes=old, reason="misread the gauge", min_size="1/4 in")
-    make_photo(make, new)
+    old = make.make_inspection(min_size="1/8 in")
+    new = make.make_inspection(old.weld, supersedes=old, reason="misread the gauge", min_size="1/4 in")
+    make.make_photo(new)
     html = client_as("viewer").get(reverse("inspections:inspection_detail", args=[new.pk])).content.decode()
     assert "misread the gauge" in html and old.get_absolute_url() in html
     assert "AWS D1.1" in html and reverse("inspections:photo_thumbnail", args=[new.photos.get().pk]) in html
@@ -200,9 +199,9 @@ def test_the_inspection_page_shows_findings_sources_photos_and_the_chain(make, c
 
 
 def test_the_inspection_page_uses_a_fixed_number_of_queries(make, client_as, django_assert_num_queries):
-    inspection = make_inspection(make, min_size="1/8 in")
+    inspection = make.make_inspection(min_size="1/8 in")
     for _ in range(3):
-        make_photo(make, inspection)
+        make.make_photo(inspection)
     client = client_as("inspector")
     client.get(inspection.get_absolute_url())
     # session, user, inspection (+ weld, assembly, job, people, neighbours), later link, photos, NCRs
@@ -211,7 +210,7 @@ def test_the_inspection_page_uses_a_fixed_number_of_queries(make, client_as, dja
 
 
 def test_a_correction_through_the_page_supersedes_with_a_reason(make, client_as):
-    old = make_inspection(make, min_size="1/8 in")
+    old = make.make_inspection(min_size="1/8 in")
     client = client_as("inspector")
     url = reverse("inspections:inspection_correct", args=[old.pk])
     form = client.get(url).content.decode()
@@ -223,7 +222,7 @@ def test_a_correction_through_the_page_supersedes_with_a_reason(make, client_as)
 
 
 def test_a_correction_needs_a_reason_and_changes_nothing_without_one(make, client_as):
-    old = make_inspection(make, min_size="1/8 in")
+    old = make.make_inspection(min_size="1/8 in")
     response = client_as("inspector").post(reverse("inspections:inspection_correct", args=[old.pk]),
                                            _post(old.weld, min_size="1/4", correction_reason="   "))
     assert response.status_code == 200 and "Say why" in response.content.decode()
@@ -231,10 +230,10 @@ def test_a_correction_needs_a_reason_and_changes_nothing_without_one(make, clien
 
 
 def test_correcting_a_superseded_inspection_leads_to_the_latest(make, client_as):
-    old = make_inspection(make, min_size="1/8 in")
-    new = make_inspection(make, old.weld, supersedes=old, reason="first")
+    old = make.make_inspection(min_size="1/8 in")
+    new = make.make_inspection(old.weld, supersedes=old, reason="first")
     response = client_as("inspector").post(reverse("inspections:inspection_correct", args=[old.pk]),
-                                           _post(old.weld, min_size="1/4", correction_reason="second"))
+                                           _post(old.weld, min_size="1/4", reason="second"))
     assert response.status_code == 302 and response.url == new.get_absolute_url()
     assert Inspection.objects.count() == 2
 

@@ -215,9 +215,9 @@ def _weld_map(make, n):
         weld = make.make_weld(assembly=assembly, mark=f"W{i:03d}", wps=wps, welded_on=timezone.localdate())
         weld.welders.set(welders)
         if i % 3 == 0:
-            make.make_inspection(weld=weld, accepted=True, inspector=inspector)
+            make.make_inspection(weld=weld, accepted=True, user=inspector)
         elif i % 3 == 1:
-            make.make_ncr(inspection=make.make_inspection(weld=weld, accepted=False, inspector=inspector))
+            make.make_ncr(inspection=make.make_inspection(weld=weld, accepted=False, user=inspector))
     return assembly
 
 

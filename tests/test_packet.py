@@ -6,9 +6,9 @@ import io
 import pytest
 from pypdf import PdfReader
 
+from core.errors import Refused
 from inspections import packets
 from inspections.models import JobPacket, PacketState, Traveler
-from inspections.models.traveler import PacketStateError
 from tests.pages_travelers import build_assembly
 
 pytestmark = pytest.mark.pdf
@@ -87,25 +87,25 @@ def test_a_failure_marks_the_packet_failed_with_the_reason(make, users, monkeypa
 def test_packet_steps_check_the_stored_state(make, users):
     job = make.make_job()
     packet = JobPacket.objects.create(job=job, document_number="PKT-S", assembly_pks=[], requested_by=users["qa_lead"])
-    with pytest.raises(PacketStateError):
-        packet.advance(1, "x")
-    packet.start(3)
-    with pytest.raises(PacketStateError):
-        packet.start(3)
-    packet.advance(2, "half")
+    with pytest.raises(Refused):
+        packets.advance(packet, 1, "x")
+    packets.start(packet, 3)
+    with pytest.raises(Refused):
+        packets.start(packet, 3)
+    packets.advance(packet, 2, "half")
     packet.refresh_from_db()
     assert (packet.state, packet.progress_done, packet.step, packet.percent) == ("running", 2, "half", 66)
-    packet.fail("stopped")
-    with pytest.raises(PacketStateError):
-        packet.fail("again")
+    packets.fail(packet, "stopped")
+    with pytest.raises(Refused):
+        packets.fail(packet, "again")
 
 
 def test_it_refuses_assemblies_of_another_job_or_none(make, users):
     job = make.make_job()
     other = make.make_assembly()
-    with pytest.raises(packets.PacketError):
+    with pytest.raises(packets.Refused):
         packets.start_packet(job, [], users["qa_lead"])
-    with pytest.raises(packets.PacketError):
+    with pytest.raises(packets.Refused):
         packets.start_packet(job, [other.pk], users["qa_lead"])
     assert not JobPacket.objects.exists()
 

@@ -13,7 +13,7 @@ from PIL import Image
 
 from inspections.models import Photo
 from inspections.photos import THUMBNAIL_PX, PhotoError, clean_photo
-from tests.pages_inspect import make_inspection, make_photo, png_bytes
+from tests.factory import png_bytes
 
 
 @pytest.fixture(autouse=True)
@@ -132,14 +132,14 @@ def test_pillows_own_bomb_error_becomes_a_clear_refusal(settings, monkeypatch):
 
 
 def test_the_photo_view_needs_a_login(make, client):
-    photo = make_photo(make)
+    photo = make.make_photo()
     url = reverse("inspections:photo_file", args=[photo.pk])
     response = client.get(url)
     assert response.status_code == 302 and response.url.startswith(reverse("login"))
 
 
 def test_the_photo_view_sends_the_cleaned_file_with_a_disposition(make, client_as):
-    photo = make_photo(make)
+    photo = make.make_photo()
     response = client_as("viewer").get(reverse("inspections:photo_file", args=[photo.pk]))
     assert response.status_code == 200
     assert response["Content-Type"] == "image/png"
@@ -156,13 +156,13 @@ def test_a_missing_photo_is_404(client_as):
 
 
 def test_there_is_no_public_media_url(client_as, make, settings):
-    photo = make_photo(make)
+    photo = make.make_photo()
     assert not settings.MEDIA_URL or client_as("viewer").get(f"/{settings.MEDIA_URL.strip('/')}/"
                                                             f"{photo.image.name}").status_code == 404
 
 
 def test_an_inspector_attaches_a_photo_to_a_signed_inspection(make, client_as, users):
-    inspection = make_inspection(make, user=users["inspector"])
+    inspection = make.make_inspection(user=users["inspector"])
     upload = SimpleUploadedFile("weld.jpg", _jpeg_with_gps_and_orientation(), content_type="image/jpeg")
     response = client_as("inspector").post(reverse("inspections:photo_add", args=[inspection.pk]),
                                            {"image": upload, "caption": "toe of W1"})
@@ -175,7 +175,7 @@ def test_an_inspector_attaches_a_photo_to_a_signed_inspection(make, client_as, u
 
 
 def test_a_refused_photo_is_a_field_error_and_stores_nothing(make, client_as):
-    inspection = make_inspection(make)
+    inspection = make.make_inspection()
     upload = SimpleUploadedFile("weld.gif", png_bytes(fmt="GIF"), content_type="image/gif")
     response = client_as("inspector").post(reverse("inspections:photo_add", args=[inspection.pk]), {"image": upload})
     assert response.status_code == 400
@@ -185,7 +185,7 @@ def test_a_refused_photo_is_a_field_error_and_stores_nothing(make, client_as):
 
 @pytest.mark.parametrize("role", ["viewer", "qa_lead", "welding_engineer"])
 def test_other_roles_cannot_attach_photos(make, client_as, role):
-    inspection = make_inspection(make)
+    inspection = make.make_inspection()
     upload = SimpleUploadedFile("weld.png", png_bytes(), content_type="image/png")
     response = client_as(role).post(reverse("inspections:photo_add", args=[inspection.pk]), {"image": upload})
     assert response.status_code == 403
@@ -193,8 +193,8 @@ def test_other_roles_cannot_attach_photos(make, client_as, role):
 
 
 def test_photos_go_on_the_current_inspection_only(make, client_as):
-    old = make_inspection(make, min_size="1/8 in")
-    make_inspection(make, old.weld, supersedes=old, reason="misread")
+    old = make.make_inspection(min_size="1/8 in")
+    make.make_inspection(old.weld, supersedes=old, reason="misread")
     upload = SimpleUploadedFile("weld.png", png_bytes(), content_type="image/png")
     response = client_as("inspector").post(reverse("inspections:photo_add", args=[old.pk]), {"image": upload})
     assert response.status_code == 302 and Photo.objects.count() == 0

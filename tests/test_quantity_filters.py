@@ -3,7 +3,7 @@
 from django.template import Context, Template
 from django.urls import reverse
 
-from legwork.units import parse_force, parse_temperature
+from core.units import parse_force, parse_temperature
 from tests.factory import L
 
 

@@ -11,11 +11,10 @@ import pytest
 from django.urls import reverse
 from pypdf import PdfReader
 
-from legwork.roles import CAUTIONS
-from legwork.units import parse_force
+from core.roles import CAUTIONS
+from core.units import parse_force
 from tests.conftest import ROLES
 from tests.factory import L
-from tests.pages_inspect import make_inspection
 
 pytestmark = pytest.mark.django_db
 
@@ -60,7 +59,7 @@ def test_missing_records_are_404(client_as):
 def test_the_pages_answer_only_get(client_as, make):
     client = client_as("qa_lead")
     assert client.post(CALC, MANUAL).status_code == 405
-    assert client.post(reverse("inspections:inspection_capacity", args=[make_inspection(make).pk])).status_code == 405
+    assert client.post(reverse("inspections:inspection_capacity", args=[make.make_inspection().pk])).status_code == 405
 
 
 # --- published figures through the page -------------------------------------------------------------------
@@ -185,7 +184,7 @@ def test_the_calculator_pdf_carries_the_steps_and_the_cautions(client_as):
 
 def test_the_inspection_pdf_shows_the_as_inspected_capacity(client_as, make):
     weld = make.make_weld(size=L("5/16 in"), required_strength=parse_force("50 kip"))
-    inspection = make_inspection(make, weld, min_size="1/4 in", undersize_length="2 in")
+    inspection = make.make_inspection(weld, min_size="1/4 in", undersize_length="2 in")
     response = client_as("qa_lead").get(reverse("inspections:inspection_capacity_pdf", args=[inspection.pk]))
     assert f"inspection-{inspection.pk}.pdf" in response["Content-Disposition"]
     text = flat(pdf_text(response))
@@ -198,7 +197,7 @@ def test_the_inspection_pdf_shows_the_as_inspected_capacity(client_as, make):
 
 def test_the_inspection_sheet_offers_asd(client_as, make):
     weld = make.make_weld(required_strength=parse_force("30 kip"))
-    inspection = make_inspection(make, weld, min_size="3/16 in", undersize_length="2 in")
+    inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="2 in")
     url = reverse("inspections:inspection_capacity", args=[inspection.pk])
     page = client_as("inspector").get(url, {"method": "ASD"}).content.decode()
     assert "Required strength read as <strong>ASD</strong>" in page
@@ -228,7 +227,7 @@ def test_the_calculator_changes_nothing(client_as, make, django_assert_num_queri
 
 def test_the_weld_page_shows_the_design_and_as_inspected_capacity(client_as, make):
     weld = make.make_weld(size=L("5/16 in"), required_strength=parse_force("50 kip"))
-    make_inspection(make, weld, min_size="1/4 in", undersize_length="2 in")
+    make.make_inspection(weld, min_size="1/4 in", undersize_length="2 in")
     page = client_as("viewer").get(reverse("inspections:weld_detail", args=[weld.pk])).content.decode()
     assert f"Design capacity of weld {weld.mark}" in page and f"As-inspected capacity of weld {weld.mark}" in page
     assert reverse("inspections:weld_capacity_pdf", args=[weld.pk]) in page
@@ -236,10 +235,10 @@ def test_the_weld_page_shows_the_design_and_as_inspected_capacity(client_as, mak
 
 def test_the_inspection_page_shows_the_capacity_only_when_a_leg_is_under_size(client_as, make):
     weld = make.make_weld(size=L("5/16 in"))
-    short = make_inspection(make, weld, min_size="1/4 in", undersize_length="2 in")
+    short = make.make_inspection(weld, min_size="1/4 in", undersize_length="2 in")
     page = client_as("inspector").get(short.get_absolute_url()).content.decode()
     assert "As-inspected capacity of weld" in page and "The engineer of record decides" in page
-    full = make_inspection(make, make.make_weld(), min_size="1/4 in")
+    full = make.make_inspection(make.make_weld(), min_size="1/4 in")
     assert "As-inspected capacity" not in client_as("inspector").get(full.get_absolute_url()).content.decode()
 
 
@@ -247,7 +246,7 @@ def test_the_ncr_page_shows_the_as_inspected_capacity(client_as, make):
     from inspections.models import NCR
 
     weld = make.make_weld(size=L("5/16 in"))
-    inspection = make_inspection(make, weld, min_size="3/16 in", undersize_length="3 in")
+    inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="3 in")
     ncr = NCR.objects.filter(inspection=inspection).first()
     if ncr is None:
         pytest.skip("signing a rejected inspection does not open an NCR in this tree")

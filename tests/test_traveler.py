@@ -11,11 +11,11 @@ from django.core.files.storage import default_storage
 from PIL import Image
 from pypdf import PdfReader
 
+from core.errors import RecordLocked
+from core.units import parse_length
 from inspections import traveler as traveler_module
 from inspections.models import Traveler
 from inspections.traveler import assembly_url, fingerprint, gather, issue, read_stored
-from legwork.units import parse_length
-from procedures.models.base import SignedRecordError
 from tests.pages_travelers import build_assembly
 
 pytestmark = pytest.mark.pdf
@@ -92,11 +92,11 @@ def test_a_change_after_issue_makes_the_next_issue_a_new_revision(make, users):
 
 def test_an_issued_traveler_is_never_edited_or_deleted(make, users):
     traveler, _ = issue(build_assembly(make, welds=1), users["qa_lead"])
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         traveler.save()
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         traveler.delete()
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         Traveler.objects.filter(pk=traveler.pk).update(pages=9)
 
 

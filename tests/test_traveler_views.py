@@ -5,6 +5,7 @@ import hashlib
 import pytest
 from django.urls import reverse
 
+from inspections import packets
 from inspections.models import JobPacket, PacketState, Traveler
 from tests.pages_travelers import build_assembly
 
@@ -89,8 +90,8 @@ def test_a_running_packet_keeps_polling_and_cannot_be_downloaded(make, client_as
     job = make.make_job()
     packet = JobPacket.objects.create(job=job, document_number="PKT-R", assembly_pks=[],
                                       requested_by=users["qa_lead"])
-    packet.start(4)
-    packet.advance(1, "Traveler B1 (1 of 2)")
+    packets.start(packet, 4)
+    packets.advance(packet, 1, "Traveler B1 (1 of 2)")
     progress = client_as("viewer").get(reverse("inspections:packet_progress", args=[packet.pk])).content.decode()
     assert 'hx-trigger="every 1s"' in progress and 'value="25"' in progress and "Traveler B1" in progress
     assert client_as("viewer").get(reverse("inspections:packet_download", args=[packet.pk])).status_code == 404

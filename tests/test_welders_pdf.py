@@ -8,7 +8,7 @@ from django.utils import timezone
 from pypdf import PdfReader
 
 from procedures.eligibility import record_production
-from procedures.models import ContinuityEntry
+from procedures.services import welders as welder_steps
 from tests.factory import L
 
 
@@ -27,7 +27,7 @@ def test_the_summary_prints_ranges_lapse_dates_and_continuity(client_as, make, u
     weld = make.make_weld(wps=make.make_wps(), welded_on=date(2026, 5, 4), mark="W-9")
     weld.welders.set([welder])
     record_production(weld)
-    ContinuityEntry.log_manual(welder, "FCAW", date(2026, 9, 1), "Work order 5512", users["qa_lead"])
+    welder_steps.log_continuity(welder, "FCAW", date(2026, 9, 1), "Work order 5512", users["qa_lead"])
 
     response = client_as("viewer").get(reverse("procedures:welder_pdf", args=[welder.pk]))
     text = pdf_text(response)

@@ -7,8 +7,8 @@ import pytest
 from django.core.files.uploadedfile import SimpleUploadedFile
 from django.urls import reverse
 
+from core.errors import Refused
 from inspections.models import Weld
-from inspections.services import StepRefused
 from inspections.services.weldmap_csv import MAX_BYTES, export_weld_map, import_weld_map, read_weld_map
 from procedures.models.wps import WPSState
 from tests.factory import L
@@ -67,7 +67,7 @@ def test_a_bad_row_is_named_and_nothing_is_imported(job, bad_row, error):
     assert not preview.ok
     assert [r.line for r in preview.bad_rows] == [5]
     assert error in " ".join(preview.bad_rows[0].errors)
-    with pytest.raises(StepRefused):
+    with pytest.raises(Refused):
         import_weld_map(data, job)
     assert not Weld.objects.exists()
 

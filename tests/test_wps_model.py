@@ -5,9 +5,11 @@ from decimal import Decimal
 import pytest
 from django.core.exceptions import PermissionDenied
 
-from legwork.units import parse_speed, parse_temperature
-from procedures.models import SignedRecordError
-from procedures.models.wps import WPS, ProcedureEvent, ProcedureStateError, WPSState
+from core.errors import RecordLocked, Refused
+from core.history import history_of
+from core.units import parse_speed, parse_temperature
+from procedures.models.wps import WPS, WPSState
+from procedures.services import wps as wps_steps
 from tests.factory import L
 
 
@@ -105,64 +107,65 @@ def test_a_pqr_computes_its_heat_input_on_save(make):
 
 def test_the_engineer_submits_and_the_qa_lead_approves(make, engineer, qa):
     wps = make.make_wps()
-    wps.submit(engineer)
-    wps.approve(qa)
+    wps_steps.submit(wps, engineer)
+    wps_steps.approve(wps, qa)
     wps.refresh_from_db()
     assert wps.state == WPSState.APPROVED
     assert wps.approved_by == qa and wps.approved_at is not None
-    history = [(e.from_state, e.to_state, e.user) for e in wps.events.all()]
+    history = [(e.from_state, e.to_state, e.user) for e in history_of(wps).all()]
     assert history == [("draft", "submitted", engineer), ("submitted", "approved", qa)]
 
 
 def test_only_the_qa_lead_approves(make, users):
     wps = make.make_wps(state=WPSState.SUBMITTED)
+    before = history_of(wps).count()
     for role in ("welding_engineer", "inspector", "viewer"):
         with pytest.raises(PermissionDenied):
-            wps.approve(users[role])
+            wps_steps.approve(wps, users[role])
     wps.refresh_from_db()
-    assert wps.state == WPSState.SUBMITTED and not wps.events.exists()
+    assert wps.state == WPSState.SUBMITTED and history_of(wps).count() == before
 
 
 def test_a_draft_with_an_error_finding_cannot_be_submitted(make, engineer):
     wps = _error_wps(make)
-    with pytest.raises(ProcedureStateError, match="DCEN"):
-        wps.submit(engineer)
+    with pytest.raises(Refused, match="DCEN"):
+        wps_steps.submit(wps, engineer)
     wps.refresh_from_db()
-    assert wps.state == WPSState.DRAFT and not wps.events.exists()
+    assert wps.state == WPSState.DRAFT and not history_of(wps).exists()
 
 
 def test_a_wps_with_an_error_finding_cannot_be_approved(make, qa):
-    wps = _error_wps(make, state=WPSState.SUBMITTED)
-    with pytest.raises(ProcedureStateError, match="Cannot approve"):
-        wps.approve(qa)
+    wps = _error_wps(make, state=WPSState.SUBMITTED, via_steps=False)
+    with pytest.raises(Refused, match="Cannot approve"):
+        wps_steps.approve(wps, qa)
     wps.refresh_from_db()
-    assert wps.state == WPSState.SUBMITTED and wps.approved_by is None and not wps.events.exists()
+    assert wps.state == WPSState.SUBMITTED and wps.approved_by is None and not history_of(wps).exists()
 
 
 def test_a_draft_cannot_be_approved_without_being_submitted(make, qa):
     wps = make.make_wps()
-    with pytest.raises(ProcedureStateError, match="submitted"):
-        wps.approve(qa)
+    with pytest.raises(Refused, match="submitted"):
+        wps_steps.approve(wps, qa)
 
 
 def test_the_qa_lead_returns_a_submission_with_a_reason(make, qa):
     wps = make.make_wps(state=WPSState.SUBMITTED)
-    with pytest.raises(ProcedureStateError, match="reason"):
-        wps.return_to_draft(qa, "   ")
-    wps.return_to_draft(qa, "Interpass temperature missing")
+    with pytest.raises(Refused, match="reason"):
+        wps_steps.return_to_draft(wps, qa, "   ")
+    wps_steps.return_to_draft(wps, qa, "Interpass temperature missing")
     wps.refresh_from_db()
     assert wps.state == WPSState.DRAFT
-    assert wps.events.get().reason == "Interpass temperature missing"
+    assert history_of(wps).last().reason == "Interpass temperature missing"
 
 
 def test_an_approved_wps_cannot_be_saved_or_deleted(make):
     wps = make.make_wps(state=WPSState.APPROVED)
     wps.title = "Changed in place"
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         wps.save()
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         wps.save(update_fields=["title"])
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         wps.delete()
     assert WPS.objects.get(pk=wps.pk).title != "Changed in place"
 
@@ -171,45 +174,46 @@ def test_an_approved_wps_cannot_be_saved_or_deleted(make):
 def test_no_state_but_draft_can_be_saved(make, state):
     wps = make.make_wps(state=state)
     wps.amperage_max = 400
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         wps.save()
 
 
 def test_a_new_revision_copies_the_approved_wps_into_a_draft(make, engineer):
     pqr = make.make_pqr()
-    old = make.make_wps(state=WPSState.APPROVED, basis="test")
+    old = make.make_wps(basis="test")
     old.pqrs.add(pqr)
-    new = old.new_revision(engineer)
+    make.move_wps(old, WPSState.APPROVED)
+    new = wps_steps.new_revision(old, engineer)
     assert (new.number, new.revision, new.state, new.supersedes) == (old.number, 1, WPSState.DRAFT, old)
     assert list(new.pqrs.all()) == [pqr]
     assert new.electrode == old.electrode and new.thickness_max == old.thickness_max
     assert new.approved_by is None and new.created_by == engineer
-    assert new.events.get().to_state == WPSState.DRAFT
+    assert history_of(new).get().to_state == WPSState.DRAFT
     old.refresh_from_db()
     assert old.state == WPSState.APPROVED  # still in use until the revision is approved
 
 
 def test_only_one_revision_is_drafted_at_a_time(make, engineer):
     old = make.make_wps(state=WPSState.APPROVED)
-    old.new_revision(engineer)
-    with pytest.raises(ProcedureStateError, match="already the next revision"):
-        old.new_revision(engineer)
+    wps_steps.new_revision(old, engineer)
+    with pytest.raises(Refused, match="already the next revision"):
+        wps_steps.new_revision(old, engineer)
     assert WPS.objects.filter(number=old.number).count() == 2
 
 
 def test_only_an_approved_wps_gets_a_new_revision(make, engineer):
-    with pytest.raises(ProcedureStateError):
-        make.make_wps().new_revision(engineer)
+    with pytest.raises(Refused):
+        wps_steps.new_revision(make.make_wps(), engineer)
 
 
 def test_approving_a_revision_supersedes_the_one_it_revises(make, engineer, qa):
     old = make.make_wps(state=WPSState.APPROVED)
-    new = old.new_revision(engineer)
-    new.submit(engineer)
-    new.approve(qa)
+    new = wps_steps.new_revision(old, engineer)
+    wps_steps.submit(new, engineer)
+    wps_steps.approve(new, qa)
     old.refresh_from_db()
     assert old.state == WPSState.SUPERSEDED
-    event = old.events.get()
+    event = history_of(old).last()
     assert (event.from_state, event.to_state, event.user) == ("approved", "superseded", qa)
     assert "revision 1" in event.reason
     assert WPS.objects.filter(number=old.number, state=WPSState.APPROVED).get() == new
@@ -217,12 +221,12 @@ def test_approving_a_revision_supersedes_the_one_it_revises(make, engineer, qa):
 
 def test_a_failed_approval_of_a_revision_leaves_the_old_one_approved(make, engineer, qa):
     old = make.make_wps(state=WPSState.APPROVED)
-    new = old.new_revision(engineer)
+    new = wps_steps.new_revision(old, engineer)
     WPS.objects.filter(pk=new.pk).update(current="DCEN", process="SMAW", electrode="E7018",
                                          electrode_diameter=Decimal("3.175"), state=WPSState.SUBMITTED)
     new.refresh_from_db()
-    with pytest.raises(ProcedureStateError):
-        new.approve(qa)
+    with pytest.raises(Refused):
+        wps_steps.approve(new, qa)
     old.refresh_from_db()
     assert old.state == WPSState.APPROVED
 
@@ -230,21 +234,21 @@ def test_a_failed_approval_of_a_revision_leaves_the_old_one_approved(make, engin
 def test_withdrawing_needs_a_reason_and_the_qa_lead(make, engineer, qa):
     wps = make.make_wps(state=WPSState.APPROVED)
     with pytest.raises(PermissionDenied):
-        wps.withdraw(engineer, "Obsolete")
-    with pytest.raises(ProcedureStateError, match="reason"):
-        wps.withdraw(qa, "")
-    wps.withdraw(qa, "Wire no longer stocked")
+        wps_steps.withdraw(wps, engineer, "Obsolete")
+    with pytest.raises(Refused, match="reason"):
+        wps_steps.withdraw(wps, qa, "")
+    wps_steps.withdraw(wps, qa, "Wire no longer stocked")
     wps.refresh_from_db()
     assert wps.state == WPSState.WITHDRAWN
-    assert wps.events.get().reason == "Wire no longer stocked"
+    assert history_of(wps).last().reason == "Wire no longer stocked"
 
 
 def test_history_rows_are_never_changed(make, engineer):
     wps = make.make_wps()
-    wps.submit(engineer)
-    event = ProcedureEvent.objects.get(wps=wps)
+    wps_steps.submit(wps, engineer)
+    event = history_of(wps).get()
     event.reason = "rewritten"
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         event.save()
-    with pytest.raises(SignedRecordError):
+    with pytest.raises(RecordLocked):
         event.delete()

@@ -8,6 +8,7 @@ from django.utils import timezone
 from pypdf import PdfReader
 
 from procedures.models.wps import WPS, WPSState
+from procedures.services import wps as wps_steps
 from tests.factory import L
 
 pytestmark = pytest.mark.pdf
@@ -50,11 +51,9 @@ def test_an_approved_wps_prints_its_approver_variables_and_pqrs(client_as, make,
 
 def test_a_superseded_wps_prints_do_not_use(client_as, make, users):
     old = make.make_wps(state=WPSState.APPROVED)
-    WPS.objects.filter(pk=old.pk).update(approved_by=users["qa_lead"], approved_at=timezone.now())
-    old.refresh_from_db()
-    new = old.new_revision(users["welding_engineer"])
-    new.submit(users["welding_engineer"])
-    new.approve(users["qa_lead"])
+    new = wps_steps.new_revision(old, users["welding_engineer"])
+    wps_steps.submit(new, users["welding_engineer"])
+    wps_steps.approve(new, users["qa_lead"])
     _, text = _pdf(client_as("viewer"), old)
     assert "SUPERSEDED by revision 1" in text
 

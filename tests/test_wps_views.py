@@ -3,7 +3,9 @@
 import pytest
 from django.urls import reverse
 
-from procedures.models.wps import WPS, ProcedureEvent, WPSState
+from core.history import history_of
+from core.models import Event
+from procedures.models.wps import WPS, WPSState
 from tests.factory import L
 
 VALID = {
@@ -118,7 +120,7 @@ def test_buttons_follow_the_role(client_as, make):
 
 
 def test_the_approve_button_explains_why_it_cannot_be_pressed(client_as, make):
-    wps = make.make_wps(state=WPSState.SUBMITTED, basis="test")
+    wps = make.make_wps(state=WPSState.SUBMITTED, via_steps=False, basis="test")
     html = client_as("qa_lead").get(wps.get_absolute_url()).content.decode()
     assert "Cannot be approved" in html and "no supporting PQR" in html
     assert "disabled" in html
@@ -135,7 +137,7 @@ def test_the_engineer_drafts_a_wps(client_as, users):
     assert wps.electrode_diameter == L("0.045 in") and wps.travel_speed_min.in_per_min == 8
     assert wps.positions == "F, H, V, OH" and wps.base_metals == "ASTM A992, ASTM A572 Gr 50"
     assert wps.created_by == users["welding_engineer"]
-    assert wps.events.get().to_state == WPSState.DRAFT
+    assert history_of(wps).get().to_state == WPSState.DRAFT
 
 
 def test_bare_lengths_are_read_in_millimetres_on_an_si_wps(client_as):
@@ -173,7 +175,7 @@ def test_bad_input_is_refused_beside_its_field_and_saves_nothing(client_as, fiel
     errors = response.context["form"].errors
     assert field in errors, errors
     assert message.lower() in " ".join(errors[field]).lower()
-    assert not WPS.objects.exists() and not ProcedureEvent.objects.exists()
+    assert not WPS.objects.exists() and not Event.objects.exists()
 
 
 def test_the_electrode_message_says_which_part_is_wrong(client_as):
@@ -308,13 +310,13 @@ def test_state_change_posts_refuse_every_other_role(client_as, make, name, state
 
 
 def test_approving_a_wps_with_an_error_finding_through_the_page_changes_nothing(client_as, make):
-    wps = make.make_wps(state=WPSState.SUBMITTED, process="SMAW", electrode="E7018",
+    wps = make.make_wps(state=WPSState.SUBMITTED, via_steps=False, process="SMAW", electrode="E7018",
                         electrode_diameter=L("1/8 in"), current="DCEN")
     client = client_as("qa_lead")
     response = client.post(reverse("procedures:wps_approve", args=[wps.pk]), follow=True)
     assert "Cannot approve" in response.content.decode()
     wps.refresh_from_db()
-    assert wps.state == WPSState.SUBMITTED and not wps.events.exists()
+    assert wps.state == WPSState.SUBMITTED and not history_of(wps).exists()
 
 
 def test_a_new_revision_opens_its_draft_and_approval_supersedes(client_as, make):
@@ -344,7 +346,7 @@ def test_withdraw_asks_for_a_reason_beside_the_field(client_as, make):
     assert client.post(url, {"reason": "Replaced by the SAW procedure"}).status_code == 302
     wps.refresh_from_db()
     assert wps.state == WPSState.WITHDRAWN
-    event = wps.events.get()
+    event = history_of(wps).last()
     assert (event.reason, event.from_state, event.to_state) == ("Replaced by the SAW procedure", "approved",
                                                                "withdrawn")
     assert client.get(url).status_code == 302  # nothing left to withdraw

@@ -8,8 +8,6 @@ a plain dict (CriteriaSet.to_dict / from_dict); evaluate() takes a key, a set or
 
 from __future__ import annotations
 
-import copy
-
 from . import aws_d1_1_2020, iso_5817_2014
 from .base import (
     Band,
@@ -52,32 +50,8 @@ def resolve(criteria) -> CriteriaSet:
     if isinstance(criteria, CriteriaSet):
         return criteria
     if isinstance(criteria, dict):
-        return _from_stored_dict(criteria)
+        return from_dict(criteria)
     return get_criteria(criteria)
-
-
-# Reading a stored set (from_dict) costs milliseconds and a signing reads its job's client set twice (the form's
-# verdict, then the signed one). A client set never changes once stored (a new version is a new row), so the sets
-# read are kept by (key, version); a hit is used only when the dict is equal to the one the set was read from,
-# so a different definition under the same key and version (a test database, a hand edit) is read afresh.
-_STORED_SETS: dict[tuple, tuple[dict, CriteriaSet]] = {}
-_STORED_SETS_MAX = 64
-
-
-def _from_stored_dict(definition: dict) -> CriteriaSet:
-    try:
-        cache_key = (definition.get("key"), definition.get("version"))
-        hash(cache_key)
-    except TypeError:
-        return from_dict(definition)
-    hit = _STORED_SETS.get(cache_key)
-    if hit is not None and hit[0] == definition:
-        return hit[1]
-    cset = from_dict(definition)  # raises on a bad definition: nothing is kept
-    if len(_STORED_SETS) >= _STORED_SETS_MAX:
-        _STORED_SETS.pop(next(iter(_STORED_SETS)))
-    _STORED_SETS[cache_key] = (copy.deepcopy(definition), cset)
-    return cset
 
 
 def derive(base_key, new_key: str, overrides: dict, title: str, signed_by_engineer: bool = False, *,

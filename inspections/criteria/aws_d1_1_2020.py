@@ -11,7 +11,7 @@ Adding an edition: copy this module to aws_d1_1_<year>.py, change values, source
 
 from decimal import Decimal
 
-from legwork.units import parse_length as _len
+from core.units import parse_length as _len
 
 from .base import FROM_MEMORY, PUBLISHED, Band, Banded, Count, CriteriaSet, Fixed, Permission, Ratio, Threshold
 

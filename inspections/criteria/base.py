@@ -13,7 +13,7 @@ from dataclasses import dataclass, field, replace
 from decimal import Decimal, InvalidOperation
 from types import MappingProxyType
 
-from legwork.units import Length, UnitError, format_length, inch_fraction, parse_length
+from core.units import Length, UnitError, format_length, inch_fraction, parse_length
 
 SYSTEMS = ("US", "SI")
 PUBLISHED = "published"

@@ -10,7 +10,7 @@ The table below is the data: one row per imperfection, one column per quality le
 
 from decimal import Decimal
 
-from legwork.units import parse_length as _len
+from core.units import parse_length as _len
 
 from .base import FROM_MEMORY, PUBLISHED, CriteriaSet, Permission, Proportional, Threshold
 

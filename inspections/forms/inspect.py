@@ -6,12 +6,11 @@ millimetres on an SI job; '5/32', '1-1/2"', '0.1875 in' and '4 mm' work everywhe
 
 from django import forms
 
+from core.fields import set_unit_system
+from core.units import parse_length
 from inspections.models import Inspection, InspectionStage, Weld
 from inspections.models.inspection import FLAG_OBSERVATIONS, LENGTH_OBSERVATIONS
 from inspections.photos import PhotoError, clean_photo
-from inspections.services.inspect import judge
-from legwork.fields import set_unit_system
-from legwork.units import parse_length
 
 MAX_DEFECT = parse_length("1000 mm")  # nothing a fillet gauge reads on one weld is longer than a metre
 MAX_SIZE = parse_length("100 mm")
@@ -34,7 +33,7 @@ class FindAssemblyForm(forms.Form):
 
 
 class InspectionForm(forms.ModelForm):
-    """One weld's observations. Clean judges them with the engine (self.verdict); nothing is saved here."""
+    """One weld's observations, read and bounded; judging and saving is inspections.services.inspect's."""
 
     class Meta:
         model = Inspection
@@ -50,7 +49,6 @@ class InspectionForm(forms.ModelForm):
         super().__init__(*args, **kwargs)
         self.weld = weld
         self.fields["fit_up_ok"].widget.attrs.update({"role": "switch", "class": "form-check-input lw-flag"})
-        self.verdict = None
         system = weld.assembly.job.unit_system
         set_unit_system(self, system)
         unit = "in" if system == "US" else "mm"
@@ -97,12 +95,6 @@ class InspectionForm(forms.ModelForm):
         for name in ("undersize_length", "undercut_length"):
             if data.get(name) is not None and data[name] > weld.length:
                 self.add_error(name, "This is longer than the weld itself; measure it along this weld only.")
-        if self.errors:
-            return data
-        try:
-            self.verdict = judge(weld, data)
-        except ValueError as exc:
-            raise forms.ValidationError(str(exc), code="engine") from None
         return data
 
     def _clean_fit_up(self, data):
@@ -111,8 +103,6 @@ class InspectionForm(forms.ModelForm):
             if data.get(name) not in (None, False):
                 self.add_error(name, "Fit-up comes before welding: record this at the in-process or final "
                                      "inspection, or choose that stage.")
-        if not self.errors:
-            self.verdict = judge(self.weld, data, InspectionStage.FIT_UP)
         return data
 
     def _post_clean(self):

@@ -3,8 +3,8 @@
 from django import forms
 from django.utils import timezone
 
+from core.fields import LengthFormField, set_unit_system
 from inspections.models import Assembly, ClientCriteriaSet, Job, Weld
-from legwork.fields import LengthFormField, set_unit_system
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
@@ -211,7 +211,7 @@ class ScrapForm(forms.Form):
 
 
 def add_step_errors(form, exc):
-    """Put a StepRefused's messages next to the fields they name (others at the top of the form)."""
+    """Put a Refused's messages next to the fields they name (others at the top of the form)."""
     if hasattr(exc, "error_dict"):
         for name, errors in exc.message_dict.items():
             form.add_error(name if name in form.fields else None, errors)

@@ -6,10 +6,10 @@ checked by the engine itself (inspections.strength), so its message appears next
 
 from django import forms
 
+from core.fields import ForceFormField, LengthFormField, set_unit_system
+from core.units import parse_area
 from inspections import strength
 from inspections.services.capacity import CalculatorInputError, capacity_for_calculator, length_arg
-from legwork.fields import ForceFormField, LengthFormField, set_unit_system
-from legwork.units import parse_area
 
 SYSTEMS = [("US", "US (in, ksi, kip)"), ("SI", "SI (mm, MPa, kN)")]
 METHODS = [("LRFD", "LRFD (factored load, phi Rn)"), ("ASD", "ASD (service load, Rn / Omega)")]

@@ -5,7 +5,7 @@ from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from procedures.models.base import SignedRecordError
+from core.errors import RecordLocked
 
 
 class ClientCriteriaSet(models.Model):
@@ -28,11 +28,11 @@ class ClientCriteriaSet(models.Model):
 
     def save(self, *args, **kwargs):
         if self.pk and not self._state.adding:
-            raise SignedRecordError("A client criteria set is never edited; derive a new version.")
+            raise RecordLocked("A client criteria set is never edited; derive a new version.")
         super().save(*args, **kwargs)
 
     def delete(self, *args, **kwargs):
-        raise SignedRecordError("A client criteria set cannot be deleted: verdicts name it.")
+        raise RecordLocked("A client criteria set cannot be deleted: verdicts name it.")
 
     def get_absolute_url(self):
         return reverse("inspections:criteria_client_detail", args=[self.pk])

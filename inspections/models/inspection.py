@@ -6,8 +6,8 @@ from django.db.models import Exists, OuterRef
 from django.urls import reverse
 from django.utils import timezone
 
-from legwork.fields import LengthField
-from procedures.models.base import SignedRecordError
+from core.errors import RecordLocked
+from core.fields import LengthField
 
 
 class InspectionStage(models.TextChoices):
@@ -24,10 +24,10 @@ class InspectionQuerySet(models.QuerySet):
         return self.filter(~Exists(Inspection.objects.filter(supersedes=OuterRef("pk"))))
 
     def update(self, **kwargs):
-        raise SignedRecordError("Signed inspections cannot be changed; record a correction that supersedes one.")
+        raise RecordLocked("Signed inspections cannot be changed; record a correction that supersedes one.")
 
     def delete(self):
-        raise SignedRecordError("Signed inspections cannot be deleted; record a correction that supersedes one.")
+        raise RecordLocked("Signed inspections cannot be deleted; record a correction that supersedes one.")
 
 
 # Observation fields, named as inspections.acceptance.evaluate reads them.
@@ -82,11 +82,11 @@ class Inspection(models.Model):
 
     def save(self, *args, **kwargs):
         if self.pk is not None and not self._state.adding:
-            raise SignedRecordError("A signed inspection cannot be changed; record a correction that supersedes it.")
+            raise RecordLocked("A signed inspection cannot be changed; record a correction that supersedes it.")
         super().save(*args, **kwargs)
 
     def delete(self, *args, **kwargs):
-        raise SignedRecordError("A signed inspection cannot be deleted; record a correction that supersedes it.")
+        raise RecordLocked("A signed inspection cannot be deleted; record a correction that supersedes it.")
 
     def get_absolute_url(self):
         return reverse("inspections:inspection_detail", args=[self.pk])
@@ -114,10 +114,10 @@ def photo_path(photo, filename):
 
 class PhotoQuerySet(models.QuerySet):
     def update(self, **kwargs):
-        raise SignedRecordError("A photo attached to a signed inspection cannot be changed.")
+        raise RecordLocked("A photo attached to a signed inspection cannot be changed.")
 
     def delete(self):
-        raise SignedRecordError("A photo attached to a signed inspection cannot be deleted.")
+        raise RecordLocked("A photo attached to a signed inspection cannot be deleted.")
 
 
 class Photo(models.Model):
@@ -147,8 +147,8 @@ class Photo(models.Model):
 
     def save(self, *args, **kwargs):
         if self.pk is not None and not self._state.adding:
-            raise SignedRecordError("A photo attached to a signed inspection cannot be changed.")
+            raise RecordLocked("A photo attached to a signed inspection cannot be changed.")
         super().save(*args, **kwargs)
 
     def delete(self, *args, **kwargs):
-        raise SignedRecordError("A photo attached to a signed inspection cannot be deleted.")
+        raise RecordLocked("A photo attached to a signed inspection cannot be deleted.")

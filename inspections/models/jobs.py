@@ -5,8 +5,8 @@ from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from legwork.fields import ForceField, LengthField
-from procedures.models.base import WELD_POSITION_CHOICES, JointType, Position, UnitSystem
+from core.fields import ForceField, LengthField
+from core.vocabulary import WELD_POSITION_CHOICES, JointType, Position, UnitSystem
 
 
 class Job(models.Model):
@@ -90,23 +90,6 @@ class Assembly(models.Model):
         return self.state in (AssemblyState.RELEASED, AssemblyState.SCRAPPED)
 
 
-class AssemblyEvent(models.Model):
-    """One state change of an assembly, with who, when and why; append-only."""
-
-    assembly = models.ForeignKey(Assembly, on_delete=models.PROTECT, related_name="events")
-    from_state = models.CharField(max_length=20, choices=AssemblyState.choices)
-    to_state = models.CharField(max_length=20, choices=AssemblyState.choices)
-    reason = models.TextField(blank=True)
-    user = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
-    at = models.DateTimeField(default=timezone.now)
-
-    class Meta:
-        ordering = ["at", "pk"]
-
-    def __str__(self):
-        return f"{self.assembly}: {self.from_state} -> {self.to_state}"
-
-
 class Sides(models.TextChoices):
     ARROW = "arrow", "Arrow side"
     OTHER = "other", "Other side"
@@ -138,6 +121,12 @@ class Weld(models.Model):
     transverse_to_tension = models.BooleanField("transverse to tensile stress", default=False)
     required_strength = ForceField(null=True, blank=True, help_text="From the engineer of record, when given")
     load_angle = models.DecimalField("load angle to weld axis (°)", max_digits=5, decimal_places=2, default=0)
+    # Kept by inspections.services.inspect.sign_inspection, the one path by which inspections are stored: the
+    # weld's latest current inspection of any stage, and its latest current final visual inspection.
+    latest_inspection = models.ForeignKey("inspections.Inspection", null=True, blank=True, editable=False,
+                                          on_delete=models.PROTECT, related_name="+")
+    latest_final = models.ForeignKey("inspections.Inspection", null=True, blank=True, editable=False,
+                                     on_delete=models.PROTECT, related_name="+")
 
     class Meta:
         ordering = ["assembly", "mark"]

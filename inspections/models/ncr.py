@@ -6,7 +6,7 @@ from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from procedures.models.base import SignedRecordError
+from core.errors import RecordLocked
 
 
 class NCRState(models.TextChoices):
@@ -58,13 +58,13 @@ class NCR(models.Model):
         return f"NCR {self.number}"
 
     def save(self, *args, **kwargs):
-        # Only the named steps in inspections.services.ncr move an NCR on, saving just their fields.
-        if self.pk and not self._state.adding and kwargs.get("update_fields") is None:
-            raise SignedRecordError(f"{self} is a signed record; use its disposition steps, not an edit.")
+        # Only the named steps in inspections.services.ncr move an NCR on (core.transitions, past this guard).
+        if self.pk and not self._state.adding:
+            raise RecordLocked(f"{self} is a signed record; use its disposition steps, not an edit.")
         super().save(*args, **kwargs)
 
     def delete(self, *args, **kwargs):
-        raise SignedRecordError(f"{self} cannot be deleted; close it with a disposition.")
+        raise RecordLocked(f"{self} cannot be deleted; close it with a disposition.")
 
     def get_absolute_url(self):
         return reverse("inspections:ncr_detail", args=[self.pk])
@@ -73,21 +73,3 @@ class NCR(models.Model):
     def is_open(self):
         """Not closed: blocks the assembly's release (a repair stays open until an accepted re-inspection)."""
         return self.state != NCRState.CLOSED
-
-
-class NCREvent(models.Model):
-    """One step of an NCR (opened, dispositioned, closed): who, when, from, to, why. Append-only."""
-
-    ncr = models.ForeignKey(NCR, on_delete=models.PROTECT, related_name="events")
-    from_state = models.CharField(max_length=14, choices=NCRState.choices, blank=True)
-    to_state = models.CharField(max_length=14, choices=NCRState.choices)
-    reason = models.TextField(blank=True)
-    user = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
-    at = models.DateTimeField(default=timezone.now)
-
-    class Meta:
-        ordering = ["at", "pk"]
-        verbose_name = "NCR event"
-
-    def __str__(self):
-        return f"{self.ncr}: {self.from_state or '-'} -> {self.to_state}"

@@ -2,16 +2,16 @@
 
 An issued traveler is a stored file with its SHA-256, never rendered again in place: printing it again
 serves the same bytes, and issuing after a change writes a new revision beside it. A packet is built
-by a background task (inspections.tasks) and moves queued -> running -> done | failed; once done its
-file, like a traveler's, is never replaced.
+by a background task (inspections.packets) and moves queued -> running -> done | failed (inspections.packets,
+each step through core.transitions); once done its file, like a traveler's, is never replaced.
 """
 
 from django.conf import settings
-from django.db import models, transaction
+from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from procedures.models.base import SignedRecordError
+from core.errors import RecordLocked
 
 
 def traveler_path(traveler, filename):
@@ -24,10 +24,10 @@ def packet_path(packet, filename):
 
 class TravelerQuerySet(models.QuerySet):
     def update(self, **kwargs):
-        raise SignedRecordError("An issued traveler cannot be changed; issue a new revision.")
+        raise RecordLocked("An issued traveler cannot be changed; issue a new revision.")
 
     def delete(self):
-        raise SignedRecordError("An issued traveler cannot be deleted: customers hold copies of it.")
+        raise RecordLocked("An issued traveler cannot be deleted: customers hold copies of it.")
 
 
 class Traveler(models.Model):
@@ -59,11 +59,11 @@ class Traveler(models.Model):
 
     def save(self, *args, **kwargs):
         if self.pk is not None and not self._state.adding:
-            raise SignedRecordError("An issued traveler cannot be changed; issue a new revision.")
+            raise RecordLocked("An issued traveler cannot be changed; issue a new revision.")
         super().save(*args, **kwargs)
 
     def delete(self, *args, **kwargs):
-        raise SignedRecordError("An issued traveler cannot be deleted: customers hold copies of it.")
+        raise RecordLocked("An issued traveler cannot be deleted: customers hold copies of it.")
 
     def get_absolute_url(self):
         return reverse("inspections:traveler_download", args=[self.pk])
@@ -78,10 +78,6 @@ class PacketState(models.TextChoices):
     RUNNING = "running", "Building"
     DONE = "done", "Done"
     FAILED = "failed", "Failed"
-
-
-class PacketStateError(Exception):
-    """A packet step that does not apply to the packet's stored state."""
 
 
 class JobPacket(models.Model):
@@ -131,52 +127,3 @@ class JobPacket(models.Model):
     @property
     def filename(self):
         return f"{self.document_number}.pdf"
-
-    # --- steps: each checks the stored state under a lock and saves only what it changes -------------------
-
-    def _locked(self):
-        return JobPacket.objects.select_for_update().get(pk=self.pk)
-
-    def _apply(self, locked, **fields):
-        for name, value in fields.items():
-            setattr(locked, name, value)
-            setattr(self, name, value)
-        locked.save(update_fields=list(fields))
-
-    def start(self, total: int):
-        """queued -> running, with the number of steps the progress bar counts."""
-        with transaction.atomic():
-            # Lock: a worker retrying a task must not start a packet another worker already runs.
-            locked = self._locked()
-            if locked.state != PacketState.QUEUED:
-                raise PacketStateError(f"{locked} is {locked.get_state_display().lower()}, not queued.")
-            self._apply(locked, state=PacketState.RUNNING, started_at=timezone.now(), progress_total=total,
-                        progress_done=0, step="Starting")
-
-    def advance(self, done: int, step: str):
-        """Record progress while running (the page polls it)."""
-        with transaction.atomic():
-            locked = self._locked()
-            if locked.state != PacketState.RUNNING:
-                raise PacketStateError(f"{locked} is {locked.get_state_display().lower()}, not running.")
-            self._apply(locked, progress_done=min(done, locked.progress_total), step=step[:120])
-
-    def finish(self, file, sha256: str, pages: int, index: list):
-        """running -> done: the file is stored once and never replaced."""
-        with transaction.atomic():
-            locked = self._locked()
-            if locked.state != PacketState.RUNNING:
-                raise PacketStateError(f"{locked} is {locked.get_state_display().lower()}, not running.")
-            locked.file = file
-            self._apply(locked, file=locked.file, sha256=sha256, pages=pages, index=index,
-                        state=PacketState.DONE, progress_done=locked.progress_total, step="Done",
-                        finished_at=timezone.now())
-
-    def fail(self, message: str):
-        """queued | running -> failed, with what went wrong in words."""
-        with transaction.atomic():
-            locked = self._locked()
-            if locked.state in (PacketState.DONE, PacketState.FAILED):
-                raise PacketStateError(f"{locked} is already {locked.get_state_display().lower()}.")
-            self._apply(locked, state=PacketState.FAILED, error=message[:2000], step="Failed",
-                        finished_at=timezone.now())

@@ -1,14 +1,3 @@
-"""State changes of jobs, assemblies and NCRs: each a named function that checks, locks, saves and records why.
-
-Views call these and never set a state themselves. A refused step raises a StepRefused (a ValidationError)
-whose messages a view shows next to the button that asked for it.
-"""
-
-from django.core.exceptions import ValidationError
-
-
-class StepRefused(ValidationError):
-    """A state change whose precondition does not hold; the messages say why, in the shop's words."""
-
-
-__all__ = ["StepRefused"]
+"""State changes of jobs, assemblies, inspections and NCRs: one function per step, each through
+core.transitions.transition (lock, check, save, history). Views call these and never set a state themselves;
+a refused step raises core.errors.Refused, whose messages the view shows beside the button that asked."""

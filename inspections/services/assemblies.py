@@ -4,22 +4,21 @@ in_fabrication -> awaiting_inspection (submit_for_inspection, or a final inspect
 awaiting_inspection -> rejected (a rejected inspection or an open NCR; refresh_assembly_state)
 rejected -> awaiting_inspection (nothing blocks any more; refresh_assembly_state)
 awaiting_inspection -> released (release, by the QA lead, refused while anything blocks)
-released -> rejected (a correction rejects a weld after release; refresh_assembly_state)
 any -> scrapped (an NCR dispositioned as scrap; inspections.services.ncr)
 
-Every change writes an AssemblyEvent (who, when, from, to, why).
+Every change goes through core.transitions.transition (lock, check, save, history).
 """
 
 from dataclasses import dataclass, field
 
-from django.db import connections, router, transaction
-from django.db.models import Exists, OuterRef, Q, Subquery
+from django.db import transaction
+from django.db.models import Exists, OuterRef, Q
 from django.utils import timezone
 
-from inspections.models import NCR, Assembly, AssemblyEvent, AssemblyState, Inspection, InspectionStage
+from core.errors import Refused
+from core.transitions import transition
+from inspections.models import NCR, Assembly, AssemblyState, Inspection, InspectionStage, Weld
 from inspections.models.ncr import Disposition, NCRState
-from inspections.services import StepRefused
-from legwork.roles import require
 
 CLOSED_STATES = {AssemblyState.RELEASED, AssemblyState.SCRAPPED}
 
@@ -74,24 +73,18 @@ class WeldStatus:
 
 
 def weld_statuses(weld_ids) -> dict[int, WeldStatus]:
-    """Status of many welds in two queries, whatever their number."""
+    """Status of many welds in two queries, whatever their number or their inspection history's length."""
     weld_ids = list(weld_ids)
     statuses = {pk: WeldStatus(pk) for pk in weld_ids}
     if not weld_ids:
         return statuses
-    # Only the latest current inspection of each weld and its latest current final one come back (at most two
-    # rows a weld): a weld inspected a hundred times must not cost a hundred model instances on every save.
-    newest = Inspection.objects.current().filter(weld_id=OuterRef("weld_id")).order_by("-inspected_at", "-pk")
-    current = (Inspection.objects.current().filter(weld_id__in=weld_ids)
-               .filter(Q(pk=Subquery(newest.values("pk")[:1]))
-                       | Q(pk=Subquery(newest.filter(stage=InspectionStage.FINAL).values("pk")[:1])))
-               .select_related("inspector").order_by("weld_id", "-inspected_at", "-pk"))
-    for inspection in current:
-        status = statuses[inspection.weld_id]
-        if status.latest is None:
-            status.latest = inspection
-        if status.final is None and inspection.stage == InspectionStage.FINAL:
-            status.final = inspection
+    # The weld rows point at their latest current inspection and latest current final one (kept at signing).
+    for weld in (Weld.objects.filter(pk__in=weld_ids).only("pk", "latest_inspection", "latest_final")
+                 .select_related("latest_inspection__inspector", "latest_final__inspector")):
+        status = statuses[weld.pk]
+        status.latest, status.final = weld.latest_inspection, weld.latest_final
+        if status.latest is not None and status.final is not None and status.latest.pk == status.final.pk:
+            status.final = status.latest  # one object, so `latest is final` holds
     for ncr in NCR.objects.filter(weld_id__in=weld_ids).order_by("-raised_at", "-pk"):
         statuses[ncr.weld_id].ncrs.append(ncr)
     return statuses
@@ -120,139 +113,69 @@ def release_blockers(assembly, statuses=None, welds=None) -> list[str]:
     return reasons
 
 
-def _move(assembly, to_state, user, reason="", **fields):
-    """Save the new state (and only the fields it changes) and write the history row. Caller holds the lock."""
-    old = assembly.state
-    assembly.state = to_state
-    for name, value in fields.items():
-        setattr(assembly, name, value)
-    assembly.save(update_fields=["state", *fields])
-    AssemblyEvent.objects.create(assembly=assembly, from_state=old, to_state=to_state, reason=reason, user=user)
-    return assembly
-
-
-def _locked(assembly) -> Assembly:
-    # Lock the row so two people acting at once cannot both move the assembly from a stale state.
-    return Assembly.objects.select_for_update().select_related("job").get(pk=assembly.pk)
-
-
 def submit_for_inspection(assembly, user, reason=""):
     """The shop says the assembly is welded and ready for final visual inspection."""
-    require(user, "assembly.submit")
-    with transaction.atomic():
-        locked = _locked(assembly)
-        if locked.state != AssemblyState.IN_FABRICATION:
-            raise StepRefused(f"Only an assembly in fabrication can be sent for inspection; this one is "
-                              f"{locked.get_state_display().lower()}.", code="state")
+
+    def has_welds(locked):
         if not locked.welds.exists():
-            raise StepRefused("The weld map is empty: add the welds before sending it for inspection.", code="empty")
-        _move(locked, AssemblyState.AWAITING_INSPECTION, user, reason or "Sent for inspection")
-    return locked
+            raise Refused("The weld map is empty: add the welds before sending it for inspection.", code="empty")
+
+    return transition(assembly, user=user, permission="assembly.submit", allowed_from={AssemblyState.IN_FABRICATION},
+                      to=AssemblyState.AWAITING_INSPECTION, check=has_welds, reason=reason or "Sent for inspection")
 
 
 def release(assembly, user, reason=""):
-    """The QA lead releases the assembly: refused with an open NCR or a weld without an accepted final inspection."""
-    require(user, "assembly.release")
-    with transaction.atomic():
-        locked = _locked(assembly)
+    """The QA lead releases the assembly: refused while release_blockers() names anything."""
+
+    def nothing_blocks(locked):
         reasons = release_blockers(locked)
         if reasons:
-            raise StepRefused(reasons, code="blocked")
-        _move(locked, AssemblyState.RELEASED, user, reason or "Released", released_by=user, released_at=timezone.now())
-    return locked
+            raise Refused(reasons, code="blocked")
+
+    # Any state may ask; release_blockers says why a closed or rejected one cannot be released.
+    return transition(assembly, user=user, permission="assembly.release", allowed_from=set(AssemblyState),
+                      to=AssemblyState.RELEASED, check=nothing_blocks, reason=reason or "Released",
+                      released_by=user, released_at=timezone.now())
 
 
 def scrap(assembly, user, reason):
     """Scrap the assembly (an NCR disposition): terminal, nothing more is inspected or released."""
-    with transaction.atomic():
-        locked = _locked(assembly)
-        if locked.state == AssemblyState.SCRAPPED:
-            return locked
-        _move(locked, AssemblyState.SCRAPPED, user, reason)
-    return locked
-
-
-def _state_facts_query(assembly_pk):
-    """Assembly `assembly_pk` -> (a weld rejected or an NCR open, any current final inspection).
-
-    The same rules as WeldStatus.rejected and WeldStatus.final, asked as EXISTS questions, so that a save does
-    not build a WeldStatus (two inspections and every NCR) for each weld of the assembly.
-    """
-    open_ncr = NCR.objects.filter(weld__assembly_id=OuterRef("pk")).exclude(state=NCRState.CLOSED)
-    newest = (Inspection.objects.current().filter(weld_id=OuterRef("weld_id"))
-              .order_by("-inspected_at", "-pk").values("pk")[:1])
-    use_as_is = NCR.objects.filter(inspection_id=OuterRef("pk"), state=NCRState.CLOSED,
-                                   disposition=Disposition.USE_AS_IS)
-    # A weld rejects when its latest current inspection rejected it, unless that is its current final
-    # inspection and an NCR on it was closed as use-as-is (WeldStatus.rejected).
-    latest_rejects = (Inspection.objects.filter(weld__assembly_id=OuterRef("pk"), accepted=False,
-                                                pk=Subquery(newest))
-                      .exclude(Q(stage=InspectionStage.FINAL) & Exists(use_as_is)))
-    any_final = Inspection.objects.current().filter(weld__assembly_id=OuterRef("pk"), stage=InspectionStage.FINAL)
-    return (Assembly.objects.filter(pk=assembly_pk)
-            .values_list(Exists(open_ncr) | Exists(latest_rejects), Exists(any_final)))
-
-
-class CompiledQuery:
-    """A query the ORM builds once per database alias; each call runs that SQL with fresh parameters.
-
-    For the few queries every signing runs, whose building costs far more than running them (the state query
-    below: ~13 ms to build against ~0.1 ms to run, on SQLite). `build(*args)` returns a values_list queryset in
-    which each argument appears exactly once among the SQL parameters (it is built with markers in their place).
-    """
-
-    _MARKS = (-7_406_193_117, -7_406_193_119, -7_406_193_121)
-
-    def __init__(self, model, build, nargs=1):
-        self.model, self.build, self.marks = model, build, self._MARKS[:nargs]
-        self._compiled: dict[str, tuple[str, tuple]] = {}
-
-    def rows(self, *args) -> list[tuple]:
-        connection = connections[router.db_for_write(self.model)]
-        compiled = self._compiled.get(connection.alias)
-        if compiled is None:
-            sql, params = self.build(*self.marks).query.get_compiler(connection=connection).as_sql()
-            for mark in self.marks:  # pragma: no cover - a Django change would show here
-                if sum(1 for p in params if p == mark) != 1:
-                    raise RuntimeError(f"{self.build.__name__}: each argument must appear once in the parameters.")
-            compiled = self._compiled[connection.alias] = (sql, tuple(params))
-        sql, params = compiled
-        values = dict(zip(self.marks, args, strict=True))
-        with connection.cursor() as cursor:
-            cursor.execute(sql, [values.get(p, p) if isinstance(p, int) else p for p in params])
-            return cursor.fetchall()
-
-
-_state_facts_sql = CompiledQuery(Assembly, _state_facts_query)
-_locked_state_sql = CompiledQuery(
-    Assembly, lambda pk: Assembly.objects.select_for_update().filter(pk=pk).values_list("state"))
+    if assembly.state == AssemblyState.SCRAPPED:
+        return assembly
+    return transition(assembly, user=user, to=AssemblyState.SCRAPPED, reason=reason,
+                      allowed_from=set(AssemblyState.values) - {AssemblyState.SCRAPPED})
 
 
 def _state_facts(assembly_pk) -> tuple[bool, bool]:
-    """_state_facts_query's answer for one assembly, in one query."""
-    rows = _state_facts_sql.rows(assembly_pk)
-    if not rows:
-        raise Assembly.DoesNotExist(f"No assembly with pk {assembly_pk}.")
-    return bool(rows[0][0]), bool(rows[0][1])
+    """(a weld rejected or an NCR open, any current final inspection) for one assembly, in one query.
+
+    The same rules as WeldStatus.rejected and WeldStatus.final, asked of the weld rows' pointers to their
+    latest inspections, so a save does not build a WeldStatus for each weld of the assembly.
+    """
+    open_ncr = NCR.objects.filter(weld__assembly_id=OuterRef("pk")).exclude(state=NCRState.CLOSED)
+    use_as_is = NCR.objects.filter(inspection_id=OuterRef("latest_inspection_id"), state=NCRState.CLOSED,
+                                   disposition=Disposition.USE_AS_IS)
+    # A weld rejects when its latest current inspection rejected it, unless that is a final inspection an NCR
+    # closed as use-as-is (WeldStatus.rejected).
+    latest_rejects = (Weld.objects.filter(assembly_id=OuterRef("pk"), latest_inspection__accepted=False)
+                      .exclude(Q(latest_inspection__stage=InspectionStage.FINAL) & Exists(use_as_is)))
+    any_final = Weld.objects.filter(assembly_id=OuterRef("pk"), latest_final__isnull=False)
+    rejected, finals = (Assembly.objects.filter(pk=assembly_pk)
+                        .values_list(Exists(open_ncr) | Exists(latest_rejects), Exists(any_final)).get())
+    return bool(rejected), bool(finals)
 
 
-def refresh_assembly_state(assembly, user=None, reason=""):
+def refresh_assembly_state(assembly, user, reason=""):
     """Recompute the state after an inspection or an NCR step; returns the (possibly unchanged) state.
 
-    Called by the inspection flow after every saved inspection and by the NCR steps. `user` is who caused it;
-    when not given, the inspector of the assembly's latest inspection. Two queries when nothing changes: the
-    locked state and _state_facts.
+    Called by the inspection flow after every saved inspection and by the NCR steps; `user` is who caused it.
     """
     with transaction.atomic():
-        # Lock the row (as _locked does) but read only the state: the caller's instance is saved with
-        # update_fields, so its other fields are never written back.
-        rows = _locked_state_sql.rows(assembly.pk)
-        if not rows:
-            raise Assembly.DoesNotExist(f"No assembly with pk {assembly.pk}.")
-        state = rows[0][0]
+        # Lock the row and read only its state: a change goes through transition(), which locks it again.
+        state = Assembly.objects.select_for_update().filter(pk=assembly.pk).values_list("state", flat=True).get()
         assembly.state = state
-        if state == AssemblyState.SCRAPPED:
-            return state
+        if state in CLOSED_STATES:
+            return state  # released and scrapped assemblies take no more inspections (sign_inspection)
         rejected, any_final = _state_facts(assembly.pk)
         target = state
         if rejected:
@@ -262,20 +185,12 @@ def refresh_assembly_state(assembly, user=None, reason=""):
         elif state == AssemblyState.IN_FABRICATION and any_final:
             target = AssemblyState.AWAITING_INSPECTION
         if target != state:
-            if user is None:
-                latest = (Inspection.objects.filter(weld__assembly_id=assembly.pk).select_related("inspector")
-                          .order_by("-inspected_at", "-pk").first())
-                if latest is None:
-                    raise ValueError("refresh_assembly_state needs the user who caused the change.")
-                user = latest.inspector
-            if not reason:
-                reason = {
-                    AssemblyState.REJECTED: "An inspection rejected a weld, or an NCR is open",
-                    AssemblyState.AWAITING_INSPECTION: "Nothing rejected any more" if state ==
-                    AssemblyState.REJECTED else "Final inspection started",
-                }[target]
-            extra = {"released_by": None, "released_at": None} if state == AssemblyState.RELEASED else {}
-            _move(assembly, target, user, reason, **extra)
+            reason = reason or {
+                AssemblyState.REJECTED: "An inspection rejected a weld, or an NCR is open",
+                AssemblyState.AWAITING_INSPECTION: "Nothing rejected any more" if state == AssemblyState.REJECTED
+                else "Final inspection started",
+            }[target]
+            transition(assembly, user=user, allowed_from={state}, to=target, reason=reason)
         return assembly.state
 
 

@@ -31,8 +31,7 @@ from decimal import Decimal
 from django.urls import reverse
 from django.utils import timezone
 
-from inspections import strength
-from legwork.units import (
+from core.units import (
     KIP_TO_KN,
     Force,
     Length,
@@ -43,6 +42,8 @@ from legwork.units import (
     parse_length,
     significant,
 )
+from inspections import strength
+from procedures.electrodes import decode
 
 DEFAULT_FEXX = "70 ksi"
 METHODS = ("LRFD", "ASD")
@@ -145,15 +146,10 @@ def fexx_for_weld(weld) -> tuple[str, str]:
     if weld.wps_id:
         electrode = weld.wps.electrode
         try:
-            from procedures.electrodes import decode
-        except ImportError:  # pragma: no cover - the engine is part of the project
-            decode = None
-        if decode is not None:
-            try:
-                return f"{decode(electrode).tensile_ksi} ksi", f"from {weld.wps}, electrode {electrode}"
-            except ValueError:
-                return DEFAULT_FEXX, (f"the WPS electrode {electrode!r} could not be read: 70 ksi assumed "
-                                      "(E70 filler metal)")
+            return f"{decode(electrode).tensile_ksi} ksi", f"from {weld.wps}, electrode {electrode}"
+        except ValueError:
+            return DEFAULT_FEXX, (f"the WPS electrode {electrode!r} could not be read: 70 ksi assumed "
+                                  "(E70 filler metal)")
     return DEFAULT_FEXX, "no WPS on the weld: 70 ksi assumed (E70 filler metal)"
 
 
@@ -453,11 +449,11 @@ def normalize(snapshot: dict | None) -> dict | None:
 
 
 def latest_inspection(weld):
-    """The weld's most recent inspection that no correction supersedes (one query), or None."""
-    return (weld.inspections.current().select_related("inspector").order_by("-inspected_at", "-pk").first())
+    """The weld's most recent inspection that no correction supersedes (kept on the weld row at signing), or None."""
+    return weld.latest_inspection
 
 
-def capacity_context(*, weld=None, inspection=None, ncr=None, method: str = "LRFD") -> dict:
+def capacity_cards(*, weld=None, inspection=None, ncr=None, method: str = "LRFD") -> list[dict]:
     """What templates/inspections/partials/capacity_summary.html reads, for a weld, an inspection or an NCR.
 
     NCR: the calculation stored with its use-as-is disposition when there is one (as issued, never recomputed),
@@ -482,7 +478,7 @@ def capacity_context(*, weld=None, inspection=None, ncr=None, method: str = "LRF
         if latest is not None and found_undersize(latest, weld):
             latest.weld = weld  # already loaded with its job and WPS
             capacities.append(capacity_for_inspection(latest, method))
-    return {"capacities": capacities}
+    return capacities
 
 
 def found_undersize(inspection, weld) -> bool:

@@ -9,15 +9,14 @@ inspection, open NCRs closed by an accepted one, the assembly's state refreshed.
 
 from django.db import transaction
 
+from core.errors import Refused
+from core.units import Length, format_length
 from inspections.acceptance import Finding, Verdict, evaluate
 from inspections.models import Assembly, AssemblyState, Inspection, InspectionStage, Weld
 from inspections.models.inspection import COUNT_OBSERVATIONS, FLAG_OBSERVATIONS, LENGTH_OBSERVATIONS
+from inspections.services.assemblies import refresh_assembly_state
+from inspections.services.ncr import close_ncrs_for, open_ncr
 from inspections.strength import effective_throat
-from legwork.units import Length, format_length
-
-
-class InspectionError(ValueError):
-    """A signing the records refuse (a correction of a superseded inspection, a missing reason)."""
 
 
 def nominal_throat(weld: Weld) -> Length:
@@ -119,26 +118,23 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
     A correction names the inspection it supersedes and why; only a current inspection of the same weld can be
     superseded (locked, so two people correcting one inspection at once cannot both succeed).
     """
-    from inspections.services.assemblies import refresh_assembly_state
-    from inspections.services.ncr import close_ncrs_for, open_ncr
-
     if stage not in InspectionStage.values:
-        raise InspectionError(f"Stage must be one of {', '.join(InspectionStage.values)}, not {stage!r}.")
+        raise Refused(f"Stage must be one of {', '.join(InspectionStage.values)}, not {stage!r}.")
     # Lock the weld row (a no-op on SQLite, whose IMMEDIATE transaction already holds the write lock), and read
     # the assembly's state afresh under it; the weld map data itself is what the form was judged against.
     Weld.objects.select_for_update().filter(pk=weld.pk).values_list("pk", flat=True).get()
     state = Assembly.objects.filter(pk=weld.assembly_id).values_list("state", flat=True).get()
     if state in (AssemblyState.RELEASED, AssemblyState.SCRAPPED):
-        raise InspectionError(f"Assembly {weld.assembly.piece_mark} is {AssemblyState(state).label.lower()}: "
-                              "its welds take no more inspections.")
+        raise Refused(f"Assembly {weld.assembly.piece_mark} is {AssemblyState(state).label.lower()}: "
+                      "its welds take no more inspections.")
     if supersedes is not None:
         supersedes = Inspection.objects.select_for_update().get(pk=supersedes.pk)
         if supersedes.weld_id != weld.pk:
-            raise InspectionError("A correction must be of the same weld as the inspection it supersedes.")
+            raise Refused("A correction must be of the same weld as the inspection it supersedes.")
         if Inspection.objects.filter(supersedes=supersedes).exists():
-            raise InspectionError("That inspection has already been corrected; correct the latest one instead.")
+            raise Refused("That inspection has already been corrected; correct the latest one instead.")
         if not reason.strip():
-            raise InspectionError("Say why the inspection is being corrected.")
+            raise Refused("Say why the inspection is being corrected.")
     verdict = judge(weld, observed, stage)
     key, version = weld.assembly.job.criteria_identity()
     values = observed_for_engine(observed)
@@ -148,6 +144,7 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
         criteria_key=key, criteria_version=version, **values,
     )
     inspection.save()
+    _point_weld_at(weld, inspection)
     if stage == InspectionStage.FINAL:
         if verdict.accepted:
             close_ncrs_for(inspection)
@@ -155,6 +152,24 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
             open_ncr(inspection, user, ncr_description(weld, verdict))
     refresh_assembly_state(weld.assembly, user)
     return inspection
+
+
+def _point_weld_at(weld: Weld, inspection: Inspection) -> None:
+    """Keep the weld's pointers to its latest current inspection and latest current final one.
+
+    A new inspection is signed at the time it is stored, so it is the weld's newest; a correction that replaces a
+    final inspection with another stage leaves the previous current final one (if any) as the latest final.
+    """
+    fields = {"latest_inspection": inspection}
+    if inspection.stage == InspectionStage.FINAL:
+        fields["latest_final"] = inspection
+    elif inspection.supersedes_id is not None and inspection.supersedes_id == (
+            Weld.objects.filter(pk=weld.pk).values_list("latest_final_id", flat=True).get()):
+        fields["latest_final"] = (Inspection.objects.current().filter(weld=weld, stage=InspectionStage.FINAL)
+                                  .order_by("-inspected_at", "-pk").first())
+    Weld.objects.filter(pk=weld.pk).update(**fields)
+    for name, value in fields.items():
+        setattr(weld, name, value)
 
 
 def ncr_description(weld: Weld, verdict: Verdict) -> str:

@@ -3,7 +3,8 @@
 open -> dispositioned (repair: to an approved WPS, by a welder qualified for the weld)
 dispositioned -> closed (an accepted final re-inspection of the weld: close_ncrs_for)
 open -> closed (use-as-is: an engineer's name and date, with the as-inspected capacity attached; or scrap)
-Every step writes an NCREvent and recomputes the assembly's state.
+Every step goes through core.transitions.transition (lock, check, save, history) and recomputes the assembly's
+state.
 """
 
 import copy
@@ -12,27 +13,20 @@ from datetime import date
 from django.db import transaction
 from django.utils import timezone
 
+from core import history
+from core.errors import Refused
+from core.roles import require
+from core.transitions import transition
 from inspections.models import NCR, InspectionStage
-from inspections.models.ncr import Disposition, NCREvent, NCRState
-from inspections.services import StepRefused
+from inspections.models.ncr import Disposition, NCRState
 from inspections.services import assemblies as assembly_steps
-from legwork.roles import require
+from inspections.services import capacity
+from inspections.services.numbering import next_in_job
 from procedures.models.wps import WPSState
 
 
-def _event(ncr, old, user, reason):
-    NCREvent.objects.create(ncr=ncr, from_state=old, to_state=ncr.state, reason=reason, user=user)
-
-
-def _locked(ncr) -> NCR:
-    # Lock the NCR so two QA leads cannot disposition it twice from the same stale page.
-    return NCR.objects.select_for_update().select_related("weld__assembly__job", "inspection").get(pk=ncr.pk)
-
-
 def _next_number(job) -> str:
-    # The caller holds the write transaction; the unique constraint on number backs this up.
-    count = NCR.objects.filter(weld__assembly__job=job).count()
-    return f"NCR-{job.number}-{count + 1:03d}"
+    return f"NCR-{job.number}-{next_in_job(job, NCR.objects.filter(weld__assembly__job=job)):03d}"
 
 
 def open_ncr(inspection, user, description):
@@ -40,35 +34,27 @@ def open_ncr(inspection, user, description):
     require(user, "ncr.raise")
     description = (description or "").strip()
     if not description:
-        raise StepRefused("Say what is nonconforming.", code="description")
+        raise Refused("Say what is nonconforming.", code="description")
     if inspection.accepted:
-        raise StepRefused("This inspection accepted the weld: an NCR is raised from a rejected inspection.",
-                          code="accepted")
+        raise Refused("This inspection accepted the weld: an NCR is raised from a rejected inspection.",
+                      code="accepted")
     with transaction.atomic():
         existing = NCR.objects.filter(inspection=inspection).first()
         if existing is not None:
             return existing
         job = inspection.weld.assembly.job
-        ncr = NCR(number=_next_number(job), weld=inspection.weld, inspection=inspection, description=description,
-                  raised_by=user)
-        ncr.save()
-        _event(ncr, "", user, description)
+        ncr = NCR.objects.create(number=_next_number(job), weld=inspection.weld, inspection=inspection,
+                                 description=description, raised_by=user)
+        history.record(ncr, user, history.CREATED, to_state=ncr.state, reason=description)
     assembly_steps.refresh_assembly_state(inspection.weld.assembly, user, f"{ncr} raised")
     return ncr
 
 
-def _check_open(ncr):
-    if ncr.state != NCRState.OPEN:
-        raise StepRefused(f"{ncr} is {ncr.get_state_display().lower()}; only an open NCR takes a disposition.",
-                          code="state")
-
-
-def _disposition_fields(ncr, user, disposition, notes):
-    ncr.disposition = disposition
-    ncr.disposition_notes = (notes or "").strip()
-    ncr.dispositioned_by = user
-    ncr.dispositioned_at = timezone.now()
-    return ["state", "disposition", "disposition_notes", "dispositioned_by", "dispositioned_at"]
+def _disposition(ncr, user, disposition, to, notes, reason, check=None, **fields):
+    """Open -> `to` with the disposition, its notes, who and when; the assembly's state follows."""
+    return transition(ncr, user=user, permission="ncr.disposition", allowed_from={NCRState.OPEN}, to=to,
+                      check=check, reason=reason, disposition=disposition, disposition_notes=notes,
+                      dispositioned_by=user, dispositioned_at=timezone.now(), **fields)
 
 
 def repair_problems(ncr, wps, welder, on=None) -> dict[str, list[str]]:
@@ -93,46 +79,31 @@ def repair_problems(ncr, wps, welder, on=None) -> dict[str, list[str]]:
 
 def disposition_repair(ncr, user, wps, welder, notes=""):
     """Repair to an approved WPS by a welder qualified for the weld; the NCR closes on an accepted re-inspection."""
-    require(user, "ncr.disposition")
-    with transaction.atomic():
-        locked = _locked(ncr)
-        _check_open(locked)
+
+    def repairable(locked):
         problems = repair_problems(locked, wps, welder)
         if problems:
-            raise StepRefused(problems, code="repair")
-        old = locked.state
-        fields = _disposition_fields(locked, user, Disposition.REPAIR, notes)
-        locked.state = NCRState.DISPOSITIONED
-        locked.repair_wps, locked.repair_welder = wps, welder
-        locked.save(update_fields=[*fields, "repair_wps", "repair_welder"])
-        _event(locked, old, user, f"Repair to {wps} by {welder}. {locked.disposition_notes}".strip())
-    assembly_steps.refresh_assembly_state(locked.weld.assembly, user, f"{locked} dispositioned: repair")
-    return locked
+            raise Refused(problems, code="repair")
+
+    notes = (notes or "").strip()
+    ncr = _disposition(ncr, user, Disposition.REPAIR, NCRState.DISPOSITIONED, notes,
+                       f"Repair to {wps} by {welder}. {notes}".strip(), check=repairable,
+                       repair_wps=wps, repair_welder=welder)
+    assembly_steps.refresh_assembly_state(ncr.weld.assembly, user, f"{ncr} dispositioned: repair")
+    return ncr
 
 
-def _capacity():
-    """inspections.services.capacity (over inspections.strength), or None while the strength engine is missing."""
-    try:
-        from inspections.services import capacity
-    except ImportError:
-        return None
-    return capacity
-
-
-def capacity_calculation(ncr) -> dict | None:
+def capacity_calculation(ncr) -> dict:
     """The as-inspected capacity snapshot of the NCR's weld (inspections.services.capacity, AISC 360-16 J2.4 via
-    inspections.strength), as stored JSON; None when the strength engine is not there."""
-    capacity = _capacity()
-    if capacity is None:
-        return None
+    inspections.strength), as stored JSON."""
     return capacity.capacity_for_inspection(ncr.inspection)
 
 
 def disposition_use_as_is(ncr, user, engineer_name, approved_on, notes=""):
     """Accept the weld as it is, on an engineer's approval, with its as-inspected capacity attached; closes the NCR.
 
-    Refused when the weld has a required strength and either the strength engine is missing or the weld as
-    inspected does not carry it.
+    Refused when the weld has a required strength and the weld as inspected does not carry it (or its capacity
+    cannot be worked out).
     """
     require(user, "ncr.disposition")
     engineer_name = (engineer_name or "").strip()
@@ -144,55 +115,35 @@ def disposition_use_as_is(ncr, user, engineer_name, approved_on, notes=""):
     elif approved_on > timezone.localdate():
         problems["engineer_approved_on"] = ["The approval date cannot be in the future."]
     if problems:
-        raise StepRefused(problems, code="use_as_is")
-    with transaction.atomic():
-        locked = _locked(ncr)
-        _check_open(locked)
-        calculation = capacity_calculation(locked)
-        if locked.weld.required_strength is not None:
-            if calculation is None:
-                raise StepRefused("This weld has a required strength, and the strength calculation is not "
-                                  "available: use-as-is cannot be approved without it.", code="no_strength")
-            if calculation.get("error"):
-                raise StepRefused(f"This weld has a required strength: {calculation['error']}", code="capacity")
-            if calculation.get("ok") is False:
-                short = [f["message"] for f in calculation.get("findings", []) if not f.get("ok", True)]
-                raise StepRefused(["As inspected, the weld does not carry its required strength: repair or scrap.",
-                                   *short], code="capacity")
-        old = locked.state
-        fields = _disposition_fields(locked, user, Disposition.USE_AS_IS, notes)
-        locked.state = NCRState.CLOSED
-        locked.engineer_name, locked.engineer_approved_on = engineer_name, approved_on
-        locked.capacity_calculation = calculation
-        locked.closed_at = timezone.now()
-        locked.save(update_fields=[*fields, "engineer_name", "engineer_approved_on", "capacity_calculation",
-                                   "closed_at"])
-        _event(locked, old, user, f"Use as is, approved by {engineer_name} on {approved_on:%Y-%m-%d}. "
-                                  f"{locked.disposition_notes}".strip())
-    assembly_steps.refresh_assembly_state(locked.weld.assembly, user, f"{locked} closed: use as is")
-    return locked
+        raise Refused(problems, code="use_as_is")
+    # The calculation reads the NCR's signed inspection, which never changes: made once, checked, then stored.
+    calculation = capacity_calculation(ncr)
+    if ncr.weld.required_strength is not None:
+        if calculation.get("error"):
+            raise Refused(f"This weld has a required strength: {calculation['error']}", code="capacity")
+        if calculation.get("ok") is False:
+            short = [f["message"] for f in calculation.get("findings", []) if not f.get("ok", True)]
+            raise Refused(["As inspected, the weld does not carry its required strength: repair or scrap.", *short],
+                          code="capacity")
+    notes = (notes or "").strip()
+    ncr = _disposition(ncr, user, Disposition.USE_AS_IS, NCRState.CLOSED, notes,
+                       f"Use as is, approved by {engineer_name} on {approved_on:%Y-%m-%d}. {notes}".strip(),
+                       engineer_name=engineer_name, engineer_approved_on=approved_on,
+                       capacity_calculation=calculation, closed_at=timezone.now())
+    assembly_steps.refresh_assembly_state(ncr.weld.assembly, user, f"{ncr} closed: use as is")
+    return ncr
 
 
 def disposition_scrap(ncr, user, notes):
     """Scrap the assembly the weld belongs to; closes the NCR. The piece is made again under a new record."""
-    require(user, "ncr.disposition")
-    if not (notes or "").strip():
-        raise StepRefused({"disposition_notes": ["Say why the assembly is scrapped."]}, code="scrap")
+    notes = (notes or "").strip()
+    if not notes:
+        raise Refused({"disposition_notes": ["Say why the assembly is scrapped."]}, code="scrap")
     with transaction.atomic():
-        locked = _locked(ncr)
-        _check_open(locked)
-        old = locked.state
-        fields = _disposition_fields(locked, user, Disposition.SCRAP, notes)
-        locked.state = NCRState.CLOSED
-        locked.closed_at = timezone.now()
-        locked.save(update_fields=[*fields, "closed_at"])
-        _event(locked, old, user, f"Scrap. {locked.disposition_notes}")
-        assembly_steps.scrap(locked.weld.assembly, user, f"Scrapped by {locked}: {locked.disposition_notes}")
-    return locked
-
-
-_repair_waiting_sql = assembly_steps.CompiledQuery(
-    NCR, lambda weld_id: NCR.objects.filter(weld_id=weld_id, state=NCRState.DISPOSITIONED).values_list("pk")[:1])
+        ncr = _disposition(ncr, user, Disposition.SCRAP, NCRState.CLOSED, notes, f"Scrap. {notes}",
+                           closed_at=timezone.now())
+        assembly_steps.scrap(ncr.weld.assembly, user, f"Scrapped by {ncr}: {notes}")
+    return ncr
 
 
 def close_ncrs_for(inspection) -> list:
@@ -202,23 +153,13 @@ def close_ncrs_for(inspection) -> list:
     """
     if not inspection.accepted or inspection.stage != InspectionStage.FINAL:
         return []
-    # The usual accepted inspection has no repair waiting on it: one plain EXISTS, no savepoint, no lock.
-    if not _repair_waiting_sql.rows(inspection.weld_id):
-        return []
-    closed = []
-    with transaction.atomic():
-        waiting = (NCR.objects.select_for_update()
-                   .filter(weld_id=inspection.weld_id, state=NCRState.DISPOSITIONED, disposition=Disposition.REPAIR,
-                           inspection__inspected_at__lte=inspection.inspected_at)
+    waiting = list(NCR.objects.filter(weld_id=inspection.weld_id, state=NCRState.DISPOSITIONED,
+                                      disposition=Disposition.REPAIR,
+                                      inspection__inspected_at__lte=inspection.inspected_at)
                    .exclude(inspection=inspection))
-        for ncr in waiting:
-            old = ncr.state
-            ncr.state = NCRState.CLOSED
-            ncr.closed_by_inspection = inspection
-            ncr.closed_at = timezone.now()
-            ncr.save(update_fields=["state", "closed_by_inspection", "closed_at"])
-            _event(ncr, old, inspection.inspector, f"Repair accepted by re-inspection #{inspection.pk}")
-            closed.append(ncr)
+    closed = [transition(ncr, user=inspection.inspector, allowed_from={NCRState.DISPOSITIONED}, to=NCRState.CLOSED,
+                         reason=f"Repair accepted by re-inspection #{inspection.pk}",
+                         closed_by_inspection=inspection, closed_at=timezone.now()) for ncr in waiting]
     if closed:
         assembly_steps.refresh_assembly_state(inspection.weld.assembly, inspection.inspector,
                                               f"{', '.join(str(n) for n in closed)} closed by re-inspection")

@@ -13,10 +13,10 @@ from dataclasses import dataclass, field
 
 from django.db import IntegrityError, transaction
 
+from core.errors import Refused
+from core.fields import LengthFormField
 from inspections.forms.jobs import WeldSpecForm
 from inspections.models import Assembly, Weld
-from inspections.services import StepRefused
-from legwork.fields import LengthFormField
 from procedures.models import WPS
 from procedures.models.wps import WPSState
 
@@ -188,17 +188,17 @@ def read_weld_map(data: bytes, job) -> Preview:
 
 
 def import_weld_map(data: bytes, job) -> list:
-    """Read the file again and write every weld, or none: raises StepRefused with the preview's errors."""
+    """Read the file again and write every weld, or none: raises Refused with the preview's errors."""
     with transaction.atomic():
         preview = read_weld_map(data, job)
         if not preview.ok:
             problems = preview.file_errors + [f"Line {r.line}: {'; '.join(r.errors)}" for r in preview.bad_rows]
-            raise StepRefused(problems or ["Nothing to import."], code="invalid")
+            raise Refused(problems or ["Nothing to import."], code="invalid")
         welds = [Weld(assembly=row.assembly, wps=row.wps, **row.cleaned) for row in preview.rows]
         try:
             Weld.objects.bulk_create(welds)
         except IntegrityError:  # someone added the same mark meanwhile
-            raise StepRefused("A weld mark in the file was added by someone else meanwhile; preview it again.",
+            raise Refused("A weld mark in the file was added by someone else meanwhile; preview it again.",
                               code="race") from None
     return welds
 

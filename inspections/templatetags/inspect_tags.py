@@ -2,7 +2,7 @@
 
 from django import template
 
-from legwork.units import Length, format_length
+from core.units import Length, format_length
 
 register = template.Library()
 

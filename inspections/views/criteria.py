@@ -7,11 +7,11 @@ from django.http import Http404
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_http_methods, require_safe
 
+from core.roles import role_required
 from inspections import criteria as criteria_sets
 from inspections.criteria.base import Banded, Count, Fixed, Permission, Proportional, Ratio, Threshold
 from inspections.forms.jobs import CLIENT, CriteriaDeriveForm, base_set_choices
 from inspections.models import ClientCriteriaSet
-from legwork.roles import role_required
 
 
 def describe_limit(limit) -> str:

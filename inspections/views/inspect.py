@@ -12,12 +12,15 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
+from core.errors import Refused
+from core.roles import can, role_required
+from core.vocabulary import JointType
 from inspections.forms.inspect import CorrectionForm, FindAssemblyForm, InspectionForm, PhotoForm
 from inspections.models import Assembly, Inspection, Photo, Weld
 from inspections.models.inspection import FLAG_OBSERVATIONS
 from inspections.services.assemblies import weld_statuses
-from inspections.services.inspect import InspectionError, sign_inspection
-from legwork.roles import can, role_required
+from inspections.services.capacity import capacity_cards
+from inspections.services.inspect import judge, sign_inspection
 
 SEARCH_LIMIT = 30
 WELD_RELATED = ("assembly__job__client_criteria", "wps")
@@ -84,7 +87,7 @@ def _sign(request, form, weld, supersedes=None):
     try:
         inspection = sign_inspection(weld, data, data["stage"], request.user, supersedes=supersedes,
                                      reason=data.get("correction_reason", ""), remarks=data.get("remarks", ""))
-    except (InspectionError, ValidationError, ValueError) as exc:
+    except (Refused, ValidationError, ValueError) as exc:
         form.add_error(None, _message(exc))
         return None
     ncr = None if inspection.accepted else inspection.ncrs.first()
@@ -106,7 +109,7 @@ def _message(exc):
 def _form_page(request, form, weld, correcting=None):
     return render(request, "inspections/inspect_weld.html", {
         "form": form, "weld": weld, "assembly": weld.assembly, "job": weld.assembly.job,
-        "system": weld.assembly.job.unit_system, "verdict": form.verdict, "correcting": correcting,
+        "system": weld.assembly.job.unit_system, "verdict": None, "correcting": correcting,
         "flag_fields": [form[name] for name in FLAG_OBSERVATIONS],
         "more_open": any(form[name].value() not in (None, "") or form[name].errors for name in MORE_FIELDS),
     })
@@ -118,9 +121,14 @@ def inspect_preview(request, pk):
     """The findings for what is typed so far (htmx partial). Judges only; saves nothing."""
     weld = _weld(pk)
     form = InspectionForm(request.POST, weld=weld)  # a correction's reason is asked on save, not here
-    form.is_valid()
+    verdict = None
+    if form.is_valid():
+        try:
+            verdict = judge(weld, form.cleaned_data, form.cleaned_data["stage"])
+        except ValueError as exc:
+            form.add_error(None, str(exc))
     return render(request, "inspections/inspect_weld.html#findings", {
-        "form": form, "verdict": form.verdict, "system": weld.assembly.job.unit_system, "preview": True})
+        "form": form, "verdict": verdict, "system": weld.assembly.job.unit_system, "preview": True})
 
 
 def _inspection(pk):
@@ -142,6 +150,8 @@ def _detail_page(request, inspection, photo_form, status=200):
         "job": inspection.weld.assembly.job, "photos": list(inspection.photos.all()),
         "ncrs": list(inspection.ncrs.all()), "earlier": earlier, "later": later,
         "is_current": not later, "photo_form": photo_form,
+        "capacities": (capacity_cards(inspection=inspection)
+                       if inspection.weld.joint_type == JointType.FILLET else []),
         "may_record": can(request.user, "inspection.record"),
     }, status=status)
 

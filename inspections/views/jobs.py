@@ -11,6 +11,11 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
+from core.errors import Refused
+from core.history import history_of
+from core.roles import can, require, role_required
+from core.units import format_length
+from core.vocabulary import JointType
 from inspections.forms.jobs import (
     AssemblyForm,
     JobForm,
@@ -21,10 +26,9 @@ from inspections.forms.jobs import (
 )
 from inspections.models import Assembly, Job, Weld
 from inspections.models.ncr import NCRState
-from inspections.services import StepRefused, weldmap_csv
 from inspections.services import assemblies as steps
-from legwork.roles import can, require, role_required
-from legwork.units import format_length
+from inspections.services import weldmap_csv
+from inspections.services.capacity import capacity_cards
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
@@ -129,7 +133,7 @@ def _assembly_page(request, assembly, release_errors=None, status=200):
     context = {
         "assembly": assembly, "job": assembly.job, "rows": rows, "blockers": blockers,
         "release_errors": release_errors, "open_ncrs": open_ncrs, "step_form": StepForm(),
-        "events": assembly.events.select_related("user").order_by("-at", "-pk")[:20],
+        "history": list(history_of(assembly).reverse()[:20]),
         "can_submit": assembly.state == "in_fabrication" and can(request.user, "assembly.submit"),
     }
     return render(request, "inspections/assembly_detail.html", context, status=status)
@@ -147,7 +151,7 @@ def _step(request, pk, step, done):
     reason = form.cleaned_data["reason"] if form.is_valid() else ""
     try:
         step(assembly, request.user, reason)
-    except StepRefused as exc:
+    except Refused as exc:
         assembly.refresh_from_db()
         return _assembly_page(request, assembly, release_errors=exc.messages, status=409)
     messages.success(request, done.format(assembly=assembly))
@@ -225,6 +229,7 @@ def weld_detail(request, pk):
     return render(request, "inspections/weld_detail.html", {
         "weld": weld, "assembly": weld.assembly, "row": row, "inspections": inspections,
         "ncrs": weld.ncrs.order_by("-raised_at"),
+        "capacities": capacity_cards(weld=weld) if weld.joint_type == JointType.FILLET else [],
         "may_edit": not weld.assembly.is_closed and (can(request.user, "job.manage")
                                                      or can(request.user, "weld.record")),
     })
@@ -282,7 +287,7 @@ def weldmap_import(request, pk):
         data = csv_text.encode("utf-8")
         try:
             welds = weldmap_csv.import_weld_map(data, job)
-        except StepRefused:
+        except Refused:
             preview = weldmap_csv.read_weld_map(data, job)
             return render(request, "inspections/job_weldmap_import.html",
                           {"job": job, "form": form, "preview": preview, "csv_text": csv_text}, status=400)

@@ -6,12 +6,15 @@ from django.http import Http404
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
+from core.errors import Refused
+from core.history import history_of
+from core.roles import role_required
+from core.vocabulary import JointType
 from inspections.forms.jobs import RepairForm, ScrapForm, UseAsIsForm, add_step_errors
 from inspections.models import NCR
 from inspections.models.ncr import NCRState
-from inspections.services import StepRefused
 from inspections.services import ncr as ncr_steps
-from legwork.roles import role_required
+from inspections.services.capacity import capacity_cards
 
 FORMS = {"repair": RepairForm, "use_as_is": UseAsIsForm, "scrap": ScrapForm}
 
@@ -32,7 +35,8 @@ def _ncr_page(request, ncr, forms=None, status=200):
     forms = forms or {}
     context = {
         "ncr": ncr, "weld": ncr.weld, "assembly": ncr.weld.assembly, "job": ncr.weld.assembly.job,
-        "events": ncr.events.select_related("user").order_by("at", "pk"),
+        "history": list(history_of(ncr)),
+        "capacities": capacity_cards(ncr=ncr) if ncr.weld.joint_type == JointType.FILLET else [],
         "forms": {kind: forms.get(kind) or cls(prefix=kind) for kind, cls in FORMS.items()},
         "findings": [f for f in (ncr.inspection.findings or []) if isinstance(f, dict) and not f.get("ok", True)],
     }
@@ -68,7 +72,7 @@ def ncr_disposition(request, pk, kind):
                                                 data["engineer_approved_on"], data["disposition_notes"])
             else:
                 ncr_steps.disposition_scrap(ncr, request.user, data["disposition_notes"])
-        except StepRefused as exc:
+        except Refused as exc:
             add_step_errors(form, exc)
         else:
             messages.success(request, f"{ncr} dispositioned.")

@@ -10,10 +10,10 @@ from django.urls import reverse
 from django.utils.text import get_valid_filename
 from django.views.decorators.http import require_safe
 
+from core.pdf import pdf_response, render_pdf
 from inspections.forms.strength import StrengthCalculatorForm
 from inspections.models import Inspection, Weld
 from inspections.services.capacity import capacity_for_inspection, capacity_for_weld
-from legwork.pdf import pdf_response, render_pdf
 
 # Query-string keys the calculator reads; anything else in the URL is ignored.
 _KEYS = tuple(StrengthCalculatorForm.base_fields)

@@ -10,10 +10,11 @@ from django.http import FileResponse, Http404, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
+from core.errors import Refused
+from core.roles import can, role_required
 from inspections import packets
 from inspections import traveler as travelers
 from inspections.models import Assembly, Job, JobPacket, PacketState, Traveler
-from legwork.roles import can, role_required
 
 
 def _file_response(field, filename, sha256, inline=True):
@@ -102,8 +103,8 @@ def packet_start(request, pk):
         return _packet_page(request, job, ["The assemblies chosen could not be read; choose them again."], [], 400)
     try:
         packet = packets.start_packet(job, chosen, request.user)
-    except packets.PacketError as exc:
-        return _packet_page(request, job, [str(exc)], chosen, 400)
+    except Refused as exc:
+        return _packet_page(request, job, exc.messages, chosen, 400)
     return redirect(packet)
 
 

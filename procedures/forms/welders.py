@@ -13,11 +13,11 @@ from django.conf import settings
 from django.core.exceptions import ValidationError
 from django.utils import timezone
 
-from legwork import units
-from legwork.fields import LengthFormField, set_unit_system
+from core import units
+from core.fields import LengthFormField, set_unit_system
+from core.vocabulary import JointType, Position, Process, UnitSystem
 from procedures import qualification as engine
 from procedures.electrodes import decode
-from procedures.models.base import JointType, Position, Process, UnitSystem
 from procedures.models.welders import Qualification, QualificationCode, Welder
 from procedures.models.wps import WPS
 

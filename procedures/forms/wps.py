@@ -12,10 +12,10 @@ from crispy_forms.layout import Column, Field, Fieldset, Layout, Row
 from django import forms
 from django.core.exceptions import ValidationError
 
-from legwork import units
-from legwork.fields import set_unit_system
+from core import units
+from core.fields import set_unit_system
+from core.vocabulary import JointType, Position, Process, UnitSystem
 from procedures.electrodes import decode
-from procedures.models.base import JointType, Position, Process, UnitSystem
 from procedures.models.wps import PQR, WPS
 
 # (minimum field, maximum field): a minimum above its maximum is refused beside the minimum.
@@ -36,7 +36,7 @@ def _system_of(form, data, instance):
 
 
 def _positive(form):
-    """Amps and volts: read by legwork.units, which refuses zero, a sign, and figures no arc runs at."""
+    """Amps and volts: read by core.units, which refuses zero, a sign, and figures no arc runs at."""
     for name, field in form.fields.items():
         parser = units.parse_amperage if "amperage" in name else units.parse_voltage if "voltage" in name else None
         if parser is not None:

@@ -5,17 +5,12 @@ the continuity entries (production welds recorded in Legwork add their own entri
 """
 
 from django.conf import settings
-from django.core.exceptions import ValidationError
-from django.db import models, transaction
+from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from legwork.fields import LengthField
-from procedures.models.base import JointType, Process, UnitSystem
-
-
-class WelderStateError(ValidationError):
-    """A welder state change that does not apply (deactivating a welder who is already inactive)."""
+from core.fields import LengthField
+from core.vocabulary import JointType, Process, UnitSystem
 
 
 class Welder(models.Model):
@@ -34,61 +29,6 @@ class Welder(models.Model):
 
     def get_absolute_url(self):
         return reverse("procedures:welder_detail", args=[self.pk])
-
-    def deactivate(self, user, reason):
-        """Take the welder off the active list (left the shop, stood down); history keeps who and why."""
-        return self._set_active(False, user, reason)
-
-    def reactivate(self, user, reason):
-        """Put an inactive welder back on the active list; qualifications and continuity are judged as before."""
-        return self._set_active(True, user, reason)
-
-    def _set_active(self, active, user, reason):
-        reason = (reason or "").strip()
-        if not reason:
-            raise WelderStateError("Give a reason.", code="reason_required")
-        with transaction.atomic():
-            # Lock the row: two people pressing "deactivate" at once must not write two history rows.
-            locked = Welder.objects.select_for_update().get(pk=self.pk)
-            if locked.active == active:
-                state = "active" if active else "inactive"
-                raise WelderStateError(f"{locked} is already {state}.", code="no_change")
-            locked.active = active
-            locked.deactivated_at = None if active else timezone.now()
-            locked.deactivation_reason = "" if active else reason[:200]
-            locked.save(update_fields=["active", "deactivated_at", "deactivation_reason"])
-            WelderEvent.objects.create(
-                welder=locked, from_state=WelderEvent.state_of(not active), to_state=WelderEvent.state_of(active),
-                reason=reason, user=user,
-            )
-        self.active, self.deactivated_at, self.deactivation_reason = (
-            locked.active, locked.deactivated_at, locked.deactivation_reason)
-        return self
-
-
-class WelderEvent(models.Model):
-    """One change of a welder's active state, with who, when and why; append-only."""
-
-    class State(models.TextChoices):
-        ACTIVE = "active", "Active"
-        INACTIVE = "inactive", "Inactive"
-
-    welder = models.ForeignKey(Welder, on_delete=models.PROTECT, related_name="events")
-    from_state = models.CharField(max_length=10, choices=State.choices)
-    to_state = models.CharField(max_length=10, choices=State.choices)
-    reason = models.TextField()
-    user = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
-    at = models.DateTimeField(default=timezone.now)
-
-    class Meta:
-        ordering = ["at", "pk"]
-
-    def __str__(self):
-        return f"{self.welder.stamp}: {self.from_state} -> {self.to_state}"
-
-    @classmethod
-    def state_of(cls, active):
-        return cls.State.ACTIVE if active else cls.State.INACTIVE
 
 
 class QualificationCode(models.TextChoices):
@@ -167,16 +107,3 @@ class ContinuityEntry(models.Model):
 
     def __str__(self):
         return f"{self.welder.stamp} {self.process} {self.date:%Y-%m-%d}"
-
-    @classmethod
-    def log_manual(cls, welder, process, on, note, user):
-        """Record by hand that a welder used a process on a day (work outside Legwork), with a note."""
-        note = (note or "").strip()
-        if not note:
-            raise ValidationError({"note": "Say what the welder welded, e.g. the job or the work order."})
-        if on > timezone.localdate():
-            raise ValidationError({"date": "Continuity cannot be logged for a day that has not come yet."})
-        if process not in Process.values:
-            raise ValidationError({"process": f"Choose one of {', '.join(Process.values)}."})
-        return cls.objects.create(welder=welder, process=process, date=on, source=cls.Source.MANUAL,
-                                  note=note[:200], entered_by=user)

@@ -1,22 +1,21 @@
 """Welding procedure specifications and the qualification records behind them.
 
-A WPS moves draft -> submitted -> approved -> superseded, or approved -> withdrawn. Only a draft is
-edited. A change to an approved WPS is a new revision (a new row) that supersedes it when approved.
-Every state change writes a ProcedureEvent (who, when, from, to, why).
+A WPS moves draft -> submitted -> approved -> superseded, or approved -> withdrawn (procedures.services.wps,
+each step through core.transitions). Only a draft is edited. A change to an approved WPS is a new revision (a
+new row) that supersedes it when approved.
 """
 
 from django.conf import settings
-from django.core.exceptions import ValidationError
-from django.db import models, transaction
+from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from legwork import units
-from legwork.fields import FlowField, LengthField, SpeedField, TemperatureField
-from legwork.roles import require
+from core import units
+from core.errors import RecordLocked
+from core.fields import FlowField, LengthField, SpeedField, TemperatureField
+from core.vocabulary import Current, Process, UnitSystem, split_codes
 from procedures import heat_input as heat_input_engine
 from procedures import prequalified
-from procedures.models.base import Current, Process, SignedRecordError, UnitSystem, split_codes
 
 
 class Transfer(models.TextChoices):
@@ -231,7 +230,7 @@ class WPS(models.Model):
         if self.pk:
             stored = WPS.objects.filter(pk=self.pk).values_list("state", flat=True).first()
             if stored is not None and stored not in EDITABLE_STATES:
-                raise SignedRecordError(
+                raise RecordLocked(
                     f"{self} is {WPSState(stored).label.lower()} and cannot be changed; "
                     + ("start a new revision." if stored != WPSState.SUBMITTED else "ask the QA lead to return it.")
                 )
@@ -239,7 +238,7 @@ class WPS(models.Model):
 
     def delete(self, *args, **kwargs):
         if self.state != WPSState.DRAFT:
-            raise SignedRecordError(f"{self} is {self.get_state_display().lower()}; only a draft can be deleted.")
+            raise RecordLocked(f"{self} is {self.get_state_display().lower()}; only a draft can be deleted.")
         return super().delete(*args, **kwargs)
 
     def get_absolute_url(self):
@@ -363,121 +362,8 @@ class WPS(models.Model):
                          for f in findings if f.severity == "not_prequalified"]
         return blockers
 
-    # --- state changes: each checks its precondition, locks the row and records an event -----------
-
-    def _move(self, user, action, from_states, to_state, reason="", check=None, **fields):
-        """Move this WPS to to_state if the user may and the stored state allows; write the event."""
-        require(user, action)
-        with transaction.atomic():
-            # Lock so two QA leads pressing approve at once cannot both act on a stale state.
-            locked = WPS.objects.select_for_update().get(pk=self.pk)
-            if locked.state not in from_states:
-                raise ProcedureStateError(
-                    f"{locked} is {locked.get_state_display().lower()}; this needs it "
-                    f"{' or '.join(WPSState(s).label.lower() for s in from_states)}.", code="state")
-            if check is not None:
-                check(locked)
-            old = locked.state
-            locked.state = to_state
-            for name, value in fields.items():
-                setattr(locked, name, value)
-            models.Model.save(locked, update_fields=["state", *fields])  # past the frozen-record check
-            ProcedureEvent.objects.create(wps=locked, from_state=old, to_state=to_state, reason=reason, user=user)
-        self.state = to_state
-        for name, value in fields.items():
-            setattr(self, name, value)
-        return self
-
-    def record_drafted(self, user, reason=""):
-        """The first history row of a new draft (or revision)."""
-        return ProcedureEvent.objects.create(wps=self, from_state="", to_state=WPSState.DRAFT, user=user,
-                                             reason=reason or "Drafted")
-
-    def submit(self, user):
-        """Draft -> submitted, for the QA lead to approve; refused while the review shows errors."""
-
-        def no_errors(locked):
-            errors = [f for f in locked.findings() if f.severity == "error"]
-            if errors:
-                raise ProcedureStateError(
-                    "Fix the errors in the review before submitting: " + "; ".join(f.message for f in errors),
-                    code="findings")
-
-        return self._move(user, "procedure.submit", {WPSState.DRAFT}, WPSState.SUBMITTED, check=no_errors)
-
-    def return_to_draft(self, user, reason):
-        """Submitted -> draft, with the QA lead's reason, so the engineer can change it."""
-        reason = _required_reason(reason, "returning it to the engineer")
-        return self._move(user, "procedure.approve", {WPSState.SUBMITTED}, WPSState.DRAFT, reason=reason)
-
-    def approve(self, user, reason=""):
-        """Submitted -> approved, with approver and date; the revision it supersedes becomes superseded in
-        the same transaction. Refused while approval_blockers() names anything."""
-
-        def approvable(locked):
-            blockers = locked.approval_blockers()
-            if blockers:
-                raise ProcedureStateError("Cannot approve: " + " ".join(blockers), code="findings")
-
-        with transaction.atomic():
-            self._move(user, "procedure.approve", {WPSState.SUBMITTED}, WPSState.APPROVED, reason=reason,
-                       check=approvable, approved_by=user, approved_at=timezone.now())
-            if self.supersedes_id:
-                previous = WPS.objects.select_for_update().get(pk=self.supersedes_id)
-                if previous.state == WPSState.APPROVED:
-                    previous.state = WPSState.SUPERSEDED
-                    models.Model.save(previous, update_fields=["state"])
-                    ProcedureEvent.objects.create(
-                        wps=previous, from_state=WPSState.APPROVED, to_state=WPSState.SUPERSEDED, user=user,
-                        reason=f"Superseded by revision {self.revision}")
-        return self
-
-    def withdraw(self, user, reason):
-        """Approved -> withdrawn, with a reason: no longer to be used, and no revision replaces it."""
-        reason = _required_reason(reason, "withdrawing it")
-        return self._move(user, "procedure.withdraw", {WPSState.APPROVED}, WPSState.WITHDRAWN, reason=reason)
-
-    def new_revision(self, user, reason=""):
-        """A new draft copied from this approved WPS, revision + 1, that supersedes it once approved."""
-        require(user, "procedure.draft")
-        with transaction.atomic():
-            locked = WPS.objects.select_for_update().get(pk=self.pk)
-            if locked.state != WPSState.APPROVED:
-                raise ProcedureStateError(
-                    f"{locked} is {locked.get_state_display().lower()}; only an approved WPS gets a new revision.",
-                    code="state")
-            pending = WPS.objects.filter(supersedes=locked).first()
-            if pending is not None:
-                raise ProcedureStateError(f"{pending} is already the next revision of {locked}; edit that one.",
-                                          code="pending")
-            latest = WPS.objects.filter(number=locked.number).aggregate(models.Max("revision"))["revision__max"]
-            copy = WPS.objects.get(pk=locked.pk)
-            copy.pk = copy.id = None
-            copy._state.adding = True
-            copy.revision = latest + 1
-            copy.state = WPSState.DRAFT
-            copy.supersedes = locked
-            copy.created_by = user
-            copy.created_at = timezone.now()
-            copy.approved_by = copy.approved_at = None
-            copy.save()
-            copy.pqrs.set(locked.pqrs.all())
-            copy.record_drafted(user, reason or f"Revision {copy.revision}, from revision {locked.revision}")
-        return copy
-
 
 SOURCE_QUALIFIED_BY_TEST = "AWS D1.1/D1.1M:2020 clause 6: a WPS that is not prequalified is qualified by a PQR test"
-
-
-class ProcedureStateError(ValidationError):
-    """A state change the WPS's current state, its review or its input does not allow; the message says why."""
-
-
-def _required_reason(reason, doing):
-    reason = (reason or "").strip()
-    if not reason:
-        raise ProcedureStateError(f"Give a reason for {doing}.", code="reason")
-    return reason
 
 
 def _length_text(length, system):
@@ -485,28 +371,3 @@ def _length_text(length, system):
     if length is None:
         return None
     return f"{units._plain(length.inch)} in" if system == UnitSystem.US else f"{units._plain(length.mm)} mm"
-
-
-class ProcedureEvent(models.Model):
-    """One state change of a WPS: never edited, never deleted."""
-
-    wps = models.ForeignKey(WPS, on_delete=models.PROTECT, related_name="events")
-    from_state = models.CharField(max_length=12, choices=WPSState.choices, blank=True)
-    to_state = models.CharField(max_length=12, choices=WPSState.choices)
-    reason = models.TextField(blank=True)
-    user = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
-    at = models.DateTimeField(default=timezone.now)
-
-    class Meta:
-        ordering = ["at", "pk"]
-
-    def __str__(self):
-        return f"{self.wps}: {self.from_state or 'new'} -> {self.to_state}"
-
-    def save(self, *args, **kwargs):
-        if self.pk and not self._state.adding:
-            raise SignedRecordError("A history row is never changed; record a new state change instead.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise SignedRecordError("A history row is never deleted.")

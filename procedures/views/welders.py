@@ -2,7 +2,7 @@
 
 Views stay thin: the forms read the input, the models change state (Welder.deactivate, ContinuityEntry.log_manual),
 procedures.eligibility gathers the facts and procedures.qualification (the engine) judges them. Reading needs only
-a login; every write names its action in legwork.roles. Test reports are served only through qualification_report,
+a login; every write names its action in core.roles. Test reports are served only through qualification_report,
 after the login check; media is never public.
 """
 
@@ -11,35 +11,30 @@ from pathlib import PurePath
 
 from django.contrib import messages
 from django.core.exceptions import ValidationError
-from django.db.models import Prefetch
 from django.http import FileResponse, Http404
 from django.shortcuts import get_object_or_404, redirect, render
-from django.urls import NoReverseMatch
 from django.utils import timezone
 from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods, require_safe
 
-from legwork.pdf import pdf_response, render_pdf
-from legwork.roles import role_required
-from procedures import eligibility
+from core.errors import Refused
+from core.pdf import pdf_response, render_pdf
+from core.roles import role_required
+from core.vocabulary import Process
+from procedures import eligibility, printing
 from procedures.eligibility import State
 from procedures.forms.welders import ContinuityForm, QualificationForm, ReasonForm, WeldCheckForm, WelderForm
-from procedures.models.base import Process
-from procedures.models.welders import ContinuityEntry, Qualification, Welder, WelderEvent, WelderStateError
+from procedures.models.welders import Qualification, Welder
+from procedures.services import welders as welder_steps
 
 ACTIVE_CHOICES = [("yes", "Active"), ("no", "Inactive"), ("all", "All")]
 
 
-def _welder_with_records(pk):
-    """One welder with everything its page shows, in a fixed number of queries."""
-    queryset = Welder.objects.prefetch_related(
-        Prefetch("qualifications", queryset=Qualification.objects.select_related("wps", "recorded_by")
-                 .order_by("-test_date", "-pk")),
-        Prefetch("continuity", queryset=ContinuityEntry.objects.select_related(
-            "weld__assembly__job", "entered_by").order_by("-date", "-pk")),
-        Prefetch("events", queryset=WelderEvent.objects.select_related("user")),
-    )
-    return get_object_or_404(queryset, pk=pk)
+def _welder(pk):
+    try:
+        return printing.welder_with_records(pk)
+    except Welder.DoesNotExist:
+        raise Http404("No such welder.")
 
 
 @require_safe
@@ -84,43 +79,17 @@ def welder_create(request):
         "form": form, "title": "Add a welder", "submit": "Add welder", "back": "procedures:welder_list"})
 
 
-def _detail_context(welder, check_form=None, check=None):
-    today = timezone.localdate()
-    status = eligibility.welder_status(welder, on=today)
-    by_pk = {r.qualification.pk: r for r in status.records}
-    tests = [{"q": q, "ranges": eligibility.describe(q), "status": by_pk[q.pk].status,
-              "thickness": eligibility.length_text(q.test_thickness, q.unit_system)}
-             for q in welder.qualifications.all()]
-    return {
-        "welder": welder, "status": status, "tests": tests, "today": today,
-        "continuity": [(entry, _weld_url(entry.weld)) for entry in welder.continuity.all()],
-        "events": list(welder.events.all()),
-        "check_form": check_form or WeldCheckForm(), "check": check,
-    }
-
-
-def _weld_url(weld):
-    """The weld's page (or its assembly's) when the jobs pages have one; None otherwise."""
-    if weld is None:
-        return None
-    for record in (weld, weld.assembly):
-        try:
-            return record.get_absolute_url()
-        except NoReverseMatch:
-            continue
-    return None
-
-
 @require_safe
 def welder_detail(request, pk):
-    welder = _welder_with_records(pk)
+    welder = _welder(pk)
     check_form, check = None, None
     if "thickness" in request.GET:  # the "could this welder make this weld?" box was filled in
         check_form = WeldCheckForm(request.GET)
         if check_form.is_valid():
             data = check_form.cleaned_data
             check = eligibility.check_welder(welder, data["demand"], data["on"])
-    return render(request, "procedures/welder_detail.html", _detail_context(welder, check_form, check))
+    return render(request, "procedures/welder_detail.html", {
+        **printing.welder_context(welder), "check_form": check_form or WeldCheckForm(), "check": check})
 
 
 @role_required("welder.manage")
@@ -171,7 +140,7 @@ def continuity_create(request, pk):
     if request.method == "POST" and form.is_valid():
         data = form.cleaned_data
         try:
-            ContinuityEntry.log_manual(welder, data["process"], data["date"], data["note"], request.user)
+            welder_steps.log_continuity(welder, data["process"], data["date"], data["note"], request.user)
         except ValidationError as exc:
             form.add_error(None, exc)
         else:
@@ -188,9 +157,9 @@ def _state_change(request, pk, active):
     form = ReasonForm(request.POST or None)
     if request.method == "POST" and form.is_valid():
         try:
-            change = welder.reactivate if active else welder.deactivate
-            change(request.user, form.cleaned_data["reason"])
-        except WelderStateError as exc:
+            change = welder_steps.reactivate if active else welder_steps.deactivate
+            change(welder, request.user, form.cleaned_data["reason"])
+        except Refused as exc:
             messages.error(request, " ".join(exc.messages))
         else:
             messages.success(request, f"{welder} is now {'active' if active else 'inactive'}.")
@@ -219,9 +188,8 @@ def welder_reactivate(request, pk):
 @require_safe
 def welder_pdf(request, pk):
     """The printable qualification summary: each test, its ranges, its lapse date, the continuity behind it."""
-    welder = _welder_with_records(pk)
-    context = _detail_context(welder)
-    context.pop("check_form")
+    welder = _welder(pk)
+    context = printing.welder_context(welder)
     rendered = render_pdf("pdf/welder_summary.html", context,
                           f"welder-{slugify(welder.stamp) or welder.pk}-qualifications-{context['today']:%Y%m%d}.pdf")
     return pdf_response(rendered)

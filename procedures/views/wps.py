@@ -2,7 +2,7 @@
 
 Views stay thin: the forms read the input, the WPS model moves states (and refuses what its state, its
 review or the user's role does not allow), the engines judge. Reading needs only a login; every write
-names its action in legwork.roles.
+names its action in core.roles.
 """
 
 from django.contrib import messages
@@ -13,13 +13,14 @@ from django.db.models import Prefetch, Q
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
-from legwork import units
-from legwork.pdf import pdf_response, render_pdf
-from legwork.roles import role_required
-from procedures.electrodes import decode
+from core.errors import Refused
+from core.pdf import pdf_response, render_pdf
+from core.roles import role_required
+from core.vocabulary import Process
+from procedures import printing
 from procedures.forms.wps import PQRForm, ReasonForm, WPSForm
-from procedures.models.base import JointType, Process
-from procedures.models.wps import PQR, WPS, ProcedureEvent, ProcedureStateError, WPSState
+from procedures.models.wps import PQR, WPS, WPSState
+from procedures.services import wps as wps_steps
 
 PAGE_SIZE = 25
 
@@ -29,7 +30,6 @@ PAGE_SIZE = 25
 def _wps_queryset():
     return WPS.objects.select_related("approved_by", "created_by", "supersedes").prefetch_related(
         Prefetch("pqrs", queryset=PQR.objects.order_by("number")),
-        Prefetch("events", queryset=ProcedureEvent.objects.select_related("user")),
     )
 
 
@@ -44,125 +44,6 @@ def _refuse_unless_editable(request, wps):
     messages.error(request, f"{wps} is {wps.get_state_display().lower()} and cannot be changed."
                    + (" Start a new revision from it." if wps.state == WPSState.APPROVED else ""))
     return redirect(wps)
-
-
-def _range(low, high, fmt):
-    if low is None and high is None:
-        return "—"
-    if low is None or high is None or low == high:
-        return fmt(low if low is not None else high)
-    return f"{fmt(low)} to {fmt(high)}"
-
-
-def _electrode(wps):
-    try:
-        return decode(wps.electrode), ""
-    except ValueError as exc:
-        return None, str(exc)
-
-
-def variables(wps):
-    """Every variable of the WPS as (section, [(label, text)]) in its own unit system; pages and the PDF."""
-    system = wps.unit_system
-
-    def length(value):
-        return units.format_length(value, system) if value is not None else "—"
-
-    def temp(value):
-        return units.format_temperature(value, system) if value is not None else "—"
-
-    def speed(value):
-        return units.format_speed(value, system)
-
-    def flow(value):
-        return units.format_flow(value, system)
-
-    def plain(unit):
-        return lambda value: f"{units._plain(value)} {unit}"
-
-    heat = wps.heat_input_range()
-    process = wps.get_process_display()
-    if wps.process == Process.GMAW and wps.transfer:
-        process += f"; transfer: {wps.get_transfer_display()}"
-    return [
-        ("Process and filler metal", [
-            ("Process", process),
-            ("Electrode", wps.electrode),
-            ("Electrode diameter", diameter(wps.electrode_diameter, system)),
-            ("Current and polarity", wps.get_current_display()),
-        ]),
-        ("Electrical and travel", [
-            ("Current", _range(wps.amperage_min, wps.amperage_max, plain("A"))),
-            ("Arc voltage", _range(wps.voltage_min, wps.voltage_max, plain("V"))),
-            ("Wire feed speed", _range(wps.wire_feed_min, wps.wire_feed_max, speed)),
-            ("Travel speed", _range(wps.travel_speed_min, wps.travel_speed_max, speed)),
-            ("Heat input", _heat_text(heat, system)),
-            ("Contact tip to work (stick-out)", _range(wps.ctwd_min, wps.ctwd_max, length)),
-        ]),
-        ("Technique", [
-            ("Technique", wps.get_technique_display()),
-            ("Passes", wps.get_passes_display()),
-            ("Work angle", wps.work_angle or "—"),
-            ("Travel angle", wps.travel_angle or "—"),
-            ("Interpass cleaning", wps.interpass_cleaning or "—"),
-            ("Shielding gas", wps.shielding_gas or "None (self-shielded or flux)"),
-            ("Gas flow", _range(wps.gas_flow_min, wps.gas_flow_max, flow)),
-        ]),
-        ("Joints and base metal", [
-            ("Positions", ", ".join(wps.position_list) or "—"),
-            ("Joint types", ", ".join(JointType(j).label for j in wps.joint_type_list if j in JointType.values) or "—"),
-            ("Base metals", wps.base_metals or "—"),
-            ("Base metal thickness", _range(wps.thickness_min, wps.thickness_max, length)),
-            ("Fillet size", _range(wps.fillet_size_min, wps.fillet_size_max, length)),
-            ("Largest single-pass fillet", length(wps.single_pass_size_max)),
-        ]),
-        ("Temperatures", [
-            ("Minimum preheat", temp(wps.preheat_min)),
-            ("Maximum interpass", temp(wps.interpass_max)),
-        ]),
-    ]
-
-
-def diameter(value, system):
-    """Wire is sold by decimal inch (0.045"), rod by fraction (1/8"): a fraction only when it is exact."""
-    if value is None:
-        return "—"
-    if system == "US" and not units.inch_fraction(value.inch)[3]:
-        return f'{units._plain(value.inch)}"'
-    return units.format_length(value, system)
-
-
-def in_order(codes, order=("F", "H", "V", "OH")):
-    return ", ".join(sorted(codes, key=lambda c: order.index(c) if c in order else len(order)))
-
-
-def _heat_text(heat, system):
-    if heat is None:
-        return "— (needs volts, amps and travel speed ranges)"
-    other = "SI" if system == "US" else "US"
-    return (f"{units.format_heat_input(heat.minimum, system)} to {units.format_heat_input(heat.maximum, system)} "
-            f"({units.format_heat_input(heat.minimum, other)} to {units.format_heat_input(heat.maximum, other)})")
-
-
-def _detail_context(wps):
-    findings = wps.findings()
-    decoded, decode_error = _electrode(wps)
-    return {
-        "wps": wps,
-        "findings": findings,
-        "errors": [f for f in findings if f.severity == "error"],
-        "blockers": wps.approval_blockers(findings),
-        "sections": variables(wps),
-        "decoded": decoded,
-        "decoded_positions": in_order(decoded.positions) if decoded else "",
-        "decoded_currents": in_order(decoded.currents, ("AC", "DCEP", "DCEN")) if decoded else "",
-        "decoded_processes": ", ".join(sorted(decoded.processes)) if decoded else "",
-        "decode_error": decode_error,
-        "pqrs": list(wps.pqrs.all()),
-        "events": list(wps.events.all()),
-        "heat": wps.heat_input_range(),
-        "next_revision": WPS.objects.filter(supersedes=wps).only("pk", "number", "revision").first(),
-    }
 
 
 # --- WPS list, detail ------------------------------------------------------------------------------
@@ -198,7 +79,7 @@ def wps_list(request):
 
 @require_safe
 def wps_detail(request, pk):
-    return render(request, "procedures/wps_detail.html", _detail_context(_get_wps(pk)))
+    return render(request, "procedures/wps_detail.html", printing.wps_context(_get_wps(pk)))
 
 
 # --- draft and edit, with the live review panel -----------------------------------------------------
@@ -226,7 +107,7 @@ def _review_context(form):
         "findings": findings,
         "blockers": candidate.approval_blockers(findings),
         "form_errors": form_errors,
-        "heat": _heat_text(candidate.heat_input_range(), candidate.unit_system or "US"),
+        "heat": printing.heat_text(candidate.heat_input_range(), candidate.unit_system or "US"),
     }
 
 
@@ -240,7 +121,7 @@ def wps_create(request):
             wps.created_by = request.user
             wps.save()
             form.save_m2m()
-            wps.record_drafted(request.user)
+            wps_steps.drafted(wps, request.user)
         messages.success(request, f"{wps} saved as a draft.")
         return redirect(wps)
     return render(request, "procedures/wps_form.html", {"form": form, "wps": None, **_review_context(form)})
@@ -257,7 +138,7 @@ def wps_edit(request, pk):
     if request.method == "POST" and form.is_valid():
         try:
             form.save()
-        except ProcedureStateError as exc:  # submitted by someone else between the page load and the save
+        except Refused as exc:  # submitted by someone else between the page load and the save
             messages.error(request, " ".join(exc.messages))
             return redirect(wps)
         messages.success(request, f"{wps} saved.")
@@ -281,7 +162,7 @@ def wps_review(request, pk=None):
 def _transition(request, wps, move, done):
     try:
         move()
-    except ProcedureStateError as exc:
+    except Refused as exc:
         messages.error(request, " ".join(exc.messages))
     else:
         messages.success(request, done)
@@ -292,14 +173,14 @@ def _transition(request, wps, move, done):
 @role_required("procedure.submit")
 def wps_submit(request, pk):
     wps = get_object_or_404(WPS, pk=pk)
-    return _transition(request, wps, lambda: wps.submit(request.user), f"{wps} submitted for approval.")
+    return _transition(request, wps, lambda: wps_steps.submit(wps, request.user), f"{wps} submitted for approval.")
 
 
 @require_POST
 @role_required("procedure.approve")
 def wps_approve(request, pk):
     wps = get_object_or_404(WPS, pk=pk)
-    return _transition(request, wps, lambda: wps.approve(request.user), f"{wps} approved.")
+    return _transition(request, wps, lambda: wps_steps.approve(wps, request.user), f"{wps} approved.")
 
 
 @require_POST
@@ -307,8 +188,8 @@ def wps_approve(request, pk):
 def wps_new_revision(request, pk):
     wps = get_object_or_404(WPS, pk=pk)
     try:
-        revision = wps.new_revision(request.user)
-    except ProcedureStateError as exc:
+        revision = wps_steps.new_revision(wps, request.user)
+    except Refused as exc:
         messages.error(request, " ".join(exc.messages))
         return redirect(wps)
     messages.success(request, f"{revision} drafted from revision {wps.revision}. It supersedes it once approved.")
@@ -325,7 +206,7 @@ def _reason_page(request, pk, action, state, title, verb, move):
     if request.method == "POST" and form.is_valid():
         try:
             move(wps, form.cleaned_data["reason"])
-        except ProcedureStateError as exc:
+        except Refused as exc:
             form.add_error("reason", exc)
         else:
             messages.success(request, f"{wps}: {title.lower()} done.")
@@ -337,30 +218,23 @@ def _reason_page(request, pk, action, state, title, verb, move):
 @role_required("procedure.withdraw")
 def wps_withdraw(request, pk):
     return _reason_page(request, pk, "procedure.withdraw", WPSState.APPROVED, "Withdraw", "withdraw",
-                        lambda wps, reason: wps.withdraw(request.user, reason))
+                        lambda wps, reason: wps_steps.withdraw(wps, request.user, reason))
 
 
 @require_http_methods(["GET", "POST"])
 @role_required("procedure.approve")
 def wps_return(request, pk):
     return _reason_page(request, pk, "procedure.approve", WPSState.SUBMITTED, "Return to the engineer", "return",
-                        lambda wps, reason: wps.return_to_draft(request.user, reason))
+                        lambda wps, reason: wps_steps.return_to_draft(wps, request.user, reason))
 
 
 # --- print -----------------------------------------------------------------------------------------
-
-def wps_snapshot(wps):
-    """Everything the printed WPS shows, gathered before rendering (the renderer never queries)."""
-    context = _detail_context(wps)
-    context["approved"] = wps.state in (WPSState.APPROVED, WPSState.SUPERSEDED) and wps.approved_by_id is not None
-    return context
-
 
 @require_safe
 def wps_pdf(request, pk):
     wps = _get_wps(pk)
     filename = f"WPS-{wps.number}-rev{wps.revision}.pdf".replace(" ", "_").replace("/", "-")
-    return pdf_response(render_pdf("pdf/wps.html", wps_snapshot(wps), filename))
+    return pdf_response(render_pdf("pdf/wps.html", printing.wps_document(wps), filename))
 
 
 # --- PQR -------------------------------------------------------------------------------------------
@@ -375,35 +249,12 @@ def pqr_list(request):
     return render(request, "procedures/pqr_list.html", {"page": page, "q": q, "query": _query_without_page(request)})
 
 
-def pqr_rows(pqr):
-    """The coupon's values as (label, text) in the PQR's unit system."""
-    system = pqr.unit_system
-    heat = pqr.heat_input
-    other = "SI" if system == "US" else "US"
-    return [
-        ("Process", pqr.get_process_display()),
-        ("Electrode", pqr.electrode),
-        ("Electrode diameter", diameter(pqr.electrode_diameter, system)),
-        ("Current and polarity", pqr.get_current_display()),
-        ("Current", f"{units._plain(pqr.amperage)} A"),
-        ("Arc voltage", f"{units._plain(pqr.voltage)} V"),
-        ("Travel speed", units.format_speed(pqr.travel_speed, system)),
-        ("Heat input", f"{units.format_heat_input(heat, system)} ({units.format_heat_input(heat, other)})"
-         if heat else "—"),
-        ("Test position", pqr.position),
-        ("Base metal", pqr.base_metal),
-        ("Coupon thickness", units.format_length(pqr.thickness, system)),
-        ("Shielding gas", pqr.shielding_gas or "—"),
-        ("Preheat", units.format_temperature(pqr.preheat, system) if pqr.preheat else "—"),
-    ]
-
-
 @require_safe
 def pqr_detail(request, pk):
     pqr = get_object_or_404(PQR, pk=pk)
     procedures = pqr.procedures.order_by("number", "-revision")
     return render(request, "procedures/pqr_detail.html", {"pqr": pqr, "procedures": procedures,
-                                                          "rows": pqr_rows(pqr)})
+                                                          "rows": printing.pqr_rows(pqr)})
 
 
 def _query_without_page(request):

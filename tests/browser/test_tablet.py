@@ -7,8 +7,7 @@ from selenium.webdriver.support import expected_conditions as ec
 from selenium.webdriver.support.ui import WebDriverWait
 
 from inspections.models import NCR, Inspection, Photo
-from tests.factory import L
-from tests.pages_inspect import png_bytes
+from tests.factory import L, png_bytes
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 

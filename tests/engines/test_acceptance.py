@@ -10,9 +10,9 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
+from core.units import Length, parse_length
 from inspections.acceptance import CHECKS, evaluate
 from inspections.criteria import Banded, Count, Fixed, Permission, Proportional, Ratio, derive, get_criteria
-from legwork.units import Length, parse_length
 
 STATIC, CYCLIC = "aws-d1.1-2020-static", "aws-d1.1-2020-cyclic"
 ISO_B, ISO_C, ISO_D = "iso-5817-2014-B", "iso-5817-2014-C", "iso-5817-2014-D"

@@ -10,6 +10,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
+from core.units import parse_length
 from inspections.acceptance import evaluate
 from inspections.criteria import (
     REGISTRY,
@@ -22,7 +23,6 @@ from inspections.criteria import (
     length_text,
     list_criteria,
 )
-from legwork.units import parse_length
 
 STATIC, CYCLIC = "aws-d1.1-2020-static", "aws-d1.1-2020-cyclic"
 ISO_KEYS = ("iso-5817-2014-B", "iso-5817-2014-C", "iso-5817-2014-D")

@@ -10,7 +10,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from legwork.units import (
+from core.units import (
     HeatInput,
     UnitError,
     format_heat_input,

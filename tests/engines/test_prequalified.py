@@ -10,7 +10,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from legwork.units import parse_length
+from core.units import parse_length
 from procedures.prequalified import (
     GENERAL,
     KNOWN_KEYS,

@@ -13,7 +13,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from legwork.units import Length, parse_length
+from core.units import Length, parse_length
 from procedures import qualification as q
 from procedures.qualification import (
     AWS,

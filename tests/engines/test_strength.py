@@ -23,6 +23,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from core.units import KIP_TO_KN, Area, length_system, parse_area, parse_length, significant
 from inspections.strength import (
     AsInspectedCapacity,
     FilletStrength,
@@ -36,7 +37,6 @@ from inspections.strength import (
     plate_tension,
     weld_group_strength,
 )
-from legwork.units import KIP_TO_KN, Area, length_system, parse_area, parse_length, significant
 
 
 def q(value, places="0.01"):
@@ -475,7 +475,7 @@ def test_bad_input_elsewhere_raises_value_error(call, message):
         call()
 
 
-# --- the two helpers this engine added to legwork.units ----------------------------------------------------
+# --- the two helpers this engine added to core.units ----------------------------------------------------
 
 @pytest.mark.parametrize("text, system", [("1/4 in", "US"), ('5/16"', "US"), ("2 ft", "US"), ("6 mm", "SI"),
                                           ("0.5 m", "SI"), ("2.5 cm", "SI")])

@@ -1,4 +1,4 @@
-"""legwork.units: what a person types becomes an exact length; what is printed reads back the same.
+"""core.units: what a person types becomes an exact length; what is printed reads back the same.
 
 1 in = 25.4 mm exactly (international yard and pound agreement, 1959; NIST SP 811 B.8).
 """
@@ -10,7 +10,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from legwork.units import (
+from core.units import (
     Length,
     UnitError,
     format_force,

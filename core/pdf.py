@@ -12,7 +12,7 @@ from django.contrib.staticfiles import finders
 from django.template.loader import render_to_string
 from django.utils import timezone
 
-from legwork.roles import CAUTIONS, SAFETY_NOTE
+from core.roles import CAUTIONS, SAFETY_NOTE
 
 
 @dataclass(frozen=True)

@@ -1,11 +1,11 @@
-"""Template filters that print stored quantities in a job's unit system, through legwork.units only.
+"""Template filters that print stored quantities in a job's unit system, through core.units only.
 
 {% load quantities %} {{ weld.size|length:job.unit_system }} {{ weld.required_strength|force:"US" }}
 """
 
 from django import template
 
-from legwork import units
+from core import units
 
 register = template.Library()
 

@@ -10,9 +10,10 @@ from datetime import date, timedelta
 
 from django.utils import timezone
 
-from legwork.models import User
-from legwork.roles import Role
-from legwork.units import parse_force, parse_length, parse_speed, parse_temperature
+from core.models import User
+from core.roles import Role
+from core.units import parse_force, parse_length, parse_speed, parse_temperature
+from procedures.services import wps as wps_steps
 
 PASSWORD = "brannock-demo"
 MARKER_JOB = "J-2417"
@@ -205,8 +206,8 @@ def _welders(users, today):
 
 
 def _approve(wps, users):
-    wps.submit(users[Role.WELDING_ENGINEER])
-    wps.approve(users[Role.QA_LEAD], reason="Reviewed against the shop's procedure checklist")
+    wps_steps.submit(wps, users[Role.WELDING_ENGINEER])
+    wps_steps.approve(wps, users[Role.QA_LEAD], reason="Reviewed against the shop's procedure checklist")
     return wps
 
 
@@ -214,17 +215,17 @@ def _states(users, procedures):
     """Move the procedures through the states the pages show: approved, superseded, submitted, draft."""
     engineer, qa = users[Role.WELDING_ENGINEER], users[Role.QA_LEAD]
     for key in ("fcaw_old", "smaw", "saw", "gmaw_si"):
-        procedures[key].record_drafted(engineer)
+        wps_steps.drafted(procedures[key], engineer)
     _approve(procedures["fcaw_old"], users)
-    fcaw = procedures["fcaw_old"].new_revision(engineer, "Stick-out range widened to 1 in after trials")
+    fcaw = wps_steps.new_revision(procedures["fcaw_old"], engineer, "Stick-out range widened to 1 in after trials")
     type(fcaw).objects.filter(pk=fcaw.pk).update(ctwd_max=L("1 in"))
     fcaw.refresh_from_db()
     _approve(fcaw, users)
     procedures["fcaw"] = fcaw
     _approve(procedures["smaw"], users)
     _approve(procedures["gmaw_si"], users)
-    procedures["saw"].submit(engineer)
-    procedures["gmaw_s"].record_drafted(engineer)
+    wps_steps.submit(procedures["saw"], engineer)
+    wps_steps.drafted(procedures["gmaw_s"], engineer)
     retired = type(fcaw).objects.create(
         number="BSW-099", revision=0, title="SMAW fillet welds, E6013, light brackets (retired)",
         code="AWS D1.1:2020", unit_system="US", process="SMAW", electrode="E6013",
@@ -234,9 +235,9 @@ def _states(users, procedures):
         thickness_max=L("3/8 in"), fillet_size_min=L("1/8 in"), fillet_size_max=L("1/4 in"),
         single_pass_size_max=L("1/4 in"), preheat_min=parse_temperature("50 F"), created_by=engineer,
     )
-    retired.record_drafted(engineer)
+    wps_steps.drafted(retired, engineer)
     _approve(retired, users)
-    retired.withdraw(qa, "Brackets now welded to BSW-101; E6013 no longer stocked")
+    wps_steps.withdraw(retired, qa, "Brackets now welded to BSW-101; E6013 no longer stocked")
 
 
 def _jobs(users, procedures, welders, today):

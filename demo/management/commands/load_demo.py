@@ -7,7 +7,7 @@ already there it only adds demo accounts that are missing; `--reset` empties the
 from django.core.management import BaseCommand, call_command
 from django.db import transaction
 
-from legwork import demo
+from demo import scenario as demo
 
 
 class Command(BaseCommand):

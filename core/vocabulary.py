@@ -1,6 +1,5 @@
-"""Choices and errors the procedure and inspection records share."""
+"""The trade's vocabulary that procedures, welders, jobs and inspections share: units, processes, positions."""
 
-from django.core.exceptions import ValidationError
 from django.db import models
 
 
@@ -42,10 +41,6 @@ class Current(models.TextChoices):
 class JointType(models.TextChoices):
     FILLET = "fillet", "Fillet"
     GROOVE = "groove", "Groove"
-
-
-class SignedRecordError(ValidationError):
-    """A signed, approved or issued record cannot be changed in place; make a new one that supersedes it."""
 
 
 def split_codes(text: str) -> list[str]:

@@ -1,4 +1,4 @@
-"""Model and form fields for quantities. Storage is exact base units; parsing and printing is legwork.units.
+"""Model and form fields for quantities. Storage is exact base units; parsing and printing is core.units.
 
 A length is stored as Decimal millimetres with 7 places (1/128 in exact) and comes back as a
 units.Length; a temperature as Decimal degrees Celsius (units.Temperature); a force as kN; a speed as
@@ -11,7 +11,7 @@ from django import forms
 from django.core.exceptions import ValidationError
 from django.db import models
 
-from legwork import units
+from core import units
 
 
 class _QuantityField(models.DecimalField):

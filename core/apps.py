@@ -1,0 +1,8 @@
+from django.apps import AppConfig
+
+
+class CoreConfig(AppConfig):
+    """What every part of Legwork shares: people and roles, units, quantity fields, history, PDFs."""
+
+    name = "core"
+    verbose_name = "People, roles and history"

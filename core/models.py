@@ -1,0 +1,88 @@
+"""The shop's people (one role each; core.roles decides what a role may do) and the one history of every record."""
+
+from django.conf import settings
+from django.contrib.auth.models import AbstractUser
+from django.contrib.contenttypes.fields import GenericForeignKey
+from django.contrib.contenttypes.models import ContentType
+from django.db import models
+from django.utils import timezone
+
+from core.errors import RecordLocked
+from core.roles import Role
+
+
+class User(AbstractUser):
+    role = models.CharField(max_length=20, choices=Role.choices, default=Role.VIEWER)
+    stamp = models.CharField(
+        max_length=20, blank=True, help_text="Inspector's or engineer's stamp or certificate number, printed on records"
+    )
+
+    def __str__(self):
+        return self.get_full_name() or self.username
+
+    @property
+    def role_label(self):
+        return Role(self.role).label if self.role in Role.values else "—"
+
+
+class EventQuerySet(models.QuerySet):
+    """History only grows: no bulk change or delete."""
+
+    def update(self, **kwargs):
+        raise RecordLocked("A history row is never changed; record a new event instead.")
+
+    def delete(self):
+        raise RecordLocked("A history row is never deleted.")
+
+
+class Event(models.Model):
+    """One change of one record: who, when, from which state to which, which fields changed, and why.
+
+    Every record's history is these rows (core.history writes and reads them); they are never changed or
+    deleted. `changes` maps a field's label to [old, new] as a person reads them.
+    """
+
+    subject_type = models.ForeignKey(ContentType, on_delete=models.PROTECT, related_name="+")
+    subject_id = models.PositiveBigIntegerField()
+    subject = GenericForeignKey("subject_type", "subject_id")
+    action = models.CharField(max_length=40)
+    from_state = models.CharField(max_length=30, blank=True)
+    to_state = models.CharField(max_length=30, blank=True)
+    changes = models.JSONField(default=dict, blank=True)
+    reason = models.TextField(blank=True)
+    user = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, blank=True, on_delete=models.PROTECT,
+                             related_name="+", help_text="Empty for the system itself (a background worker)")
+    at = models.DateTimeField(default=timezone.now)
+
+    objects = EventQuerySet.as_manager()
+
+    class Meta:
+        ordering = ["at", "pk"]
+        indexes = [models.Index(fields=["subject_type", "subject_id", "at"], name="event_subject_at")]
+
+    def __str__(self):
+        return f"{self.subject_type.model} {self.subject_id}: {self.action} at {self.at:%Y-%m-%d %H:%M}"
+
+    def save(self, *args, **kwargs):
+        if self.pk is not None and not self._state.adding:
+            raise RecordLocked("A history row is never changed; record a new event instead.")
+        super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise RecordLocked("A history row is never deleted.")
+
+    def _label(self, value):
+        model = self.subject_type.model_class()
+        try:
+            choices = dict(model._meta.get_field("state").flatchoices)
+        except Exception:  # noqa: BLE001 - a subject without a state field shows the stored words
+            return value
+        return choices.get(value, value)
+
+    @property
+    def from_label(self):
+        return self._label(self.from_state) if self.from_state else ""
+
+    @property
+    def to_label(self):
+        return self._label(self.to_state) if self.to_state else ""

@@ -1,6 +1,0 @@
-from django.apps import AppConfig
-
-
-class LegworkConfig(AppConfig):
-    name = "legwork"
-    verbose_name = "Legwork accounts"

@@ -1,0 +1,1 @@
+"""State changes of procedures and welders: one function per step, each through core.transitions.transition."""

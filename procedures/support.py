@@ -172,7 +172,7 @@ def _speed_system(text) -> str | None:
 
 # Shielding gas: "90Ar/10CO2", "90% Ar + 10% CO2", "CO2", "100% CO2", or an ISO 14175 symbol such as "M21".
 _GAS_NUMBER_FIRST = re.compile(r"^([0-9]+(?:\.[0-9]+)?)([A-Z][A-Z0-9]*)$")
-_GAS_NAME_FIRST = re.compile(r"^([A-Z][A-Z]?|CO2|O2|N2|H2|HE|AR)([0-9]+(?:\.[0-9]+)?)?$")
+_GAS_NAME_FIRST = re.compile(r"^(CO2|O2|N2|H2|HE|AR|[A-Z][A-Z]?)([0-9]+(?:\.[0-9]+)?)?$")
 _GAS_NAMES = {"ARGON": "AR", "HELIUM": "HE", "CARBONDIOXIDE": "CO2", "OXYGEN": "O2"}
 
 
@@ -341,19 +341,27 @@ def _length(value: Length | None, system: str) -> str:
     return "unlimited" if value is None else format_length(value, system)
 
 
+def _gaps_text(gaps, show) -> str:
+    return ", ".join(f"{show(start)} to {show(end)}" for start, end in gaps)
+
+
 def _coverage(low, high, intervals):
-    """First part of [low, high] that no (lo, hi, pqr) interval covers, as (start, end), or None; hi None = no
-    upper limit. Also the PQRs whose interval overlaps [low, high]."""
+    """The parts of [low, high] that no (lo, hi, pqr) interval covers, as [(start, end), ...] (hi None = no upper
+    limit; intervals are closed, so a WPS value exactly at a limit is covered), and the PQRs whose interval
+    overlaps [low, high]."""
     overlapping = [pqr for lo, hi, pqr in intervals if lo <= high and (hi is None or hi >= low)]
-    reach = low
-    for lo, hi, _ in sorted(((lo, hi, pqr) for lo, hi, pqr in intervals), key=lambda item: item[0]):
-        if lo > reach:
+    if low == high:
+        return ([] if overlapping else [(low, high)]), overlapping
+    gaps, reach = [], low
+    for lo, hi, _ in sorted(intervals, key=lambda item: item[0]):
+        if lo > high:
             break
-        if hi is None or hi >= high:
-            return None, overlapping
-        reach = max(reach, hi)
-    following = [lo for lo, _, _ in intervals if lo > reach]
-    return (reach, min([high] + following)), overlapping
+        if lo > reach:
+            gaps.append((reach, lo))
+        reach = high if hi is None else max(reach, hi)
+        if reach >= high:
+            return gaps, overlapping
+    return gaps + [(reach, high)], overlapping
 
 
 def _candidates(wps: Wps, pqrs: tuple[Pqr, ...]) -> tuple[Pqr, ...]:
@@ -532,14 +540,16 @@ SOURCE_TABLE_6_2 = ("AWS D1.1/D1.1M:2020 Table 6.2, base metal thickness qualifi
 AWS_THICKNESS = {"US": (_IN("0.125"), _IN(1)), "SI": (_MM(3), _MM(25))}  # (least qualified, unlimited from)
 
 
-def aws_thickness_qualified(pqr: Pqr, wps_joint: str) -> tuple[Length, Length | None] | None:
+def aws_thickness_qualified(pqr: Pqr, wps: Wps) -> tuple[Length, Length | None] | None:
     """(minimum, maximum or None for unlimited) a PQR qualifies, or None: a fillet test for a groove WPS, or a
-    test plate thinner than the table's least (1/8 in [3 mm])."""
+    test plate thinner than the table's least. The least (1/8 in or 3 mm) is the table's figure in the WPS's
+    units; whether the plate reached the unlimited row (1 in or 25 mm) is read in the units of the test plate."""
+    least = AWS_THICKNESS[wps.system("thickness_min")][0]
     if pqr.p.joint == "fillet":
-        return None if wps_joint == "groove" else (AWS_THICKNESS[pqr.p.system("thickness_max")][0], None)
-    least, unlimited = AWS_THICKNESS[pqr.p.system("thickness_max")]
+        return None if wps.p.joint == "groove" else (least, None)
     t = pqr.test_thickness
-    if t < least:
+    test_least, unlimited = AWS_THICKNESS[pqr.p.system("thickness_max")]
+    if t < test_least:
         return None
     return (least, None) if t >= unlimited else (least, t * 2)
 
@@ -547,28 +557,31 @@ def aws_thickness_qualified(pqr: Pqr, wps_joint: str) -> tuple[Length, Length | 
 def _thickness(wps: Wps, pqrs, qualified, source, needed) -> Iterable[Row]:
     system = wps.system("thickness_max")
     low, high = wps.p.thickness_min, wps.p.thickness_max
-    ranges = {p: qualified(p, wps.p.joint) for p in pqrs}
+    ranges = {p: qualified(p, wps) for p in pqrs}
     intervals = [(r[0], r[1], p) for p, r in ranges.items() if r is not None]
-    gap, overlapping = _coverage(low, high, intervals)
+    gaps, overlapping = _coverage(low, high, intervals)
 
     def shown(p):
         r = ranges[p]
         test = f"({_length(p.test_thickness, system)} {p.p.joint} test) qualifies"
         return f"{test} {_length(r[0], system)} to {_length(r[1], system)}" if r else f"{test} nothing here"
 
-    message = ""
-    if gap is not None:
-        message = (f"WPS base metal {_length(low, system)} to {_length(high, system)}; {_each(pqrs, shown)}. Not "
-                   f"covered: {_length(gap[0], system)} to {_length(gap[1], system)}: {needed(gap, high, system)}.")
+    message = "" if not gaps else (
+        f"WPS base metal {_length(low, system)} to {_length(high, system)}; {_each(pqrs, shown)}. Not covered: "
+        f"{_gaps_text(gaps, lambda x: _length(x, system))}: {needed(gaps, high, system)}.")
     yield _judge("thickness_max", "Base metal thickness", f"{_length(low, system)} to {_length(high, system)}",
-                 overlapping, "thickness", source, message, covered=gap is None)
+                 overlapping, "thickness", source, message, covered=not gaps)
 
 
-def _aws_needed_thickness(gap, high, system) -> str:
+def _aws_needed_thickness(gaps, high, system) -> str:
     least, unlimited = AWS_THICKNESS[system]
-    if gap[1] <= least:
-        return f"Table 6.2 qualifies nothing under {_length(least, system)}"
-    return f"weld a groove PQR on a plate of {_length(min(high * Decimal('0.5'), unlimited), system)} or thicker"
+    advice = []
+    if gaps[0][0] < least:
+        advice.append(f"Table 6.2 qualifies nothing under {_length(least, system)}")
+    if gaps[-1][1] > least:
+        plate = min(high * Decimal("0.5"), unlimited)
+        advice.append(f"weld a groove PQR on a plate of {_length(plate, system)} or thicker")
+    return "; ".join(advice)
 
 
 def rule_thickness(wps: Wps, pqrs) -> Iterable[Row]:
@@ -615,15 +628,14 @@ def _percent_rule(rule: Electrical, wps: Wps, pqrs) -> Iterable[Row]:
     factor = Decimal(percent) / 100
     intervals = [(rule.scale(rule.pqr_value(p), 1 - factor), rule.scale(rule.pqr_value(p), 1 + factor), p)
                  for p in pqrs]
-    gap, overlapping = _coverage(low, high, intervals)
+    gaps, overlapping = _coverage(low, high, intervals)
     allowed = _each(pqrs, lambda p: f"at {rule.show(rule.pqr_value(p), wps)} allows "
                                     f"{rule.show(rule.scale(rule.pqr_value(p), 1 - factor), wps)} to "
                                     f"{rule.show(rule.scale(rule.pqr_value(p), 1 + factor), wps)}")
-    message = "" if gap is None else (
-        f"WPS {rule.label.lower()} {text}; {allowed} (± {percent} % for {wps.p.process}). Not covered: "
-        f"{rule.show(gap[0], wps)} to {rule.show(gap[1], wps)}: narrow the WPS range or list a PQR welded nearer "
-        f"to it.")
-    yield _judge(rule.field, rule.label, text, overlapping, rule.field, rule.source, message, covered=gap is None)
+    message = (f"WPS {rule.label.lower()} {text}; {allowed} (± {percent} % for {wps.p.process}). Not covered: "
+               f"{_gaps_text(gaps, lambda x: rule.show(x, wps))}: narrow the WPS range or list a PQR welded nearer "
+               "to it.")
+    yield _judge(rule.field, rule.label, text, overlapping, rule.field, rule.source, message, covered=not gaps)
 
 
 def _scale_speed(speed: Speed, factor) -> Speed:
@@ -813,7 +825,7 @@ SOURCE_ISO_THICKNESS = (f"{_ISO}, parent metal thickness (from memory, multi-run
                         "over")
 
 
-def iso_thickness_qualified(pqr: Pqr, wps_joint: str) -> tuple[Length, Length | None] | None:
+def iso_thickness_qualified(pqr: Pqr, wps: Wps) -> tuple[Length, Length | None] | None:
     t = pqr.test_thickness
     if pqr.p.joint == "groove":
         if t <= _MM(3):
@@ -823,7 +835,7 @@ def iso_thickness_qualified(pqr: Pqr, wps_joint: str) -> tuple[Length, Length | 
         if t <= _MM(100):
             return t * Decimal("0.5"), t * 2
         return _MM(50), t * 2
-    if wps_joint == "groove":
+    if wps.p.joint == "groove":
         return None
     if t <= _MM(3):
         return t * Decimal("0.7"), t * 2
@@ -832,7 +844,7 @@ def iso_thickness_qualified(pqr: Pqr, wps_joint: str) -> tuple[Length, Length | 
     return _MM(5), None
 
 
-def _iso_needed_thickness(gap, high, system) -> str:
+def _iso_needed_thickness(gaps, high, system) -> str:
     return "list or weld a PQR whose thickness range covers it"
 
 
@@ -858,15 +870,14 @@ def iso_rule_heat_input(wps: Wps, pqrs) -> Iterable[Row]:
     values = {q: heat_input(q.p.voltage_min, q.p.amperage_min, q.p.travel_speed_min) for q in pqrs}
     share = ISO_HEAT_INPUT_FACTOR
     intervals = [(_scale_heat(hi, 1 - share), _scale_heat(hi, 1 + share), q) for q, hi in values.items()]
-    gap, overlapping = _coverage(span.minimum, span.maximum, intervals)
+    gaps, overlapping = _coverage(span.minimum, span.maximum, intervals)
     text = f"{format_heat_input(span.minimum, system)} to {format_heat_input(span.maximum, system)}"
-    message = "" if gap is None else (
-        f"WPS heat input {text} (from its volts, amps and travel speeds); PQR heat input: "
-        f"{_each(pqrs, lambda q: format_heat_input(values[q], system))}, each qualifying 25 % either side. "
-        f"Not covered: {format_heat_input(gap[0], system)} to {format_heat_input(gap[1], system)}: narrow the WPS "
-        "volts, amps or travel speeds, or list a PQR nearer to them.")
+    message = (f"WPS heat input {text} (from its volts, amps and travel speeds); PQR heat input: "
+               f"{_each(pqrs, lambda q: format_heat_input(values[q], system))}, each qualifying 25 % either side. "
+               f"Not covered: {_gaps_text(gaps, lambda x: format_heat_input(x, system))}: narrow the WPS volts, amps "
+               "or travel speeds, or list a PQR nearer to them.")
     yield _judge("heat_input", "Heat input", text, overlapping, "heat_input", SOURCE_ISO_HEAT_INPUT, message,
-                 covered=gap is None)
+                 covered=not gaps)
 
 
 SOURCE_ISO_PREHEAT = (f"{_ISO}: preheat more than 50 °C below the test needs a new test (from memory; a public "

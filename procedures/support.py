@@ -268,12 +268,11 @@ def parse_pqr(pqr, index: int, code: str = AWS) -> Pqr:
     mapped = {"process": pqr["process"], "transfer": pqr.get("transfer"), "electrode": pqr["electrode"],
               "current": pqr["current"], "joint": pqr["joint"], "base_metals": pqr["base_metals"],
               "thickness_max": pqr["test_thickness"], "preheat_min": pqr["preheat"]}
-    try:
-        mapped["amperage_min"] = parse_amperage(_finite(pqr["amperage"]))
-        mapped["voltage_min"] = parse_voltage(_finite(pqr["voltage"]))
-        mapped["travel_speed_min"] = parse_speed(pqr["travel_speed"])
-    except ValueError as exc:
-        raise ValueError(f"{what} amperage, voltage or travel speed: {exc}") from None
+    for key, parse in (("amperage", parse_amperage), ("voltage", parse_voltage), ("travel_speed", parse_speed)):
+        try:
+            mapped[f"{key}_min"] = parse(_finite(pqr[key]))
+        except ValueError as exc:
+            raise ValueError(f"{what} {key.replace('_', ' ')}: {exc}") from None
     procedure = _parse(mapped, what, PQR_WORDS)
     if procedure.thickness_max.mm <= 0:
         raise ValueError(f"{what} test plate thickness must be more than zero, e.g. 3/8 in or 10 mm.")

@@ -6,7 +6,7 @@ the table of base metals a PQR qualifies. ISO 15614-1:2017 ranges of qualificati
 FROM MEMORY until someone with the standard confirms it.
 
 How it works: review() parses the WPS and every PQR first (through procedures.prequalified.parse_procedure and
-legwork.units, so a value is read the same way everywhere); anything missing or unreadable raises ValueError
+core.units, so a value is read the same way everywhere); anything missing or unreadable raises ValueError
 before any rule runs. Each rule in AWS_RULES / ISO_RULES then yields Rows: one per WPS value, naming the PQRs that
 support it and, when none (or not all of it) is supported, a Finding. A WPS value is supported when at least one
 PQR supports it; a range (thickness, amperage, ...) is supported when the PQRs' ranges together cover it.
@@ -31,7 +31,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from decimal import Decimal
 
-from legwork.units import (
+from core.units import (
     HeatInput,
     Length,
     Speed,

@@ -75,3 +75,68 @@ def test_page_answers_each_role_as_expected(name, role, client_as, make):
 def test_action_urls_refuse_get(name, client_as, make):
     response = client_as("qa_lead").get(reverse(name, kwargs=NOT_PAGES[name](make)))
     assert response.status_code == GONE
+
+
+# --- POST: every URL, every role, generated from the URL configuration ----------------------------------------
+
+def _callbacks(resolver=None, namespace=""):
+    resolver = resolver or get_resolver()
+    for entry in resolver.url_patterns:
+        if isinstance(entry, URLResolver):
+            if entry.namespace == "admin":
+                continue
+            yield from _callbacks(entry, f"{namespace}{entry.namespace}:" if entry.namespace else namespace)
+        elif isinstance(entry, URLPattern) and entry.name:
+            yield f"{namespace}{entry.name}", entry.callback
+
+
+ACTIONS_OF = {name: getattr(callback, "legwork_actions", ()) for name, callback in _callbacks()}
+# Views anyone signed in may post to (no role action): signing in and out.
+OPEN_POSTS = {"login", "logout"}
+
+
+def _rows():
+    from django.apps import apps
+
+    return {model._meta.label: model._base_manager.count() for model in apps.get_models()
+            if model._meta.app_label in ("core", "procedures", "inspections")}
+
+
+@pytest.mark.parametrize("name", sorted(set(PAGES) | set(NOT_PAGES)))
+@pytest.mark.parametrize("role", [None, *ROLES])
+def test_post_answers_each_role_as_expected(name, role, client_as, make, users):
+    """A POST (empty: the least a crafted request can send) from a role the URL's action does not allow is 403
+    and changes nothing; an allowed role is never refused for its role; a page no role acts on refuses POST."""
+    build = PAGES[name][0] if name in PAGES else NOT_PAGES[name]
+    url = reverse(name, kwargs=build(make))
+    client = client_as(role)
+    before = _rows()
+    response = client.post(url, {})
+    actions = ACTIONS_OF[name]
+    if role is None:
+        assert response.status_code in ((200, 302) if name in OPEN_POSTS else (302,)), f"anonymous POST {url}"
+        if name not in OPEN_POSTS:
+            assert response.url.startswith(reverse("login"))
+            assert _rows() == before
+        return
+    from core.roles import can
+
+    user = users[role]
+    if name in OPEN_POSTS:
+        assert response.status_code in (200, 302)
+    elif not actions:
+        assert response.status_code == GONE, f"{role} POST {url}: a read-only page must refuse POST"
+        assert _rows() == before
+    elif any(can(user, action) for action in actions):
+        assert response.status_code not in (403, 500), f"{role} may {actions} but POST {url} answered " \
+                                                       f"{response.status_code}"
+    else:
+        assert response.status_code in (403, GONE), f"{role} may not {actions}: POST {url}"
+        assert _rows() == before, f"{role} POST {url} changed records"
+
+
+def test_every_state_changing_url_names_its_action():
+    """A URL that accepts POST and changes records names the role action it needs (core.roles.role_required)."""
+    unnamed = sorted(name for name, actions in ACTIONS_OF.items() if not actions and name not in OPEN_POSTS
+                     and name in NOT_PAGES)
+    assert not unnamed, f"POST-only URLs without a role action: {unnamed}"

@@ -13,7 +13,7 @@ from django.views.decorators.http import require_http_methods, require_POST, req
 
 from core.errors import Refused
 from core.history import history_of
-from core.roles import can, require, role_required
+from core.roles import can, role_required
 from core.units import format_length
 from core.vocabulary import JointType
 from inspections.forms.jobs import (
@@ -196,14 +196,9 @@ def weld_create(request, pk):
                                                            "check": _check_context(assembly, form.instance)})
 
 
-def _may_edit_weld(user):
-    if not (can(user, "job.manage") or can(user, "weld.record")):
-        require(user, "weld.record")
-
-
 @require_http_methods(["GET", "POST"])
+@role_required("job.manage", "weld.record")
 def weld_edit(request, pk):
-    _may_edit_weld(request.user)
     weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
     assembly = weld.assembly
     if assembly.is_closed:
@@ -248,9 +243,9 @@ def _check_context(assembly, weld, wps=None, welders=None, on=None):
 
 
 @require_safe
+@role_required("job.manage", "weld.record")
 def weld_check(request, pk):
     """htmx: the qualification panel for what the weld form holds now (nothing is saved)."""
-    _may_edit_weld(request.user)
     assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
     weld = Weld(assembly=assembly)
     existing = request.GET.get("weld", "")

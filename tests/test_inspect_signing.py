@@ -148,7 +148,7 @@ def test_a_failed_signing_leaves_nothing_behind(make, monkeypatch):
     def boom(*args, **kwargs):
         raise RuntimeError("disk full")
 
-    monkeypatch.setattr("inspections.services.assemblies.refresh_assembly_state", boom)
+    monkeypatch.setattr("inspections.services.inspect.refresh_assembly_state", boom)
     with pytest.raises(RuntimeError):
         sign_inspection(weld, {"min_size": L("1/8 in")}, "final", user)
     assert Inspection.objects.count() == 0 and NCR.objects.count() == 0

@@ -30,7 +30,10 @@ def _next_number(job) -> str:
 
 
 def open_ncr(inspection, user, description):
-    """Raise an NCR from a rejected inspection (one per inspection: a second call returns the first)."""
+    """Raise an NCR from a rejected inspection (one per inspection: a second call returns the first).
+
+    The signing that rejected the weld calls this and then refreshes the assembly's state once for both.
+    """
     require(user, "ncr.raise")
     description = (description or "").strip()
     if not description:
@@ -46,15 +49,23 @@ def open_ncr(inspection, user, description):
         ncr = NCR.objects.create(number=_next_number(job), weld=inspection.weld, inspection=inspection,
                                  description=description, raised_by=user)
         history.record(ncr, user, history.CREATED, to_state=ncr.state, reason=description)
-    assembly_steps.refresh_assembly_state(inspection.weld.assembly, user, f"{ncr} raised")
     return ncr
 
 
+def _loaded(ncr) -> NCR:
+    """The NCR with the records every step reads (its inspection, weld, assembly, job), in one query."""
+    loaded = NCR.objects.select_related("inspection__inspector", "weld__assembly__job__client_criteria",
+                                        "weld__wps").get(pk=ncr.pk)
+    loaded.inspection.weld = loaded.weld  # the same row: read once
+    return loaded
+
+
 def _disposition(ncr, user, disposition, to, notes, reason, check=None, **fields):
-    """Open -> `to` with the disposition, its notes, who and when; the assembly's state follows."""
-    return transition(ncr, user=user, permission="ncr.disposition", allowed_from={NCRState.OPEN}, to=to,
+    """Open -> `to` with the disposition, its notes, who and when (the caller's NCR is brought up to date)."""
+    transition(ncr, user=user, permission="ncr.disposition", allowed_from={NCRState.OPEN}, to=to,
                       check=check, reason=reason, disposition=disposition, disposition_notes=notes,
                       dispositioned_by=user, dispositioned_at=timezone.now(), **fields)
+    return ncr
 
 
 def repair_problems(ncr, wps, welder, on=None) -> dict[str, list[str]]:
@@ -80,8 +91,10 @@ def repair_problems(ncr, wps, welder, on=None) -> dict[str, list[str]]:
 def disposition_repair(ncr, user, wps, welder, notes=""):
     """Repair to an approved WPS by a welder qualified for the weld; the NCR closes on an accepted re-inspection."""
 
-    def repairable(locked):
-        problems = repair_problems(locked, wps, welder)
+    ncr = _loaded(ncr)
+
+    def repairable(_locked):  # the weld a repair is judged against is the NCR's, loaded above
+        problems = repair_problems(ncr, wps, welder)
         if problems:
             raise Refused(problems, code="repair")
 
@@ -117,6 +130,7 @@ def disposition_use_as_is(ncr, user, engineer_name, approved_on, notes=""):
     if problems:
         raise Refused(problems, code="use_as_is")
     # The calculation reads the NCR's signed inspection, which never changes: made once, checked, then stored.
+    ncr = _loaded(ncr)
     calculation = capacity_calculation(ncr)
     if ncr.weld.required_strength is not None:
         if calculation.get("error"):
@@ -140,7 +154,7 @@ def disposition_scrap(ncr, user, notes):
     if not notes:
         raise Refused({"disposition_notes": ["Say why the assembly is scrapped."]}, code="scrap")
     with transaction.atomic():
-        ncr = _disposition(ncr, user, Disposition.SCRAP, NCRState.CLOSED, notes, f"Scrap. {notes}",
+        ncr = _disposition(_loaded(ncr), user, Disposition.SCRAP, NCRState.CLOSED, notes, f"Scrap. {notes}",
                            closed_at=timezone.now())
         assembly_steps.scrap(ncr.weld.assembly, user, f"Scrapped by {ncr}: {notes}")
     return ncr
@@ -160,7 +174,4 @@ def close_ncrs_for(inspection) -> list:
     closed = [transition(ncr, user=inspection.inspector, allowed_from={NCRState.DISPOSITIONED}, to=NCRState.CLOSED,
                          reason=f"Repair accepted by re-inspection #{inspection.pk}",
                          closed_by_inspection=inspection, closed_at=timezone.now()) for ncr in waiting]
-    if closed:
-        assembly_steps.refresh_assembly_state(inspection.weld.assembly, inspection.inspector,
-                                              f"{', '.join(str(n) for n in closed)} closed by re-inspection")
-    return closed
+    return closed  # the signing that called this refreshes the assembly's state once

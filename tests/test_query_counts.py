@@ -1,0 +1,100 @@
+"""Signing and every NCR step run a fixed number of queries, whatever the weld's or the job's history.
+
+The counts are pinned exactly: a change that adds a query (an N+1, a lost select_related) fails here and has to
+say why in the diff. Each is measured with history already present, so a count that grew with the data would
+show as a different number on the second record.
+"""
+
+import pytest
+from django.utils import timezone
+
+from inspections.services.inspect import sign_inspection
+from inspections.services.ncr import disposition_repair, disposition_scrap, disposition_use_as_is, open_ncr
+from procedures.models.wps import WPSState
+from tests.factory import L
+from tests.test_jobs_pages import qualified_welder
+
+
+@pytest.fixture(autouse=True)
+def _content_types_known(db):
+    """Django caches content types per process after their first use; count as a warm server does."""
+    from django.apps import apps
+    from django.contrib.contenttypes.models import ContentType
+
+    ContentType.objects.get_for_models(*apps.get_models())
+
+
+@pytest.fixture
+def weld(make):
+    """A weld of an assembly that already has history: three inspected welds and an NCR closed as use-as-is."""
+    assembly = make.make_assembly()
+    for _ in range(3):
+        make.make_inspection(weld=make.make_weld(assembly=assembly), accepted=True)
+    return make.make_weld(assembly=assembly)
+
+
+def _weld(weld):
+    from inspections.models import Weld
+
+    return Weld.objects.select_related("assembly__job__client_criteria").get(pk=weld.pk)
+
+
+@pytest.mark.parametrize("earlier", [0, 5])
+def test_signing_an_accepted_final_inspection(make, weld, users, django_assert_num_queries, earlier):
+    for _ in range(earlier):
+        make.make_inspection(weld=weld, accepted=True, stage="in_process")
+    fresh = _weld(weld)
+    with django_assert_num_queries(SIGN_ACCEPTED):
+        sign_inspection(fresh, {"min_size": L("1/4 in")}, "final", users["inspector"])
+
+
+@pytest.mark.parametrize("earlier", [0, 5])
+def test_signing_a_rejected_final_inspection(make, weld, users, django_assert_num_queries, earlier):
+    for _ in range(earlier):
+        make.make_inspection(weld=weld, accepted=True, stage="in_process")
+    fresh = _weld(weld)
+    with django_assert_num_queries(SIGN_REJECTED):
+        sign_inspection(fresh, {"min_size": L("3/16 in"), "undersize_length": L("3 in")}, "final",
+                        users["inspector"])
+
+
+def test_opening_an_ncr_that_signing_already_opened(make, weld, users, django_assert_num_queries):
+    inspection = make.make_inspection(weld=weld, accepted=False)
+    with django_assert_num_queries(3):  # a savepoint around the NCR of that inspection, returned as it is
+        open_ncr(inspection, users["inspector"], "Undersize")
+
+
+def test_dispositioning_a_repair(make, weld, users, django_assert_num_queries):
+    ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))
+    wps, welder = make.make_wps(state=WPSState.APPROVED), qualified_welder(make)
+    with django_assert_num_queries(REPAIR):
+        disposition_repair(ncr, users["qa_lead"], wps, welder, "Grind out and re-weld")
+
+
+def test_closing_a_repair_by_an_accepted_reinspection(make, weld, users, django_assert_num_queries):
+    ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))
+    disposition_repair(ncr, users["qa_lead"], make.make_wps(state=WPSState.APPROVED), qualified_welder(make))
+    fresh = _weld(weld)
+    with django_assert_num_queries(SIGN_CLOSING_REPAIR):
+        sign_inspection(fresh, {"min_size": L("1/4 in")}, "final", users["inspector"])
+
+
+def test_use_as_is(make, weld, users, django_assert_num_queries):
+    ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))
+    with django_assert_num_queries(USE_AS_IS):
+        disposition_use_as_is(ncr, users["qa_lead"], "M. Ferreira, PE", timezone.localdate())
+
+
+def test_scrap(make, weld, users, django_assert_num_queries):
+    ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))
+    with django_assert_num_queries(SCRAP):
+        disposition_scrap(ncr, users["qa_lead"], "Burn-through at the cope")
+
+
+# Savepoints count as queries on both databases (each transition is its own atomic block inside the signing).
+SIGN_ACCEPTED = 11  # lock weld, read state, insert, point the weld at it, refresh (state, facts) and savepoints
+SIGN_REJECTED = 22  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
+REPAIR = 12  # the NCR with its weld, job and inspection; the welder's records; the transition; refresh
+SIGN_CLOSING_REPAIR = 21  # an accepted signing + the waiting NCR closed (transition) + the assembly's move back
+USE_AS_IS = 15  # the NCR with its records; the capacity reads the weld's WPS; the transition; refresh and move
+SCRAP = 13  # the NCR with its records, its transition, and the assembly's transition to scrapped

@@ -199,15 +199,22 @@ def _written_in_mm(value) -> bool:
     return isinstance(value, str) and re.search(r"(?:mm|cm|m|millimet(?:re|er)s?)\s*$", value.strip(), re.I) is not None
 
 
-def thickness_qualified(test_thickness, test="groove", code=AWS, *, system=None) -> tuple[Length, Length | None]:
+def thickness_qualified(test_thickness, test="groove", code=AWS, *, system=None,
+                        weld=None) -> tuple[Length, Length | None]:
     """(minimum, maximum) plate thickness a test qualifies; maximum None means unlimited.
 
+    weld: the joint type of the production weld ("groove" or "fillet"); None means the same type as the test.
+    AWS D1.1/D1.1M:2020 Table 6.11 has a fillet row for every plate test: a groove test qualifies fillet welds on
+    base metal 1/8 in [3 mm] and over, unlimited (from memory, high confidence), however thin the test plate.
     AWS: a groove test thinner than 3/8 in [10 mm] is refused, because Table 6.11 has no plate row below it (thinner
     work is sheet steel, AWS D1.3). On an SI job (system="SI", or the test thickness written in mm) the D1.1M SI
     figures are used: 3 mm, 10 mm, 20 mm, 25 mm (SI equivalents from memory).
+    ISO 9606-1: the range of the test's own joint type (a butt test's fillet range is not entered: from memory only,
+    and not confirmed), so weld is ignored there.
     """
     code = _code(code)
     test = _joint(test, "test")
+    weld = test if weld is None else _joint(weld, "weld")
     t = _thickness(test_thickness, "Test plate thickness")
     if system is None:
         system = "SI" if _written_in_mm(test_thickness) else "US"
@@ -217,15 +224,16 @@ def thickness_qualified(test_thickness, test="groove", code=AWS, *, system=None)
         return _iso_thickness(t, test)
     si = system == "SI"
     eighth = Length(Decimal(3)) if si else _IN("0.125")
-    if test == "fillet":
-        # AWS D1.1/D1.1M:2020 Table 6.11, fillet weld tests: 1/8 in [3 mm] and over, unlimited (from memory).
-        return eighth, None
     # AWS D1.1/D1.1M:2020 Table 6.11, plate groove tests (published; SI column from memory).
     three_eighths, one_inch = (Length(Decimal(10)), Length(Decimal(25))) if si else (_IN("0.375"), _IN(1))
-    if t < three_eighths:
+    if test == "groove" and t < three_eighths:
         raise ValueError(f"A {format_length(t, system)} groove test is thinner than the thinnest plate test of "
                          f"{_AWS_SOURCE} Table 6.11 ({format_length(three_eighths, system)}); "
                          "use a 3/8 in [10 mm] or 1 in [25 mm] test plate.")
+    if test == "fillet" or weld == "fillet":
+        # AWS D1.1/D1.1M:2020 Table 6.11, fillet rows: a fillet test, and a groove test for fillet welds, qualify
+        # base metal 1/8 in [3 mm] and over, unlimited (from memory, high confidence; SI figure from memory).
+        return eighth, None
     if t == three_eighths:
         return eighth, (Length(Decimal(20)) if si else _IN("0.75"))
     if t < one_inch:
@@ -558,8 +566,15 @@ def _not_in_force(q: QualificationFacts, on: date) -> list[str]:
     return reasons
 
 
-def _thickness_range(q: QualificationFacts) -> tuple[Length, Length | None]:
-    return thickness_qualified(q.test_thickness, q.joint, q.code, system=q.unit_system)
+def _thickness_range(q: QualificationFacts, weld_joint: str | None = None) -> tuple[Length, Length | None]:
+    """The range for the weld's joint type: a groove test covers fillets on 1/8 in and over (Table 6.11)."""
+    return thickness_qualified(q.test_thickness, q.joint, q.code, system=q.unit_system, weld=weld_joint)
+
+
+def _table_6_11(q: QualificationFacts, weld_joint: str) -> str:
+    if q.code != AWS:
+        return ""
+    return " Table 6.11, fillet row, from memory" if weld_joint == "fillet" else " Table 6.11"
 
 
 def _refusals(q: QualificationFacts, weld: WeldDemand, on: date) -> list[str]:
@@ -577,11 +592,11 @@ def _refusals(q: QualificationFacts, weld: WeldDemand, on: date) -> list[str]:
     elif weld.position not in qualified:
         reasons.append(f"{q.label} qualifies {weld.joint} welds in {', '.join(_order(qualified, known))}; "
                        f"this weld is {weld.position} ({source}{' Table 6.10' if q.code == AWS else ''}).")
-    low, high = _thickness_range(q)
+    low, high = _thickness_range(q, weld.joint)
     if weld.thickness < low or (high is not None and weld.thickness > high):
-        reasons.append(f"{q.label} on {_show(q.test_thickness, q.code)} plate qualifies "
+        reasons.append(f"{q.label} on {_show(q.test_thickness, q.code)} plate qualifies {weld.joint} welds on "
                        f"{_range_text(low, high, q.code)}; this weld is on {_show(weld.thickness, q.code)} "
-                       f"({source}{' Table 6.11' if q.code == AWS else ''}).")
+                       f"({source}{_table_6_11(q, weld.joint)}).")
     if q.code == AWS and q.process == weld.process == "SMAW":
         reasons.extend(_electrode_refusals(q, weld))
     return reasons
@@ -605,10 +620,11 @@ def _electrode_refusals(q: QualificationFacts, weld: WeldDemand) -> list[str]:
 
 
 def _acceptance(q: QualificationFacts, weld: WeldDemand, validity: _Validity) -> str:
-    low, high = _thickness_range(q)
+    low, high = _thickness_range(q, weld.joint)
     known = AWS_POSITIONS if q.code == AWS else ISO_POSITIONS
     qualified = positions_qualified(q.test_position, q.code, joint=q.joint)[weld.joint]
-    source = (f"{_AWS_SOURCE} Tables 6.10 and 6.11" if q.code == AWS
+    fillet_row = " (fillet row from memory)" if weld.joint == "fillet" else ""
+    source = (f"{_AWS_SOURCE} Tables 6.10 and 6.11{fillet_row}" if q.code == AWS
               else f"{_ISO_SOURCE}, position and thickness ranges from memory")
     text = (f"Covered by {q.label[0].lower() + q.label[1:]} on {_show(q.test_thickness, q.code)} plate: "
             f"{weld.joint} welds in {', '.join(_order(qualified, known))} on {_range_text(low, high, q.code)}")

@@ -448,7 +448,50 @@ def test_thickness_edges_of_a_3_8_in_test(thickness, allowed):  # AWS D1.1/D1.1M
     result = check_welder([facts()], weld(thickness=thickness), ON)
     assert result.allowed is allowed
     if not allowed:
-        assert '3/8" [9.53 mm] plate qualifies 1/8" [3.18 mm] to 3/4" [19.05 mm]' in result.reasons[0]
+        assert '3/8" [9.53 mm] plate qualifies groove welds on 1/8" [3.18 mm] to 3/4" [19.05 mm]' in result.reasons[0]
+
+
+# AWS D1.1/D1.1M:2020 Table 6.11, fillet rows (from memory, high confidence): a plate groove test qualifies fillet
+# welds on base metal 1/8 in [3 mm] and over, unlimited, whatever the test plate's thickness.
+@pytest.mark.parametrize(
+    "thickness, allowed",
+    [("1/8 in", True), ("0.12 in", False), ("3/4 in", True), ("0.76 in", True), ("1-1/2 in", True), ("6 in", True)],
+)
+def test_groove_test_covers_fillets_on_1_8_in_and_over(thickness, allowed):  # D1.1:2020 T6.11 fillet row, memory
+    record = facts(process="FCAW", test_position="3G+4G", electrode=None)
+    result = check_welder([record], weld(process="FCAW", joint="fillet", position="OH", thickness=thickness,
+                                         electrode=None), ON)
+    assert result.allowed is allowed, result.reasons
+    if allowed:
+        assert "fillet welds in F, H, V, OH on 1/8\" [3.18 mm] and over" in result.reasons[0]
+        assert "fillet row from memory" in result.reasons[0]
+    else:
+        assert "qualifies fillet welds on 1/8\" [3.18 mm] and over" in result.reasons[0]
+        assert "Table 6.11, fillet row, from memory" in result.reasons[0]
+
+
+def test_groove_test_still_limits_groove_welds_to_its_row():  # D1.1:2020 Table 6.11: 3/8 in test, 1/8 to 3/4 in
+    record = facts(process="FCAW", test_position="3G+4G", electrode=None)
+    result = check_welder([record], weld(process="FCAW", position="OH", thickness="1-1/2 in", electrode=None), ON)
+    assert not result.allowed
+    assert "qualifies groove welds on 1/8\" [3.18 mm] to 3/4\" [19.05 mm]" in result.reasons[0]
+
+
+@pytest.mark.parametrize("test", ["3/8 in", "1/2 in", "1 in", "10 mm"])
+def test_thickness_qualified_for_fillet_welds_from_a_groove_test(test):  # D1.1:2020 T6.11 fillet row, from memory
+    low, high = thickness_qualified(test, test="groove", weld="fillet")
+    assert high is None
+    assert low == (Length(Decimal(3)) if test.endswith("mm") else inches("1/8"))
+
+
+def test_thickness_qualified_weld_defaults_to_the_test_joint():  # D1.1:2020 Table 6.11 groove row (published)
+    assert thickness_qualified("3/8 in") == thickness_qualified("3/8 in", weld="groove")
+    with pytest.raises(ValueError, match="'groove'"):
+        thickness_qualified("3/8 in", weld="plug")
+
+
+def test_iso_butt_test_range_is_not_widened_for_fillets():  # ISO 9606-1:2012: fillet range of a butt test not entered
+    assert thickness_qualified("10 mm", code=ISO, weld="fillet") == thickness_qualified("10 mm", code=ISO)
 
 
 def test_continuity_holds_on_the_last_valid_day_and_lapses_the_next():
@@ -511,7 +554,7 @@ def test_every_refusal_of_every_record_is_listed():
     assert len(result.reasons) == 5
     text = " | ".join(result.reasons)
     for part in ("continuity lapsed on 2026-03-31", "qualifies no groove welds", "is for GMAW; this weld is SMAW",
-                 "qualifies 1/8\" [3.18 mm] to 3/4\" [19.05 mm]; this weld is on 1\" [25.4 mm]"):
+                 "qualifies groove welds on 1/8\" [3.18 mm] to 3/4\" [19.05 mm]; this weld is on 1\" [25.4 mm]"):
         assert part in text
 
 

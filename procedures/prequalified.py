@@ -44,6 +44,8 @@ from legwork.units import (
     parse_voltage,
     temperature_system,
 )
+from procedures import base_metals
+from procedures.base_metals import Limit
 from procedures.electrodes import Electrode, decode
 
 CODE = "AWS D1.1:2020"
@@ -234,23 +236,16 @@ def parse_procedure(wps) -> Procedure:
 
 # --- helpers for rules ----------------------------------------------------------------------------
 
-@dataclass(frozen=True)
-class Limit:
-    """A limit as the standard prints it in both systems (the SI figure is not a conversion of the US one)."""
-
-    us: Length
-    si: Length
-
-    def in_system(self, system: str) -> Length:
-        return self.si if system == "SI" else self.us
-
-
 def _limit(us: str, si: str) -> Limit:
     return Limit(parse_length(us), parse_length(si))
 
 
 def _show(length: Length, system: str) -> str:
     return format_length(length, system)
+
+
+def _temperature(value: Temperature, system: str) -> str:
+    return format_temperature(value, system)
 
 
 def _pos_name(position: str) -> str:
@@ -429,29 +424,105 @@ def rule_electrode_diameter(wps: Procedure) -> Iterable[Finding]:
                           "root.", SOURCE_DIAMETER, "electrode_diameter")
 
 
+# --- base metals: AWS D1.1:2020 Table 5.3 (procedures.base_metals holds the table as data) ------------------
+
+SOURCE_BASE_METALS = f"{base_metals.SOURCE_TABLE_5_3} (rows and status in procedures.base_metals)"
+SOURCE_MATCHING = base_metals.SOURCE_MATCHING
+BaseMetal = base_metals.BaseMetal
+BASE_METALS = base_metals.BASE_METALS
+base_metal_key = base_metals.base_metal_key
+GROUP_I_A36_MAX_THICKNESS = base_metals.GROUP_I_MAX_36
+MATCHING_TENSILE_KSI = {group: m.tensile_ksi for group, m in base_metals.MATCHING_FILLER.items()}
+SMAW_GROUP_II_COVERINGS = base_metals.MATCHING_FILLER["II"].smaw_low_hydrogen
+_GROUP_ORDER = base_metals.GROUPS
+
+
+def base_metal_group(name: str, thickness_max: Length | None = None, system: str = "US") -> str | None:
+    """'I'..'IV', or None for a base metal that is not prequalified (not in the table as entered, or approved only
+    with qualification by test). A36 without a thickness counts as Group I (the usual case, up to 3/4 in)."""
+    metal = base_metals.lookup(name)
+    return None if metal is None else metal.group_for(thickness_max, system)
+
+
+def _known_metals(wps: Procedure) -> list[BaseMetal]:
+    return [m for m in (base_metals.lookup(n) for n in wps.base_metals or ()) if m is not None and m.group]
+
+
+def rule_base_metals_known(wps: Procedure) -> Iterable[Finding]:
+    """A base metal not in Table 5.3 cannot be prequalified; one the code approves only with qualification by test
+    (A514, A517, ...) is not prequalified either."""
+    for name in wps.base_metals or ():
+        metal = base_metals.lookup(name)
+        if metal is not None and metal.group is None:
+            yield Finding("base_metal_qualification_by_test", "not_prequalified",
+                          f"{metal.name} ({metal.note}) is approved for this code only with a WPS qualified by test "
+                          f"(PQR): it is not a prequalified base metal ({metal.status}).",
+                          base_metals.SOURCE_TEST_ONLY, "base_metals")
+        elif metal is None:
+            grades = base_metals.grades_of(name)
+            if grades:
+                yield Finding("base_metal_grade", "not_prequalified",
+                              f"{name}: give the grade; the grades in the prequalified table differ in group and "
+                              f"preheat ({', '.join(grades)}).", SOURCE_BASE_METALS, "base_metals")
+            else:
+                yield Finding("base_metal_unknown", "not_prequalified",
+                              f"{name} is not in the table of prequalified base metals as entered here, so it cannot "
+                              "be prequalified: qualify the WPS by test (PQR), or, if the code's own Table 5.3 lists "
+                              "it, have the table here extended.", SOURCE_BASE_METALS, "base_metals")
+
+
 # --- rule: minimum preheat and interpass temperature, AWS D1.1:2020 Table 5.8 ---------------------
 
-SOURCE_TABLE_5_8 = ("AWS D1.1/D1.1M:2020 Table 5.8, thickest part at the point of welding (US figures published; "
-                    "SI thickness bands from memory)")
-# Upper bound of each thickness band (inclusive); None = no upper bound.
-PREHEAT_BANDS = (_limit("3/4 in", "20 mm"), _limit("1-1/2 in", "38 mm"), _limit("2-1/2 in", "65 mm"), None)
-_BAND_NAMES = {"US": ("up to 3/4 in", "over 3/4 in to 1-1/2 in", "over 1-1/2 in to 2-1/2 in", "over 2-1/2 in"),
-               "SI": ("up to 20 mm", "over 20 mm to 38 mm", "over 38 mm to 65 mm", "over 65 mm")}
-# Category A: SMAW with other than low-hydrogen electrodes. Category B: SMAW low hydrogen, SAW, GMAW, FCAW.
-PREHEAT_MIN = {
-    "A": ((32, 0), (150, 65), (225, 110), (300, 150)),  # (F, C) per band
-    "B": ((32, 0), (50, 10), (150, 65), (225, 110)),
-}
+SOURCE_TABLE_5_8 = (f"{base_metals.SOURCE_TABLE_5_8}, thickest part at the point of welding (categories A and B "
+                    "published for D1.1:2015 Table 3.3; C and D US figures published in an older edition, SI and "
+                    "the H8 condition of D from memory)")
+PREHEAT_BANDS = base_metals.PREHEAT_BANDS
+_BAND_NAMES = base_metals.BAND_NAMES
+PREHEAT_MIN = {category: row.minimum for category, row in base_metals.PREHEAT_MIN.items()}
 BELOW_FREEZING_NOTE = "base metal below 32 F [0 C]: preheat to at least 70 F [20 C] (from memory)"
 
 
-def preheat_category(wps: Procedure) -> str | None:
-    """Table 5.8 category of a WPS, or None when the WPS does not say enough (SMAW without its electrode)."""
+def _process_hydrogen(wps: Procedure) -> str | None:
+    """'low' for SMAW low-hydrogen, SAW, GMAW, FCAW; 'other' for other SMAW; None when it cannot be told."""
     if wps.process == "SMAW":
         if wps.electrode is None or "SMAW" not in wps.electrode.processes:
             return None
-        return "B" if wps.electrode.low_hydrogen else "A"
-    return "B" if wps.process in ("SAW", "GMAW", "FCAW") else None
+        return "low" if wps.electrode.low_hydrogen else "other"
+    return "low" if wps.process in ("SAW", "GMAW", "FCAW") else None
+
+
+def _category_of(metal: BaseMetal | None, hydrogen: str, wps: Procedure, system: str) -> str | None:
+    if metal is None:  # no base metal named: judge by the process alone
+        return "B" if hydrogen == "low" else "A"
+    if hydrogen == "other":  # only Group I steels take non-low-hydrogen SMAW (Category A)
+        return "A" if metal.group_for(wps.thickness_max, system) == "I" else None
+    e = wps.electrode
+    if metal.category_d and e is not None and e.diffusible_hydrogen_ml is not None and \
+            e.diffusible_hydrogen_ml <= base_metals.CATEGORY_D_MAX_HYDROGEN_ML:
+        return "D"
+    return metal.category
+
+
+def preheat_categories(wps: Procedure) -> list[tuple[str, str | None]]:
+    """(Table 5.8 category, base metal name or None) for each base metal the WPS names that has one."""
+    hydrogen = _process_hydrogen(wps)
+    if hydrogen is None:
+        return []
+    metals = _known_metals(wps)
+    if not metals:
+        return [(_category_of(None, hydrogen, wps, "US"), None)]
+    system = wps.system("thickness_max")
+    found = [(_category_of(m, hydrogen, wps, system), m.name) for m in metals]
+    return [(category, name) for category, name in found if category is not None]
+
+
+def preheat_category(wps: Procedure) -> str | None:
+    """The governing Table 5.8 category of a WPS (the one needing the most preheat), or None when the WPS does
+    not say enough (SMAW without its electrode)."""
+    found = preheat_categories(wps)
+    if not found:
+        return None
+    return max((c for c, _ in found), key=base_metals.CATEGORY_ORDER.index)
 
 
 def minimum_preheat(category: str, thickest: Length, thickness_system: str = "US") -> tuple[int, int, str]:
@@ -468,11 +539,16 @@ def _temperature_of(f: int, c: int, system: str) -> Temperature:
 
 
 def rule_preheat(wps: Procedure) -> Iterable[Finding]:
-    """Preheat (and the interpass maximum) below the Table 5.8 minimum for the category and thickest part."""
-    category = preheat_category(wps)
-    if category is None or wps.thickness_max is None:
+    """Preheat (and the interpass maximum) below the Table 5.8 minimum for the category and thickest part; with
+    several base metals the one needing the most preheat governs."""
+    found = preheat_categories(wps)
+    if not found or wps.thickness_max is None:
         return
-    f, c, band = minimum_preheat(category, wps.thickness_max, wps.system("thickness_max"))
+    thickness_system = wps.system("thickness_max")
+    minimums = [(minimum_preheat(category, wps.thickness_max, thickness_system), category, name)
+                for category, name in found]
+    (f, c, band), category, metal = max(minimums, key=lambda item: item[0][0])
+    of_metal = f" ({metal})" if metal else ""
     for key, value in (("preheat_min", wps.preheat_min), ("interpass_max", wps.interpass_max)):
         if value is None:
             continue
@@ -481,68 +557,14 @@ def rule_preheat(wps: Procedure) -> Iterable[Finding]:
         if value < required:
             what = "Minimum preheat" if key == "preheat_min" else "Maximum interpass temperature"
             yield Finding("preheat", "not_prequalified",
-                          f"{what} {format_temperature(value, system)} is below the "
-                          f"{format_temperature(required, system)} minimum preheat and interpass temperature of "
-                          f"Category {category} for the thickest part {band} "
-                          f"({format_length(wps.thickness_max, wps.system('thickness_max'))}); "
+                          f"{what} {_temperature(value, system)} is below the "
+                          f"{_temperature(required, system)} minimum preheat and interpass temperature of "
+                          f"Category {category}{of_metal} for the thickest part {band} "
+                          f"({_show(wps.thickness_max, thickness_system)}); "
                           f"{BELOW_FREEZING_NOTE}.", SOURCE_TABLE_5_8, key)
 
 
-# --- rules: base metal and matching filler metal --------------------------------------------------
-
-SOURCE_BASE_METALS = ("AWS D1.1/D1.1M:2020 clause 5, table of approved base metals for prequalified WPSs "
-                      "(A36 published; A572 Gr 50 and A992 from memory)")
-SOURCE_MATCHING = ("AWS D1.1/D1.1M:2020 clause 5, table of matching filler metals by base metal group "
-                   "(from memory)")
-GROUP_I_A36_MAX_THICKNESS = _limit("3/4 in", "20 mm")  # A36 over this is Group II (US published; SI from memory)
-MATCHING_TENSILE_KSI = {"I": 60, "II": 70}  # Group I: E60XX or E70XX; Group II: E70XX (from memory)
-SMAW_GROUP_II_COVERINGS = ("15", "16", "18", "28")  # low-hydrogen E7015, E7016, E7018, E7028 (from memory)
-_GROUP_ORDER = ("I", "II")
-
-
-@dataclass(frozen=True)
-class BaseMetal:
-    name: str
-    group: str  # "I" or "II"; "A36" means Group I up to 3/4 in, Group II over
-    status: str
-
-
-BASE_METALS = {
-    "A36": BaseMetal("ASTM A36", "A36", "published"),
-    "A572GR50": BaseMetal("ASTM A572 Gr 50", "II", "from memory"),
-    "A992": BaseMetal("ASTM A992", "II", "from memory"),
-}
-_BASE_METAL_ALIASES = {"A57250": "A572GR50"}
-
-
-def base_metal_key(name: str) -> str:
-    """'ASTM A572 Grade 50', 'A572-50', 'a572 gr. 50' -> 'A572GR50'; 'ASTM A36/A36M' -> 'A36'."""
-    key = name.upper().replace("GRADE", "GR")
-    key = re.sub(r"^ASTM|/A?[0-9]+M\b|[\s.\-]", "", key)
-    return _BASE_METAL_ALIASES.get(key, key)
-
-
-def base_metal_group(name: str, thickness_max: Length | None = None, system: str = "US") -> str | None:
-    """'I' or 'II', or None for a base metal not in this engine's table. A36 without a thickness counts as
-    Group I (the usual case, up to 3/4 in)."""
-    metal = BASE_METALS.get(base_metal_key(name))
-    if metal is None:
-        return None
-    if metal.group == "A36":
-        limit = GROUP_I_A36_MAX_THICKNESS.in_system(system)
-        return "II" if thickness_max is not None and thickness_max > limit else "I"
-    return metal.group
-
-
-def rule_base_metals_known(wps: Procedure) -> Iterable[Finding]:
-    """A base metal this engine has no group for cannot be judged: say so rather than pass it silently."""
-    for name in wps.base_metals or ():
-        if base_metal_group(name) is None:
-            yield Finding("base_metal_unknown", "warning",
-                          f"{name} is not a prequalified base metal in this engine's table (known: "
-                          f"{', '.join(m.name for m in BASE_METALS.values())}): check it against the code's list "
-                          "or qualify by test.", SOURCE_BASE_METALS, "base_metals")
-
+# --- rule: matching filler metal ------------------------------------------------------------------
 
 def rule_matching_filler(wps: Procedure) -> Iterable[Finding]:
     """Filler metal that does not match the base metal group. Joining two groups, the filler may match the
@@ -550,33 +572,34 @@ def rule_matching_filler(wps: Procedure) -> Iterable[Finding]:
     if not _usable(wps) or not wps.base_metals or wps.process not in PROCESSES_PREQUALIFIED:
         return
     system = wps.system("thickness_max")
-    groups = [g for g in (base_metal_group(n, wps.thickness_max, system) for n in wps.base_metals) if g]
+    groups = [g for g in (m.group_for(wps.thickness_max, system) for m in _known_metals(wps)) if g]
     if not groups:
         return
     e = wps.electrode
     lowest = min(groups, key=_GROUP_ORDER.index)
     highest = max(groups, key=_GROUP_ORDER.index)
-    required = MATCHING_TENSILE_KSI[lowest]
+    matching = base_metals.MATCHING_FILLER
+    required = matching[lowest].tensile_ksi
     metals = ", ".join(wps.base_metals)
     if wps.thickness_max is not None:
-        metals += f", thickest part {format_length(wps.thickness_max, system)}"
+        metals += f", thickest part {_show(wps.thickness_max, system)}"
     if e.tensile_ksi < required:
         yield Finding("matching_filler", "error",
                       f"{e.classification} ({e.tensile_ksi} ksi) undermatches Group {lowest} base metal ({metals}): "
-                      f"matching filler is {required} ksi or stronger.", SOURCE_MATCHING, "electrode")
-        return
-    if wps.process == "SMAW" and highest == "II" and not (e.low_hydrogen and e.usability_code in
-                                                          SMAW_GROUP_II_COVERINGS):
-        yield Finding("matching_filler", "not_prequalified",
-                      f"{e.classification} is not a matching filler for Group II base metal ({metals}): SMAW needs a "
-                      "low-hydrogen E7015, E7016, E7018 or E7028 (or the A5.5 -X forms).", SOURCE_MATCHING,
+                      f"matching filler is {required} ksi or stronger: {matching[lowest].text}.", SOURCE_MATCHING,
                       "electrode")
+        return
+    coverings = matching[highest].smaw_low_hydrogen
+    if wps.process == "SMAW" and coverings is not None and not (e.low_hydrogen and e.usability_code in coverings):
+        yield Finding("matching_filler", "not_prequalified",
+                      f"{e.classification} is not a matching filler for Group {highest} base metal ({metals}): "
+                      f"SMAW needs {matching[highest].text.split(' (SMAW)')[0]}.", SOURCE_MATCHING, "electrode")
     if wps.process == "FCAW" and e.single_pass_only:
         yield Finding("matching_filler", "not_prequalified",
                       f"{e.classification} is a single-pass flux-cored electrode (T-{e.usability_code}); the "
                       "matching filler list for prequalified WPSs excludes T-2, T-3, T-10, T-13, T-14 and T-GS.",
                       SOURCE_MATCHING, "electrode")
-    if e.tensile_ksi > MATCHING_TENSILE_KSI["II"]:
+    if e.tensile_ksi > matching[highest].overmatch_above_ksi:
         yield Finding("overmatching_filler", "warning",
                       f"{e.classification} ({e.tensile_ksi} ksi) is stronger than the matching filler for Group "
                       f"{highest} ({metals}); confirm the choice with the engineer of record.", SOURCE_MATCHING,

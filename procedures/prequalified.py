@@ -627,18 +627,47 @@ def minimum_fillet_size(thinner: Length, thickness_system: str = "US", size_syst
     raise AssertionError("unreachable: the last band has no upper bound")  # pragma: no cover
 
 
+SOURCE_MIN_FILLET_NON_LH = ("AWS D1.1/D1.1M:2020 Table 7.7, note on non-low-hydrogen processes: without preheat "
+                            "calculated to the code's hydrogen-control method, T is the thicker part joined and "
+                            "single-pass welds shall be used (from memory, high confidence)")
+
+
+def _non_low_hydrogen_smaw(wps: Procedure) -> bool:
+    """SMAW with an electrode other than low hydrogen: the one non-low-hydrogen process of clause 5 (Table 5.8
+    puts SAW, GMAW and FCAW with low-hydrogen SMAW)."""
+    return wps.process == "SMAW" and _usable(wps) and not wps.electrode.low_hydrogen
+
+
 def rule_minimum_fillet_size(wps: Procedure) -> Iterable[Finding]:
-    """The smallest fillet the WPS allows is under the minimum for the thinner part joined."""
-    if wps.fillet_size_min is None or wps.thickness_min is None or wps.joint == "groove":
+    """The smallest fillet the WPS allows is under the minimum for the part that governs: the thinner part
+    joined, or the thicker part for non-low-hydrogen SMAW (Table 7.7 note), which must then be single pass."""
+    if wps.fillet_size_min is None or wps.joint == "groove":
         return
     size_system = wps.system("fillet_size_min")
-    required = minimum_fillet_size(wps.thickness_min, wps.system("thickness_min"), size_system)
+    if _non_low_hydrogen_smaw(wps) and wps.thickness_max is not None:
+        part, key, which, source = wps.thickness_max, "thickness_max", "thicker part", SOURCE_MIN_FILLET_NON_LH
+    elif wps.thickness_min is not None:
+        part, key, which, source = wps.thickness_min, "thickness_min", "thinner part", SOURCE_MIN_FILLET
+    else:
+        return
+    required = minimum_fillet_size(part, wps.system(key), size_system)
+    why = (f" ({wps.electrode.classification} is not low hydrogen: the thicker part joined governs unless preheat "
+           "is calculated to the code's hydrogen-control method)" if which == "thicker part" else "")
     if wps.fillet_size_min < required:
         yield Finding("minimum_fillet_size", "not_prequalified",
                       f"Fillet size {_show(wps.fillet_size_min, size_system)} is under the "
-                      f"{_show(required, size_system)} minimum for a thinner part of "
-                      f"{_show(wps.thickness_min, wps.system('thickness_min'))}.", SOURCE_MIN_FILLET,
-                      "fillet_size_min")
+                      f"{_show(required, size_system)} minimum for a {which} of "
+                      f"{_show(part, wps.system(key))}{why}.", source, "fillet_size_min")
+    if which == "thicker part" and wps.single_pass_size_max is not None:
+        pass_system = wps.system("single_pass_size_max")
+        needed = minimum_fillet_size(part, wps.system(key), pass_system)
+        if wps.single_pass_size_max < needed:
+            yield Finding("minimum_fillet_single_pass", "not_prequalified",
+                          f"{wps.electrode.classification} is not low hydrogen, so the minimum fillet "
+                          f"{_show(needed, pass_system)} for the thicker part "
+                          f"({_show(part, wps.system(key))}) must be made in a single pass; the WPS's largest "
+                          f"single pass is {_show(wps.single_pass_size_max, pass_system)}.", source,
+                          "single_pass_size_max")
 
 
 # --- rule: ranges that run backwards --------------------------------------------------------------

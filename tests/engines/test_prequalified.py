@@ -483,6 +483,37 @@ def test_minimum_fillet_at_the_j2_4_minimum_and_just_under(thinner, at_minimum, 
     assert finding.severity == "not_prequalified" and finding.field == "fillet_size_min" and "J2.4" in finding.source
 
 
+# AWS D1.1/D1.1M:2020 Table 7.7 note (from memory, high confidence): for non-low-hydrogen processes without
+# calculated preheat, T is the thicker part joined, and single-pass welds are used.
+@pytest.mark.parametrize("electrode, current, thicker, at_minimum, just_under", [
+    ("E7024", "AC", "3/4 in", "1/4 in", "7/32 in"),  # thicker 3/4 in: 1/4 in (the thinner 1/2 in would allow 3/16)
+    ("E6010", "DCEP", "3/4 in", "1/4 in", "3/16 in"),
+    ("E7024", "AC", "25/32 in", "5/16 in", "9/32 in"),  # thicker just over 3/4 in: 5/16 in
+    ("E6013", "AC", "1/2 in", "3/16 in", "5/32 in"),  # both parts 1/2 in: 3/16 in
+])
+def test_non_low_hydrogen_smaw_minimum_fillet_uses_the_thicker_part(electrode, current, thicker, at_minimum,
+                                                                    just_under):  # D1.1:2020 Table 7.7 note
+    base = dict(process="SMAW", electrode=electrode, current=current, joint="fillet", thickness_min="1/2 in",
+                thickness_max=thicker)
+    assert review(dict(base, fillet_size_min=at_minimum)) == []
+    finding = only(review(dict(base, fillet_size_min=just_under)), "minimum_fillet_size")
+    assert finding.severity == "not_prequalified" and "Table 7.7" in finding.source and "from memory" in finding.source
+    assert "thicker part" in finding.message and "not low hydrogen" in finding.message
+
+
+def test_low_hydrogen_smaw_minimum_fillet_still_uses_the_thinner_part():  # AISC 360-16 Table J2.4 (published)
+    base = dict(process="SMAW", electrode="E7018", joint="fillet", thickness_min="1/2 in", thickness_max="3/4 in")
+    assert review(dict(base, fillet_size_min="3/16 in")) == []
+
+
+def test_non_low_hydrogen_minimum_fillet_must_be_a_single_pass():  # D1.1:2020 Table 7.7 note (from memory)
+    base = dict(process="SMAW", electrode="E7024", current="AC", joint="fillet", positions=["F"],
+                thickness_min="1/2 in", thickness_max="3/4 in", fillet_size_min="1/4 in")
+    assert review(dict(base, single_pass_size_max="1/4 in")) == []
+    finding = only(review(dict(base, single_pass_size_max="7/32 in")), "minimum_fillet_single_pass")
+    assert finding.severity == "not_prequalified" and finding.field == "single_pass_size_max"
+
+
 def test_minimum_fillet_need_not_exceed_the_thinner_part():  # AISC / AWS minimum size note (from memory)
     assert minimum_fillet_size(parse_length("3/32 in")) == parse_length("3/32 in")
 

@@ -599,6 +599,10 @@ def rule_matching_filler(wps: Procedure) -> Iterable[Finding]:
                       f"{e.classification} is a single-pass flux-cored electrode (T-{e.usability_code}); the "
                       "matching filler list for prequalified WPSs excludes T-2, T-3, T-10, T-13, T-14 and T-GS.",
                       SOURCE_MATCHING, "electrode")
+    if wps.process == "GMAW" and e.single_pass_only:
+        yield Finding("matching_filler", "not_prequalified",
+                      f"{e.classification} is a single-pass metal-cored electrode; the matching filler list for "
+                      "prequalified WPSs excludes E70C-GS.", SOURCE_MATCHING, "electrode")
     if e.tensile_ksi > matching[highest].overmatch_above_ksi:
         yield Finding("overmatching_filler", "warning",
                       f"{e.classification} ({e.tensile_ksi} ksi) is stronger than the matching filler for Group "

@@ -465,6 +465,12 @@ def test_single_pass_flux_cored_is_not_matching():  # D1.1:2020 clause 5 exclude
     assert rules_of(findings) == [("matching_filler", "not_prequalified")]
 
 
+def test_single_pass_metal_cored_is_not_matching():  # D1.1:2020 clause 5 excludes E70C-GS (from memory)
+    findings = review(dict(process="GMAW", transfer="spray", electrode="E70C-GS", base_metals=["ASTM A36"]))
+    assert rules_of(findings) == [("matching_filler", "not_prequalified")]
+    assert review(dict(process="GMAW", transfer="spray", electrode="E70C-6M", base_metals=["ASTM A36"])) == []
+
+
 # --- minimum fillet size: AISC 360-16 Table J2.4 ---------------------------------------------------
 
 @pytest.mark.parametrize("thinner, at_minimum, just_under", [

@@ -46,7 +46,7 @@ from legwork.units import (
 )
 from procedures import base_metals
 from procedures.base_metals import Limit
-from procedures.electrodes import Electrode, decode
+from procedures.electrodes import FLUX_CORED_TYPES, SPEC_A5_20, Electrode, decode
 
 CODE = "AWS D1.1:2020"
 KNOWN_CODES = {"AWS D1.1:2020": CODE, "AWS D1.1/D1.1M:2020": CODE}
@@ -75,6 +75,11 @@ class Finding:
 PROCESSES_PREQUALIFIED = ("SMAW", "SAW", "GMAW", "FCAW")
 PROCESSES_NOT_PREQUALIFIED = ("GTAW", "ESW", "EGW", "PAW")
 PROCESS_ALIASES = {"GMAW-S": ("GMAW", "short_circuit"), "FCAW-G": ("FCAW", None), "FCAW-S": ("FCAW", None)}
+# FCAW-G: gas shielded; FCAW-S: self-shielded (the process names AWS uses; the shielding must agree with the
+# electrode's A5.20 usability type).
+PROCESS_SHIELDING = {"FCAW-G": "gas", "FCAW-S": "self"}
+LOADINGS = ("static", "cyclic")
+NO_GAS = ("none", "no gas", "self-shielded", "self shielded", "self", "-")
 TRANSFERS = ("short_circuit", "globular", "spray", "pulsed")
 TRANSFER_ALIASES = {"short_circuiting": "short_circuit", "short_arc": "short_circuit", "pulsed_spray": "pulsed",
                     "short": "short_circuit"}
@@ -116,6 +121,8 @@ class Procedure:
     wire_feed_speed_max: Speed | None = None
     electrode_arrangement: str | None = None
     unit_system: str | None = None
+    shielding_gas: str | None = None  # as written ("75Ar/25CO2"); "" when the WPS says none (self-shielded)
+    shielding: str | None = None  # "gas" or "self" when the process is written FCAW-G or FCAW-S
     systems: tuple = ()  # ((key, "US" | "SI"), ...)
 
     def system(self, key: str) -> str:
@@ -168,6 +175,18 @@ def _base_metals(value):
     return tuple(m.strip() for m in metals)
 
 
+def _shielding_gas(value):
+    """The shielding gas as written; "none" (or "self-shielded") becomes "" (the WPS says no gas)."""
+    if not isinstance(value, str):
+        raise ValueError(f"give the shielding gas as text, e.g. 75Ar/25CO2 or CO2, or 'none', not {value!r}.")
+    text = " ".join(value.split())
+    if not text or text.lower() in NO_GAS:
+        return ""
+    if len(text) > 60:
+        raise ValueError("the shielding gas is too long: write it as e.g. 75Ar/25CO2, 100% CO2 or M21.")
+    return text
+
+
 def _electrode(value):
     if isinstance(value, Electrode):
         return value
@@ -191,11 +210,12 @@ _PARSERS = {
     "wire_feed_speed_min": parse_speed, "wire_feed_speed_max": parse_speed,
     "electrode_arrangement": lambda v: _choice(v, SAW_ARRANGEMENTS, "SAW electrode arrangement"),
     "unit_system": lambda v: _choice(v, SYSTEMS, "unit system", upper=True),
+    "shielding_gas": lambda v: _shielding_gas(v),
     **{key: parse_length for key in _LENGTH_KEYS},
     **{key: parse_temperature for key in _TEMPERATURE_KEYS},
 }
 KNOWN_KEYS = tuple(_PARSERS)
-assert set(KNOWN_KEYS) == {f.name for f in fields(Procedure)} - {"systems"}
+assert set(KNOWN_KEYS) == {f.name for f in fields(Procedure)} - {"systems", "shielding"}
 
 
 def parse_procedure(wps) -> Procedure:
@@ -223,6 +243,7 @@ def parse_procedure(wps) -> Procedure:
         except ValueError as exc:
             raise (UnitError if isinstance(exc, UnitError) else ValueError)(f"{key}: {exc}") from None
     process = values["process"]
+    shielding = PROCESS_SHIELDING.get(process)
     if process in PROCESS_ALIASES:
         process, implied = PROCESS_ALIASES[process]
         if implied and values.get("transfer", implied) != implied:
@@ -231,7 +252,7 @@ def parse_procedure(wps) -> Procedure:
         if implied:
             values["transfer"] = implied
         values["process"] = process
-    return Procedure(**values, systems=tuple((k, s) for k, s in systems if s))
+    return Procedure(**values, shielding=shielding, systems=tuple((k, s) for k, s in systems if s))
 
 
 # --- helpers for rules ----------------------------------------------------------------------------
@@ -336,6 +357,60 @@ def rule_electrode_current(wps: Procedure) -> Iterable[Finding]:
         yield Finding("electrode_current", "error",
                       f"{e.classification} with {wps.process} runs on {', '.join(sorted(allowed))}, not "
                       f"{wps.current}.", _current_source(e), "current")
+
+
+# --- rule: shielding of the process and of the electrode agree -----------------------------------
+
+SOURCE_SHIELDING = ("AWS A5.20 usability types: external shielding gas or self-shielded, and the C (CO2) / M (argon "
+                    "mix) gas designator (types from memory); AWS D1.1/D1.1M:2020 clause 5: prequalified WPSs use the "
+                    "shielding the filler metal is classified with (from memory)")
+
+
+def _gas_kind(gas: str) -> str | None:
+    """'M' for an argon mix, 'C' for carbon dioxide alone, None when the text does not tell."""
+    text = gas.upper().replace(" ", "")
+    if re.search(r"(?<![A-Z])AR", text) or re.fullmatch(r"M[0-9]{1,2}\b.*", text):  # ISO 14175 M mixes (memory)
+        return "M"
+    if "CO2" in text or "CARBONDIOXIDE" in text or re.fullmatch(r"C1\b.*", text):  # ISO 14175 C1 = CO2 (memory)
+        return "C"
+    return None
+
+
+def rule_shielding(wps: Procedure) -> Iterable[Finding]:
+    """FCAW-G with a self-shielded electrode (E71T-8), FCAW-S or no gas with a gas-shielded one (E71T-1C), and
+    a gas the electrode is not classified with (E71T-1C under an argon mix)."""
+    e = wps.electrode
+    gas_given = wps.shielding_gas
+    if wps.process == "FCAW" and wps.shielding and gas_given is not None and \
+            (wps.shielding == "gas") != bool(gas_given):
+        yield Finding("shielding", "error",
+                      f"The process is FCAW-{wps.shielding[0].upper()} but the shielding gas says "
+                      f"{gas_given or 'none'}: make them agree.", SOURCE_SHIELDING, "shielding_gas")
+    if not _usable(wps):
+        return
+    if e.spec == SPEC_A5_20:
+        electrode_shielding = FLUX_CORED_TYPES[e.usability_code].shielding
+        wanted = wps.shielding or (None if gas_given is None else ("gas" if gas_given else "self"))
+        if wanted and electrode_shielding != "either" and wanted != electrode_shielding:
+            said = (f"the process is FCAW-{wanted[0].upper()}" if wps.shielding else
+                    f"the shielding gas is {gas_given}" if gas_given else "the WPS gives no shielding gas")
+            kind = "self-shielded" if electrode_shielding == "self" else "used with an external shielding gas"
+            yield Finding("shielding", "error",
+                          f"{e.classification} is {kind} (AWS A5.20 T-{e.usability_code}), but {said}: choose an "
+                          f"electrode classified for {'gas shielding' if wanted == 'gas' else 'self-shielding'}, or "
+                          "change the process.", SOURCE_SHIELDING, "electrode")
+            return
+    elif wps.process == "GMAW" and gas_given == "":
+        yield Finding("shielding", "error", f"{e.classification} with GMAW needs a shielding gas; the WPS says none.",
+                      SOURCE_SHIELDING, "shielding_gas")
+        return
+    kind = _gas_kind(gas_given) if gas_given else None
+    if e.shielding in ("C", "M") and kind and kind != e.shielding:
+        names = {"C": "carbon dioxide (C)", "M": "an argon mix (M)"}
+        yield Finding("shielding_gas_designator", "not_prequalified",
+                      f"{e.classification} is classified with {names[e.shielding]}, but the shielding gas "
+                      f"{gas_given} is {names[kind]}: use the electrode classified for that gas or qualify by test.",
+                      SOURCE_SHIELDING, "shielding_gas")
 
 
 # --- rule: maximum single-pass fillet size, AWS D1.1:2020 Table 5.1 -------------------------------
@@ -714,6 +789,7 @@ RULES = (
     rule_base_metals_known,
     rule_matching_filler,
     rule_minimum_fillet_size,
+    rule_shielding,
     rule_ranges,
 )
 

@@ -471,6 +471,54 @@ def test_single_pass_metal_cored_is_not_matching():  # D1.1:2020 clause 5 exclud
     assert review(dict(process="GMAW", transfer="spray", electrode="E70C-6M", base_metals=["ASTM A36"])) == []
 
 
+# --- shielding: AWS A5.20 usability types (from memory) ---------------------------------------------
+
+FCAW_FILLET = dict(process="FCAW", electrode="E71T-1C", current="DCEP", positions=["F"], joint="fillet",
+                   base_metals=["ASTM A36"], thickness_max="1/2 in", preheat_min="50 F")
+
+
+@pytest.mark.parametrize("process, electrode, current, gas, ok", [
+    ("FCAW-G", "E71T-1C", "DCEP", None, True),
+    ("FCAW-G", "E71T-8", "DCEN", None, False),  # T-8 is self-shielded (A5.20, from memory)
+    ("FCAW-S", "E71T-8", "DCEN", None, True),
+    ("FCAW-S", "E71T-1C", "DCEP", None, False),  # T-1 uses an external gas (A5.20, from memory)
+    ("FCAW", "E71T-8", "DCEN", "75Ar/25CO2", False),  # gas given to a self-shielded electrode
+    ("FCAW", "E71T-1C", "DCEP", "none", False),  # no gas for a gas-shielded electrode
+    ("FCAW", "E71T-1C", "DCEP", "100% CO2", True),
+    ("FCAW", "E71T-8", "DCEN", "none", True),
+    ("FCAW", "E71T-G", "DCEP", "none", True),  # T-G: shielding not specified by the classification
+    ("FCAW", "E71T-8", "DCEN", None, True),  # nothing said about shielding: nothing to disagree with
+])
+def test_process_and_electrode_shielding_agree(process, electrode, current, gas, ok):  # AWS A5.20 (from memory)
+    findings = review(dict(FCAW_FILLET, process=process, electrode=electrode, current=current, shielding_gas=gas))
+    if ok:
+        assert "shielding" not in [f.rule for f in findings], findings
+    else:
+        finding = only(findings, "shielding")
+        assert finding.severity == "error" and "A5.20" in finding.source and electrode in finding.message
+
+
+def test_fcaw_g_with_no_gas_contradicts_itself():
+    finding = only(review(dict(FCAW_FILLET, process="FCAW-G", shielding_gas="none")), "shielding")
+    assert finding.field == "shielding_gas"
+
+
+@pytest.mark.parametrize("electrode, gas, ok", [
+    ("E71T-1C", "100% CO2", True), ("E71T-1C", "75Ar/25CO2", False), ("E71T-1M", "75Ar/25CO2", True),
+    ("E71T-1M", "CO2", False), ("E71T-1M", "M21 (Ar + 18% CO2)", True), ("E71T-1C", "carbon dioxide", True),
+])
+def test_gas_designator_matches_the_gas(electrode, gas, ok):  # AWS A5.20 C = CO2, M = argon mix (published)
+    findings = review(dict(FCAW_FILLET, electrode=electrode, shielding_gas=gas))
+    assert (findings == []) is ok, findings
+    if not ok:
+        assert only(findings, "shielding_gas_designator").severity == "not_prequalified"
+
+
+def test_gmaw_needs_a_gas():  # GMAW is gas shielded by definition
+    assert only(review(dict(GMAW_FILLET, shielding_gas="none")), "shielding").severity == "error"
+    assert review(dict(GMAW_FILLET, shielding_gas="90Ar/10CO2")) == []
+
+
 # --- minimum fillet size: AISC 360-16 Table J2.4 ---------------------------------------------------
 
 @pytest.mark.parametrize("thinner, at_minimum, just_under", [

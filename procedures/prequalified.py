@@ -45,7 +45,7 @@ from legwork.units import (
     temperature_system,
 )
 from procedures import base_metals
-from procedures.base_metals import Limit
+from procedures.base_metals import Limit, limit
 from procedures.electrodes import FLUX_CORED_TYPES, SPEC_A5_20, Electrode, decode
 
 CODE = "AWS D1.1:2020"
@@ -122,6 +122,7 @@ class Procedure:
     electrode_arrangement: str | None = None
     unit_system: str | None = None
     shielding_gas: str | None = None  # as written ("75Ar/25CO2"); "" when the WPS says none (self-shielded)
+    loading: str | None = None  # "static" or "cyclic"
     shielding: str | None = None  # "gas" or "self" when the process is written FCAW-G or FCAW-S
     systems: tuple = ()  # ((key, "US" | "SI"), ...)
 
@@ -211,6 +212,7 @@ _PARSERS = {
     "electrode_arrangement": lambda v: _choice(v, SAW_ARRANGEMENTS, "SAW electrode arrangement"),
     "unit_system": lambda v: _choice(v, SYSTEMS, "unit system", upper=True),
     "shielding_gas": lambda v: _shielding_gas(v),
+    "loading": lambda v: _choice(v, LOADINGS, "loading (static or cyclic)"),
     **{key: parse_length for key in _LENGTH_KEYS},
     **{key: parse_temperature for key in _TEMPERATURE_KEYS},
 }
@@ -749,6 +751,26 @@ def rule_minimum_fillet_size(wps: Procedure) -> Iterable[Finding]:
                           "single_pass_size_max")
 
 
+# --- rule: cyclically loaded fillet welds -----------------------------------------------------------
+
+SOURCE_CYCLIC_FILLET = ("AWS D1.1/D1.1M:2020 clause 4 Part C (cyclically loaded nontubular connections): minimum "
+                        "fillet weld size 3/16 in [5 mm] (from memory; clause number not confirmed)")
+CYCLIC_FILLET_MIN = limit("3/16 in", "5 mm")
+
+
+def rule_cyclic_fillet_size(wps: Procedure) -> Iterable[Finding]:
+    """A WPS for cyclically loaded work allowing a fillet under 3/16 in [5 mm]."""
+    if wps.loading != "cyclic" or wps.fillet_size_min is None or wps.joint == "groove":
+        return
+    system = wps.system("fillet_size_min")
+    least = CYCLIC_FILLET_MIN.in_system(system)
+    if wps.fillet_size_min < least:
+        yield Finding("cyclic_fillet_size", "error",
+                      f"Fillet size {_show(wps.fillet_size_min, system)} is under the {_show(least, system)} "
+                      "minimum for fillet welds in cyclically loaded structures.", SOURCE_CYCLIC_FILLET,
+                      "fillet_size_min")
+
+
 # --- rule: ranges that run backwards --------------------------------------------------------------
 
 SOURCE_RANGES = "consistency of the WPS itself (a range needs minimum <= maximum)"
@@ -789,6 +811,7 @@ RULES = (
     rule_base_metals_known,
     rule_matching_filler,
     rule_minimum_fillet_size,
+    rule_cyclic_fillet_size,
     rule_shielding,
     rule_ranges,
 )

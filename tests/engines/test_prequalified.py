@@ -519,6 +519,25 @@ def test_gmaw_needs_a_gas():  # GMAW is gas shielded by definition
     assert review(dict(GMAW_FILLET, shielding_gas="90Ar/10CO2")) == []
 
 
+# --- cyclically loaded fillet welds: D1.1:2020 clause 4 Part C, minimum 3/16 in [5 mm] (from memory) ---------
+
+@pytest.mark.parametrize("size, ok", [("3/16 in", True), ("5/32 in", False), ("5 mm", True), ("4.5 mm", False)])
+def test_cyclic_fillet_minimum_3_16_in(size, ok):  # D1.1:2020 clause 4 Part C (from memory)
+    base = wps(joint="fillet", thickness_min="1/4 in", fillet_size_min=size, loading="cyclic")
+    findings = review(base)
+    if ok:
+        assert findings == []
+    else:
+        finding = only(findings, "cyclic_fillet_size")
+        assert finding.severity == "error" and "from memory" in finding.source
+    assert "cyclic_fillet_size" not in [f.rule for f in review(dict(base, loading="static"))]
+
+
+def test_loading_must_be_static_or_cyclic():
+    with pytest.raises(ValueError, match="loading"):
+        review(wps(loading="fatigue"))
+
+
 # --- minimum fillet size: AISC 360-16 Table J2.4 ---------------------------------------------------
 
 @pytest.mark.parametrize("thinner, at_minimum, just_under", [

@@ -759,3 +759,91 @@ def test_vertical_without_its_direction_is_refused_on_an_iso_weld():
 
     with pytest.raises(ValueError, match="PF .vertical up. or PG"):
         WeldDemand("GMAW", "fillet", "V", "10 mm", code="ISO 9606-1:2012")
+
+
+# --- essential variables: AWS D1.1/D1.1M:2020 Table 6.12 (from memory); ISO 9606-1:2012 (from memory) ---------
+
+def gmaw(**changes):
+    return facts(**{"process": "GMAW", "electrode": None, **changes})
+
+
+@pytest.mark.parametrize("test_transfer, weld_transfer, allowed", [
+    ("short_circuit", "short_circuit", True),
+    ("short_circuit", "spray", False),  # GMAW-S does not qualify the other transfers
+    ("spray", "short_circuit", False),  # nor the reverse
+    ("spray", "pulsed", True),  # other transfers among themselves: one process
+    ("globular", "spray", True),
+])
+def test_gmaw_s_qualifies_apart(test_transfer, weld_transfer, allowed):  # D1.1:2020 Table 6.12 (from memory)
+    result = check_welder([gmaw(transfer=test_transfer)],
+                          weld(process="GMAW", electrode=None, transfer=weld_transfer), ON)
+    assert result.allowed is allowed
+    if not allowed:
+        assert "GMAW-S and the other GMAW transfers qualify apart" in result.reasons[0]
+        assert "Table 6.12, from memory" in result.reasons[0]
+
+
+def test_gmaw_s_written_as_the_process():  # D1.1:2020 Table 6.12: GMAW-S a process of its own (from memory)
+    record = facts(process="GMAW-S", electrode=None)
+    assert record.process == "GMAW" and record.transfer == "short_circuit" and "GMAW-S 3G test" in record.label
+    assert not check_welder([record], weld(process="GMAW", electrode=None, transfer="spray"), ON).allowed
+    assert check_welder([record], weld(process="GMAW-S", electrode=None), ON).allowed
+    with pytest.raises(ValueError, match="GMAW-S is short-circuiting"):
+        facts(process="GMAW-S", transfer="spray", electrode=None)
+    with pytest.raises(ValueError, match="GMAW only"):
+        facts(transfer="spray")
+
+
+@pytest.mark.parametrize("test, weld_way, position, allowed", [
+    ("up", "up", "V", True), ("up", "down", "V", False), ("down", "up", "V", False), ("down", "down", "V", True),
+    ("up", "down", "F", True),  # progression is a vertical matter only
+])
+def test_vertical_progression(test, weld_way, position, allowed):  # D1.1:2020 Table 6.12 (from memory)
+    result = check_welder([facts(progression=test)], weld(progression=weld_way, position=position), ON)
+    assert result.allowed is allowed
+    if not allowed:
+        assert f"welded vertical {test}; this weld is vertical {weld_way}" in result.reasons[0]
+
+
+@pytest.mark.parametrize("test, weld_backing, allowed", [
+    ("without", "without", True), ("without", "with", True),  # without backing qualifies both
+    ("with", "with", True), ("with", "without", False),  # omitting backing needs a new test
+    ("both sides", "with", True), ("both sides", "without", False),  # both sides counts as with backing (memory)
+])
+def test_backing(test, weld_backing, allowed):  # D1.1:2020 Table 6.12 (from memory)
+    result = check_welder([facts(backing=test)], weld(backing=weld_backing), ON)
+    assert result.allowed is allowed
+    if not allowed:
+        assert "does not qualify welding without backing" in result.reasons[0]
+
+
+def test_backing_does_not_matter_for_fillet_welds():  # D1.1:2020 Table 6.12: backing is a groove-weld variable
+    assert check_welder([facts(backing="with")], weld(joint="fillet", backing="without"), ON).allowed
+
+
+@pytest.mark.parametrize("test, weld_backing, allowed", [
+    ("ss nb", "ss mb", True), ("ss nb", "bs", True), ("ss mb", "bs", True), ("bs", "ss mb", True),
+    ("ss mb", "ss nb", False), ("bs", "ss nb", False),
+])
+def test_iso_welding_details(test, weld_backing, allowed):  # ISO 9606-1:2012 welding details (from memory)
+    record = facts(code=ISO, test_position="PF", test_thickness="10 mm", electrode=None, backing=test)
+    result = check_welder([record], weld(code=ISO, position="PF", thickness="12 mm", electrode=None,
+                                         backing=weld_backing), date(2025, 6, 1))
+    assert result.allowed is allowed
+    if not allowed:
+        assert "which does not qualify welding ss nb" in result.reasons[0] and "from memory" in result.reasons[0]
+
+
+def test_absent_essential_variables_are_treated_as_matching_and_said_so():  # module docstring: no warning level
+    result = check_welder([facts()], weld(backing="without", progression="down"), ON)
+    assert result.allowed
+    assert "Not checked, not recorded on the test or the weld: vertical progression, backing" in result.reasons[0]
+    result = check_welder([gmaw(transfer="spray")], weld(process="GMAW", electrode=None), ON)
+    assert result.allowed and "GMAW transfer (GMAW-S or not)" in result.reasons[0]
+
+
+@pytest.mark.parametrize("field, bad", [("progression", "sideways"), ("backing", "ceramic tape"),
+                                        ("progression", 3), ("backing", True)])
+def test_bad_essential_variable_is_refused_in_words(field, bad):
+    with pytest.raises(ValueError, match="or None when not recorded"):
+        facts(**{field: bad})

@@ -264,11 +264,16 @@ def _limit(us: str, si: str) -> Limit:
 
 
 def _show(length: Length, system: str) -> str:
-    return format_length(length, system)
+    """A length as its system writes it; '≈' before inches that are rounded (a metric value to the nearest 1/32)."""
+    text = format_length(length, system)
+    if system != "SI" and parse_length(text.replace('"', " in")).mm != length.mm:
+        return f"≈{text}"
+    return text
 
 
 def _temperature(value: Temperature, system: str) -> str:
-    return format_temperature(value, system)
+    """A temperature rounded to whole degrees, never '-0 °F' (a value just below zero rounds to 0)."""
+    return re.sub(r"^-0(?=\s)", "0", format_temperature(value, system))
 
 
 def _pos_name(position: str) -> str:
@@ -784,7 +789,7 @@ def _show_value(wps: Procedure, key: str, value, kind: str) -> str:
     if kind == "length":
         return _show(value, wps.system(key))
     if kind == "temperature":
-        return format_temperature(value, wps.system(key))
+        return _temperature(value, wps.system(key))
     if kind == "speed":
         return f"{format_speed(value, 'US')} ({format_speed(value, 'SI')})"
     return f"{value} {kind}"

@@ -237,7 +237,8 @@ def thickness_qualified(test_thickness, test="groove", code=AWS, *, system=None,
     # AWS D1.1/D1.1M:2020 Table 6.11, plate groove tests (published; SI column from memory).
     three_eighths, one_inch = (Length(Decimal(10)), Length(Decimal(25))) if si else (_IN("0.375"), _IN(1))
     if test == "groove" and t < three_eighths:
-        raise ValueError(f"A {format_length(t, system)} groove test is thinner than the thinnest plate test of "
+        shown = _inches(t) if system == "US" else format_length(t, "SI")
+        raise ValueError(f"A {shown} groove test is thinner than the thinnest plate test of "
                          f"{_AWS_SOURCE} Table 6.11 ({format_length(three_eighths, system)}); "
                          "use a 3/8 in [10 mm] or 1 in [25 mm] test plate.")
     if test == "fillet" or weld == "fillet":
@@ -604,10 +605,16 @@ class QualificationStatus:
     reason: str
 
 
+def _inches(length: Length) -> str:
+    """Inches as a fitter writes them; '≈' before a value that is rounded (a metric thickness to 1/32 in)."""
+    text = format_length(length, "US")
+    return text if parse_length(text.replace('"', " in")).mm == length.mm else f"≈{text}"
+
+
 def _show(length: Length, code: str) -> str:
     if code == ISO:
         return format_length(length, "SI")
-    return f"{format_length(length, 'US')} [{format_length(length, 'SI')}]"
+    return f"{_inches(length)} [{format_length(length, 'SI')}]"
 
 
 def _range_text(low: Length, high: Length | None, code: str) -> str:

@@ -302,6 +302,20 @@ def test_interpass_maximum_below_the_minimum_is_flagged():  # Table 5.8: minimum
     assert finding.field == "interpass_max"
 
 
+@pytest.mark.parametrize("preheat, shown", [("-0.3 F", "0 °F"), ("-0.4 C", "0 °C")])
+def test_a_temperature_just_below_zero_prints_as_0_not_minus_0(preheat, shown):  # Table 5.8 Category B
+    thickness = "1 in" if preheat.endswith("F") else "25 mm"
+    finding = only(review(dict(process="SMAW", electrode="E7018", thickness_max=thickness, preheat_min=preheat)),
+                   "preheat")
+    assert f"Minimum preheat {shown} is below" in finding.message and "-0" not in finding.message
+
+
+def test_a_metric_size_rounded_to_inches_is_marked_approximate():  # AISC 360-16 Table J2.4: 1/2 in part, 3/16 in
+    finding = only(review(dict(process="SMAW", electrode="E7018", joint="fillet", unit_system="US",
+                               thickness_min="1/2 in", fillet_size_min="4.5 mm")), "minimum_fillet_size")
+    assert 'Fillet size ≈3/16" is under the 3/16" minimum' in finding.message
+
+
 # --- base metals and matching filler -----------------------------------------------------------
 
 @pytest.mark.parametrize("name, thickness, group", [

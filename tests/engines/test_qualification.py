@@ -847,3 +847,19 @@ def test_absent_essential_variables_are_treated_as_matching_and_said_so():  # mo
 def test_bad_essential_variable_is_refused_in_words(field, bad):
     with pytest.raises(ValueError, match="or None when not recorded"):
         facts(**{field: bad})
+
+
+# --- printing: a metric value rounded to inches is marked '≈' ------------------------------------------------
+
+def test_a_rounded_inch_value_is_marked_approximate():
+    result = check_welder([facts()], weld(thickness="0.76 in"), ON)  # 0.76 in prints as the nearest 1/32, 3/4"
+    assert 'this weld is on ≈3/4" [19.3 mm]' in result.reasons[0]
+    result = check_welder([facts(test_thickness="10 mm")], weld(thickness="1 in"), ON)  # D1.1M: 10 mm test
+    assert '10 mm plate' not in result.reasons[0] and '≈13/32" [10 mm] plate' in result.reasons[0]
+    exact = check_welder([facts()], weld(thickness="1 in"), ON)
+    assert '3/8" [9.53 mm] plate' in exact.reasons[0] and "≈" not in exact.reasons[0]
+
+
+def test_thin_groove_test_refusal_marks_a_rounded_value():  # D1.1:2020 Table 6.11 starts at 3/8 in
+    with pytest.raises(ValueError, match='A ≈11/32" groove test'):
+        thickness_qualified(Length(Decimal(9)), system="US")

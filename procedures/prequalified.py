@@ -16,6 +16,12 @@ the WPS states: a missing key is not a finding. Every Finding carries
 
 An empty list means prequalified as far as the given inputs show.
 
+Optional keys beyond the engine contract: shielding_gas (text such as "75Ar/25CO2", or "none" for self-shielded;
+checked against the electrode's A5.20 usability type and C/M designator, as is a process written FCAW-G or
+FCAW-S), loading ("static" or "cyclic": cyclic fillet welds at least 3/16 in [5 mm]). Base metals are judged
+against procedures.base_metals (Table 5.3 groups, Table 5.8 categories): one not in that table is not
+prequalified.
+
 How to add a rule: write `def rule_something(wps: Procedure) -> Iterable[Finding]` with its source constant
 right above it, yield Finding(...) for each problem, and append the function to RULES. Values that the rule
 compares against go in a table beside the source, US and SI figures as the standard prints them.

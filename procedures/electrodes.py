@@ -10,8 +10,14 @@ electrodes), AWS A5.18 (carbon steel solid and metal-cored wire for GMAW and GTA
 flux-cored electrodes, the E7XT-X form), AWS A5.17 (carbon steel SAW flux-wire classifications).
 Not read: A5.36 open classifications (E71T1-C1A0-CS1), A5.23 low-alloy SAW, A5.28 low-alloy wire, metric forms.
 
-Values are from the shared domain reference; each table row carries its status ("published" or "from memory"),
-and every decoded Electrode lists in `notes` which of its values are from memory.
+Which classifications exist is data, not a rule of digits: procedures.electrode_list holds a table per
+specification (A5.1 rows with their usability; the A5.5 names; A5.18 wire and metal-cored types with the gas
+designators they are written with; A5.20 types with their position digits). A well-formed code that the
+specification does not list (E7010 in A5.1, E6024, E70C-6 without its gas designator) is refused with the
+specification named and the near classifications that do exist.
+
+Each table row carries its status ("published" or "from memory"), and every decoded Electrode lists in `notes`
+which of its values are from memory.
 """
 
 from __future__ import annotations
@@ -20,6 +26,8 @@ import re
 import unicodedata
 from dataclasses import dataclass, field
 from functools import lru_cache
+
+from procedures import electrode_list
 
 ALL_POSITIONS = frozenset({"F", "H", "V", "OH"})
 FLAT_AND_HORIZONTAL = frozenset({"F", "H"})
@@ -94,7 +102,7 @@ COVERINGS = {
     "12": Covering("high titania sodium", frozenset({"AC", "DCEN"}), False, "F2", PUBLISHED),
     "13": Covering("high titania potassium", _ALL_CURRENTS, False, "F2", PUBLISHED),
     "14": Covering("iron powder, titania", _ALL_CURRENTS, False, "F2", "currents from memory"),
-    "15": Covering("low hydrogen sodium", frozenset({"DCEP"}), True, "F4", FROM_MEMORY),
+    "15": Covering("low hydrogen sodium", frozenset({"DCEP"}), True, "F4", PUBLISHED),
     "16": Covering("low hydrogen potassium", _AC_DCEP, True, "F4", PUBLISHED),
     "18": Covering("low hydrogen potassium, iron powder", _AC_DCEP, True, "F4", PUBLISHED),
     "20": Covering("high iron oxide", _ALL_CURRENTS, False, "F1", FROM_MEMORY),  # AC or DCEN for H fillets
@@ -102,6 +110,7 @@ COVERINGS = {
     "27": Covering("high iron oxide, iron powder", _ALL_CURRENTS, False, "F1", FROM_MEMORY),  # AC or DCEN, H fillets
     "28": Covering("low hydrogen potassium, iron powder", _AC_DCEP, True, "F1", PUBLISHED),
     "48": Covering("low hydrogen potassium, iron powder", _AC_DCEP, True, "F4", FROM_MEMORY),
+    "45": Covering("low hydrogen sodium (vertical down)", frozenset({"DCEP"}), True, "F4", FROM_MEMORY),  # A5.5 only
 }
 
 # AWS A5.1, third digit (published): 1 all positions, 2 flat and horizontal fillet, 4 flat, horizontal,
@@ -123,19 +132,39 @@ GROUPS_QUALIFIED = {
 
 A5_1_TENSILES = (60, 70)  # E60XX, E70XX (published)
 A5_5_TENSILES = (70, 80, 90, 100, 110, 120)  # AWS A5.5 strength levels (from memory)
-A5_1_IMPROVED_TOUGHNESS = ("16", "18", "24")  # E7016-1, E7018-1, E7024-1 (from memory)
-# AWS A5.5 alloy suffixes (from memory): carbon-molybdenum A1; chromium-molybdenum B..; nickel C..; nickel-
-# molybdenum NM1; manganese-molybdenum D..; military M, M1; pipeline P..; weathering W..; general G.
-A5_5_SUFFIXES = ("A1", "B1", "B2", "B2L", "B3", "B3L", "B4L", "B5", "B6", "B6L", "B8", "B8L", "B9",
-                 "C1", "C1L", "C2", "C2L", "C3", "C3L", "C4", "C5L", "NM1", "D1", "D2", "D3",
-                 "M", "M1", "P1", "P2", "W1", "W2", "G")
+# Which classifications exist is data: procedures.electrode_list (A5_1 rows with their usability; A5_5 names).
+A5_1_IMPROVED_TOUGHNESS = tuple(c[-2:] for c, row in electrode_list.A5_1.items() if row.improved_toughness)
+A5_5_SUFFIXES = tuple(dict.fromkeys(electrode_list.A5_5.values()))
 HYDROGEN_DESIGNATORS = (4, 8, 16)  # mL per 100 g (from memory)
 
-_SMAW_SHAPE = re.compile(r"^E(?P<num>[0-9A-Z]{4,5}?)(?P<mil>M?)(?:-(?P<suffix>[0-9A-Z]+?))?(?P<h>H[0-9]+)?(?P<r>R)?$")
+_SMAW_SHAPE = re.compile(r"^E(?P<num>[0-9A-Z]{4,5}?)(?P<mil>M1?)?(?:-(?P<suffix>[0-9A-Z]+?))?(?P<h>H[0-9]+)?"
+                         r"(?P<r>R)?$")
 
 
 def _digits_error(text, found, known, what):
     return ValueError(f"{text}: {what}, found '{found}' (known: {', '.join(known)}).")
+
+
+def _a5_1_refusal(text: str, num: str) -> ValueError:
+    """E7010, E6024, E7019: the shape of A5.1 but not a classification A5.1 lists; name the near ones."""
+    usability = num[-2:]
+    same_covering = [c for c in electrode_list.A5_1 if c[-2:] == usability and c != f"E{num}"]
+    near = list(dict.fromkeys(same_covering + electrode_list.near(
+        [c for c in electrode_list.A5_1 if c[1:3] == num[:2]], f"E{num}", 4)))
+    a5_5 = [c for c in electrode_list.A5_5 if c.startswith(f"E{num}-")]
+    message = (f"{text}: E{num} is not a classification AWS A5.1 lists (A5.1: {', '.join(electrode_list.A5_1)}). "
+               f"Near ones that exist: {', '.join(near)} (AWS A5.1)")
+    if a5_5:
+        message += f"; {', '.join(a5_5[:6])} (AWS A5.5, with an alloy suffix; from memory)"
+    return ValueError(message + ".")
+
+
+def _a5_5_refusal(text: str, key: str, num: str, suffix: str) -> ValueError:
+    same_suffix = [c for c in electrode_list.A5_5 if electrode_list.A5_5[c] == suffix]
+    same_digits = [c for c in electrode_list.A5_5 if c.startswith(f"E{num}-") and c not in same_suffix]
+    near = electrode_list.near(same_suffix, key, 6) + same_digits[:4]
+    return ValueError(f"{text}: {key} is not a classification AWS A5.5 lists (from memory). Near ones that exist: "
+                      f"{', '.join(near)}.")
 
 
 def _decode_covered(text: str, compact: str) -> Electrode:
@@ -143,53 +172,69 @@ def _decode_covered(text: str, compact: str) -> Electrode:
     if not match:
         raise ValueError(f"{text}: not the shape of a covered electrode; write it as E7018, E7018-1 H4R or "
                          "E8018-C3.")
-    num, suffix = match["num"], match["suffix"]
-    if match["mil"] and suffix:
+    num, suffix, mil = match["num"], match["suffix"], match["mil"] or ""
+    if mil and suffix:
         raise ValueError(f"{text}: write the military M designator alone (E7018M, E11018M), not with a suffix "
                          f"'-{suffix}'.")
     tensile_text, usability = num[:-2], num[-2:]
-    spec = SPEC_A5_5 if suffix and suffix != "1" else SPEC_A5_1
-    if match["mil"] and not suffix:
-        spec = SPEC_A5_1 if tensile_text == "70" else SPEC_A5_5  # E7018M is A5.1; E11018M is A5.5
     if not tensile_text.isdigit() or int(tensile_text) not in A5_1_TENSILES + A5_5_TENSILES[1:]:
         raise ValueError(f"{text}: the tensile digits must be 60, 70 (AWS A5.1) or 70, 80, 90, 100, 110, 120 "
                          f"with an alloy suffix (AWS A5.5), found '{tensile_text}'.")
     tensile = int(tensile_text)
-    if usability not in COVERINGS:
-        raise ValueError(f"{text}: the last two digits '{usability}' (position digit '{usability[0]}', covering "
-                         f"digit '{usability[1]}') are not an AWS A5.1 covering/usability designation "
-                         f"(known: {', '.join(COVERINGS)}).")
-    covering = COVERINGS[usability]
-    positions, positions_note, fillet_only = POSITION_DIGITS[usability[0]]
+    a5_1_key = f"E{num}{mil}"
+    spec = SPEC_A5_1 if (suffix in (None, "1") and (not mil or a5_1_key in electrode_list.A5_1)) else SPEC_A5_5
     notes = []
     designators = []
     if spec == SPEC_A5_1:
         if tensile not in A5_1_TENSILES:
             raise ValueError(f"{text}: a covered electrode of {tensile} ksi is AWS A5.5 and needs its alloy suffix, "
                              f"e.g. E{tensile}18-C3 (known suffixes: {', '.join(A5_5_SUFFIXES)}).")
+        row = electrode_list.A5_1.get(a5_1_key)
+        if row is None:
+            raise _a5_1_refusal(text, num)
         if suffix == "1":
-            if usability not in A5_1_IMPROVED_TOUGHNESS or tensile != 70:
-                raise ValueError(f"{text}: the -1 (improved toughness) suffix exists for E7016, E7018 and E7024 "
-                                 "only (from memory).")
+            if not row.improved_toughness:
+                raise ValueError(f"{text}: the -1 (improved toughness) suffix exists for "
+                                 f"{', '.join('E70' + u for u in A5_1_IMPROVED_TOUGHNESS)} only "
+                                 f"({electrode_list.PUBLISHED_A5_1}).")
             designators.append("-1")
-            notes.append("-1: improved toughness (from memory)")
-        if match["mil"]:
-            if usability != "18":
-                raise ValueError(f"{text}: the M suffix of AWS A5.1 exists for E7018M only (from memory).")
+            notes.append("-1: improved toughness")
+        if mil:
             designators.append("M")
-            notes.append("E7018M: DCEP only, 4 mL diffusible hydrogen or less (from memory)")
+            notes.append(f"E7018M: DCEP only, {row.note}")
+        positions, positions_note, fillet_only = POSITION_DIGITS[row.position_digit]
+        currents, low_hydrogen, group, description = row.currents, row.low_hydrogen, row.group, row.covering
+        if row.status != electrode_list.PUBLISHED_A5_1:
+            notes.append(f"{a5_1_key}: {row.status}")
+        if row.note and not mil:
+            notes.append(f"{a5_1_key}: {row.note}")
+        single_pass = row.single_pass
     else:
         if suffix == "1":
-            raise ValueError(f"{text}: the -1 suffix belongs to AWS A5.1 E7016-1, E7018-1 and E7024-1 only.")
-        if tensile == 60:
-            raise ValueError(f"{text}: AWS A5.5 starts at 70 ksi; a 60 ksi electrode is AWS A5.1 with no alloy "
-                             "suffix (e.g. E6010).")
-        alloy = suffix or "M"
+            raise ValueError(f"{text}: the -1 suffix belongs to AWS A5.1 "
+                             f"{', '.join('E70' + u + '-1' for u in A5_1_IMPROVED_TOUGHNESS)} only.")
+        alloy = suffix or mil
         if alloy not in A5_5_SUFFIXES:
             raise ValueError(f"{text}: '{alloy}' is not an AWS A5.5 alloy suffix (known, from memory: "
                              f"{', '.join(A5_5_SUFFIXES)}).")
-        designators.append(f"-{alloy}" if suffix else "M")
-        notes.append("AWS A5.5 strength levels and alloy suffixes from memory")
+        if tensile == 60:
+            raise ValueError(f"{text}: AWS A5.5 starts at 70 ksi; a 60 ksi electrode is AWS A5.1 with no alloy "
+                             "suffix (e.g. E6010).")
+        key = f"E{num}-{suffix}" if suffix else f"E{num}{mil}"
+        if key not in electrode_list.A5_5:
+            raise _a5_5_refusal(text, key, num, alloy)
+        if usability not in COVERINGS:
+            raise ValueError(f"{text}: the last two digits '{usability}' are not an AWS A5.1/A5.5 covering "
+                             f"designation (known: {', '.join(COVERINGS)}).")
+        covering = COVERINGS[usability]
+        positions, positions_note, fillet_only = POSITION_DIGITS[usability[0]]
+        currents, low_hydrogen, group, description = (covering.currents, covering.low_hydrogen, covering.group,
+                                                      covering.description)
+        designators.append(f"-{alloy}" if suffix else mil)
+        notes.append(f"AWS A5.5 classification list and strength levels: {electrode_list.A5_5_STATUS}")
+        if covering.status != PUBLISHED:
+            notes.append(f"covering and currents of EXX{usability}: {covering.status}")
+        single_pass = False
     hydrogen = None
     if match["h"]:
         hydrogen = int(match["h"][1:])
@@ -198,14 +243,12 @@ def _decode_covered(text: str, compact: str) -> Electrode:
         designators.append(match["h"])
     if match["r"]:
         designators.append("R")
-    if (hydrogen or match["r"]) and not covering.low_hydrogen:
+    if (hydrogen or match["r"]) and not low_hydrogen:
         raise ValueError(f"{text}: H and R designators apply to low-hydrogen electrodes only (EXX15, 16, 18, 28, 48), "
-                         f"not to a {covering.description} covering.")
-    currents = frozenset({"DCEP"}) if match["mil"] and spec == SPEC_A5_1 else covering.currents
-    if covering.status != PUBLISHED:
-        notes.append(f"covering and currents of EXX{usability}: {covering.status}")
-    notes.append(f"electrode group {covering.group} for welder qualification: from memory")
-    base = f"E{num}{match['mil']}" + (f"-{suffix}" if suffix else "")
+                         f"not to a {description} covering.")
+    a5_1_military = bool(mil) and spec == SPEC_A5_1
+    notes.append(f"electrode group {group} for welder qualification: from memory")
+    base = f"E{num}{mil}" + (f"-{suffix}" if suffix else "")
     optional = (match["h"] or "") + (match["r"] or "")
     return Electrode(
         classification=base + (f" {optional}" if optional else ""),
@@ -213,15 +256,16 @@ def _decode_covered(text: str, compact: str) -> Electrode:
         tensile_ksi=tensile,
         positions=positions,
         currents=currents,
-        low_hydrogen=covering.low_hydrogen,
+        low_hydrogen=low_hydrogen,
         spec=spec,
-        usability=covering.description,
+        usability=description,
         usability_code=usability,
-        group=covering.group,
+        group=group,
         positions_note=positions_note,
         horizontal_fillet_only=fillet_only,
+        single_pass_only=single_pass,
         designators=tuple(designators),
-        diffusible_hydrogen_ml=hydrogen or (4 if match["mil"] and spec == SPEC_A5_1 else None),
+        diffusible_hydrogen_ml=hydrogen or (4 if a5_1_military else None),
         moisture_resistant=bool(match["r"]),
         notes=tuple(notes),
     )
@@ -229,10 +273,10 @@ def _decode_covered(text: str, compact: str) -> Electrode:
 
 # --- AWS A5.18 solid and metal-cored wire (GMAW, GTAW) --------------------------------------------
 
-A5_18_SOLID_TYPES = ("2", "3", "4", "6", "7", "G")  # ER70S-X (2, 3, 6 published; 4, 7, G from memory)
-A5_18_COMPOSITE_TYPES = ("3", "6", "G")  # E70C-X (6 published; 3, G from memory)
+A5_18_SOLID_TYPES = tuple(electrode_list.A5_18_SOLID)  # ER70S-X; status per row in procedures.electrode_list
+A5_18_COMPOSITE_TYPES = tuple(electrode_list.A5_18_COMPOSITE)  # E70C-X
 _A5_18_SOLID = re.compile(r"^ER(?P<t>[0-9A-Z]{2,3})S-?(?P<type>[0-9A-Z]+)$")
-_A5_18_COMPOSITE = re.compile(r"^E(?P<t>[0-9A-Z]{2,3})C-?(?P<type>[0-9]|GS|G)(?P<gas>[A-Z])?$")
+_A5_18_COMPOSITE = re.compile(r"^E(?P<t>[0-9A-Z]{2,3})C-?(?P<type>[0-9]|GS|G)(?P<gas>[A-Z])?(?P<h>H[0-9]+)?$")
 _GMAW_POSITIONS_NOTE = ("positions depend on the transfer: spray and globular are flat and horizontal only, "
                         "short-circuiting and pulsed all positions (common practice, no source)")
 
@@ -265,14 +309,29 @@ def _decode_a5_18(text: str, compact: str) -> Electrode:
     gas = match["gas"]
     if gas not in (None, "C", "M"):
         raise ValueError(f"{text}: '{gas}' is not a shielding gas designator (C for CO2, M for argon mix).")
+    row = electrode_list.A5_18_COMPOSITE[match["type"]]
+    if gas not in row.gases:
+        written = ", ".join(f"E70C-{match['type']}{g or ''}" for g in row.gases)
+        raise ValueError(f"{text}: AWS A5.18 writes this metal-cored classification with its shielding gas "
+                         f"designator: {written} exist (C for CO2, M for argon mix; {row.status}).")
+    hydrogen = None
+    if match["h"]:
+        hydrogen = int(match["h"][1:])
+        if hydrogen not in HYDROGEN_DESIGNATORS:
+            raise ValueError(f"{text}: '{match['h']}' is not a diffusible hydrogen designator (known: H4, H8, H16).")
     notes = ["metal-cored current DCEP (from memory)"]
-    if match["type"] != "6":
-        notes.append(f"E70C-{match['type']}: from memory")
+    if row.status != electrode_list.A5_18_COMPOSITE["6"].status or gas != "M":
+        notes.append(f"E70C-{match['type']}{gas or ''}: {row.status}")
+    if hydrogen:
+        notes.append(electrode_list.A5_18_HYDROGEN_STATUS)
+    classification = f"E70C-{match['type']}{gas or ''}" + (f" {match['h']}" if hydrogen else "")
     return Electrode(
-        classification=f"E70C-{match['type']}{gas or ''}", processes=frozenset({"GMAW"}), tensile_ksi=70,
+        classification=classification, processes=frozenset({"GMAW"}), tensile_ksi=70,
         positions=ALL_POSITIONS, currents=frozenset({"DCEP"}), low_hydrogen=True, spec=SPEC_A5_18,
-        usability="metal cored", usability_code=match["type"], positions_note=_GMAW_POSITIONS_NOTE, shielding=gas,
-        designators=(f"-{match['type']}",) + ((gas,) if gas else ()), notes=tuple(notes))
+        usability="metal cored" + (", single pass only" if row.single_pass else ""), usability_code=match["type"],
+        positions_note=_GMAW_POSITIONS_NOTE, shielding=gas, single_pass_only=row.single_pass,
+        designators=(f"-{match['type']}",) + ((gas,) if gas else ()) + ((match["h"],) if hydrogen else ()),
+        diffusible_hydrogen_ml=hydrogen, notes=tuple(notes))
 
 
 # --- AWS A5.20 flux-cored electrodes (FCAW) -------------------------------------------------------
@@ -318,6 +377,10 @@ def _decode_a5_20(text: str, compact: str) -> Electrode:
         raise ValueError(f"{text}: 'T-{kind}' is not an AWS A5.20 usability type (known: "
                          f"{', '.join('T-' + k for k in FLUX_CORED_TYPES)}).")
     usability = FLUX_CORED_TYPES[kind]
+    if match["p"] not in electrode_list.A5_20_POSITION_DIGITS[kind]:
+        listed = ", ".join(f"E{match['t']}{p}T-{kind}" for p in electrode_list.A5_20_POSITION_DIGITS[kind])
+        raise ValueError(f"{text}: AWS A5.20 lists T-{kind} as {listed} only, not with position digit "
+                         f"'{match['p']}' ({electrode_list.A5_20_STATUS}).")
     gas = match["gas"]
     if gas not in (None, "C", "M"):
         raise ValueError(f"{text}: '{gas}' is not a shielding gas designator (C for CO2, M for argon mix).")

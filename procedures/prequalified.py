@@ -16,6 +16,12 @@ the WPS states: a missing key is not a finding. Every Finding carries
 
 An empty list means prequalified as far as the given inputs show.
 
+Optional keys beyond the engine contract: shielding_gas (text such as "75Ar/25CO2", or "none" for self-shielded;
+checked against the electrode's A5.20 usability type and C/M designator, as is a process written FCAW-G or
+FCAW-S), loading ("static" or "cyclic": cyclic fillet welds at least 3/16 in [5 mm]). Base metals are judged
+against procedures.base_metals (Table 5.3 groups, Table 5.8 categories): one not in that table is not
+prequalified.
+
 How to add a rule: write `def rule_something(wps: Procedure) -> Iterable[Finding]` with its source constant
 right above it, yield Finding(...) for each problem, and append the function to RULES. Values that the rule
 compares against go in a table beside the source, US and SI figures as the standard prints them.
@@ -44,7 +50,9 @@ from core.units import (
     parse_voltage,
     temperature_system,
 )
-from procedures.electrodes import Electrode, decode
+from procedures import base_metals
+from procedures.base_metals import Limit, limit
+from procedures.electrodes import FLUX_CORED_TYPES, SPEC_A5_20, Electrode, decode
 
 CODE = "AWS D1.1:2020"
 KNOWN_CODES = {"AWS D1.1:2020": CODE, "AWS D1.1/D1.1M:2020": CODE}
@@ -73,6 +81,11 @@ class Finding:
 PROCESSES_PREQUALIFIED = ("SMAW", "SAW", "GMAW", "FCAW")
 PROCESSES_NOT_PREQUALIFIED = ("GTAW", "ESW", "EGW", "PAW")
 PROCESS_ALIASES = {"GMAW-S": ("GMAW", "short_circuit"), "FCAW-G": ("FCAW", None), "FCAW-S": ("FCAW", None)}
+# FCAW-G: gas shielded; FCAW-S: self-shielded (the process names AWS uses; the shielding must agree with the
+# electrode's A5.20 usability type).
+PROCESS_SHIELDING = {"FCAW-G": "gas", "FCAW-S": "self"}
+LOADINGS = ("static", "cyclic")
+NO_GAS = ("none", "no gas", "self-shielded", "self shielded", "self", "-")
 TRANSFERS = ("short_circuit", "globular", "spray", "pulsed")
 TRANSFER_ALIASES = {"short_circuiting": "short_circuit", "short_arc": "short_circuit", "pulsed_spray": "pulsed",
                     "short": "short_circuit"}
@@ -114,6 +127,9 @@ class Procedure:
     wire_feed_speed_max: Speed | None = None
     electrode_arrangement: str | None = None
     unit_system: str | None = None
+    shielding_gas: str | None = None  # as written ("75Ar/25CO2"); "" when the WPS says none (self-shielded)
+    loading: str | None = None  # "static" or "cyclic"
+    shielding: str | None = None  # "gas" or "self" when the process is written FCAW-G or FCAW-S
     systems: tuple = ()  # ((key, "US" | "SI"), ...)
 
     def system(self, key: str) -> str:
@@ -166,6 +182,18 @@ def _base_metals(value):
     return tuple(m.strip() for m in metals)
 
 
+def _shielding_gas(value):
+    """The shielding gas as written; "none" (or "self-shielded") becomes "" (the WPS says no gas)."""
+    if not isinstance(value, str):
+        raise ValueError(f"give the shielding gas as text, e.g. 75Ar/25CO2 or CO2, or 'none', not {value!r}.")
+    text = " ".join(value.split())
+    if not text or text.lower() in NO_GAS:
+        return ""
+    if len(text) > 60:
+        raise ValueError("the shielding gas is too long: write it as e.g. 75Ar/25CO2, 100% CO2 or M21.")
+    return text
+
+
 def _electrode(value):
     if isinstance(value, Electrode):
         return value
@@ -189,11 +217,13 @@ _PARSERS = {
     "wire_feed_speed_min": parse_speed, "wire_feed_speed_max": parse_speed,
     "electrode_arrangement": lambda v: _choice(v, SAW_ARRANGEMENTS, "SAW electrode arrangement"),
     "unit_system": lambda v: _choice(v, SYSTEMS, "unit system", upper=True),
+    "shielding_gas": lambda v: _shielding_gas(v),
+    "loading": lambda v: _choice(v, LOADINGS, "loading (static or cyclic)"),
     **{key: parse_length for key in _LENGTH_KEYS},
     **{key: parse_temperature for key in _TEMPERATURE_KEYS},
 }
 KNOWN_KEYS = tuple(_PARSERS)
-assert set(KNOWN_KEYS) == {f.name for f in fields(Procedure)} - {"systems"}
+assert set(KNOWN_KEYS) == {f.name for f in fields(Procedure)} - {"systems", "shielding"}
 
 
 def parse_procedure(wps) -> Procedure:
@@ -221,6 +251,7 @@ def parse_procedure(wps) -> Procedure:
         except ValueError as exc:
             raise (UnitError if isinstance(exc, UnitError) else ValueError)(f"{key}: {exc}") from None
     process = values["process"]
+    shielding = PROCESS_SHIELDING.get(process)
     if process in PROCESS_ALIASES:
         process, implied = PROCESS_ALIASES[process]
         if implied and values.get("transfer", implied) != implied:
@@ -229,28 +260,26 @@ def parse_procedure(wps) -> Procedure:
         if implied:
             values["transfer"] = implied
         values["process"] = process
-    return Procedure(**values, systems=tuple((k, s) for k, s in systems if s))
+    return Procedure(**values, shielding=shielding, systems=tuple((k, s) for k, s in systems if s))
 
 
 # --- helpers for rules ----------------------------------------------------------------------------
-
-@dataclass(frozen=True)
-class Limit:
-    """A limit as the standard prints it in both systems (the SI figure is not a conversion of the US one)."""
-
-    us: Length
-    si: Length
-
-    def in_system(self, system: str) -> Length:
-        return self.si if system == "SI" else self.us
-
 
 def _limit(us: str, si: str) -> Limit:
     return Limit(parse_length(us), parse_length(si))
 
 
 def _show(length: Length, system: str) -> str:
-    return format_length(length, system)
+    """A length as its system writes it; '≈' before inches that are rounded (a metric value to the nearest 1/32)."""
+    text = format_length(length, system)
+    if system != "SI" and parse_length(text.replace('"', " in")).mm != length.mm:
+        return f"≈{text}"
+    return text
+
+
+def _temperature(value: Temperature, system: str) -> str:
+    """A temperature rounded to whole degrees, never '-0 °F' (a value just below zero rounds to 0)."""
+    return re.sub(r"^-0(?=\s)", "0", format_temperature(value, system))
 
 
 def _pos_name(position: str) -> str:
@@ -343,6 +372,60 @@ def rule_electrode_current(wps: Procedure) -> Iterable[Finding]:
                       f"{wps.current}.", _current_source(e), "current")
 
 
+# --- rule: shielding of the process and of the electrode agree -----------------------------------
+
+SOURCE_SHIELDING = ("AWS A5.20 usability types: external shielding gas or self-shielded, and the C (CO2) / M (argon "
+                    "mix) gas designator (types from memory); AWS D1.1/D1.1M:2020 clause 5: prequalified WPSs use the "
+                    "shielding the filler metal is classified with (from memory)")
+
+
+def _gas_kind(gas: str) -> str | None:
+    """'M' for an argon mix, 'C' for carbon dioxide alone, None when the text does not tell."""
+    text = gas.upper().replace(" ", "")
+    if re.search(r"(?<![A-Z])AR", text) or re.fullmatch(r"M[0-9]{1,2}\b.*", text):  # ISO 14175 M mixes (memory)
+        return "M"
+    if "CO2" in text or "CARBONDIOXIDE" in text or re.fullmatch(r"C1\b.*", text):  # ISO 14175 C1 = CO2 (memory)
+        return "C"
+    return None
+
+
+def rule_shielding(wps: Procedure) -> Iterable[Finding]:
+    """FCAW-G with a self-shielded electrode (E71T-8), FCAW-S or no gas with a gas-shielded one (E71T-1C), and
+    a gas the electrode is not classified with (E71T-1C under an argon mix)."""
+    e = wps.electrode
+    gas_given = wps.shielding_gas
+    if wps.process == "FCAW" and wps.shielding and gas_given is not None and \
+            (wps.shielding == "gas") != bool(gas_given):
+        yield Finding("shielding", "error",
+                      f"The process is FCAW-{wps.shielding[0].upper()} but the shielding gas says "
+                      f"{gas_given or 'none'}: make them agree.", SOURCE_SHIELDING, "shielding_gas")
+    if not _usable(wps):
+        return
+    if e.spec == SPEC_A5_20:
+        electrode_shielding = FLUX_CORED_TYPES[e.usability_code].shielding
+        wanted = wps.shielding or (None if gas_given is None else ("gas" if gas_given else "self"))
+        if wanted and electrode_shielding != "either" and wanted != electrode_shielding:
+            said = (f"the process is FCAW-{wanted[0].upper()}" if wps.shielding else
+                    f"the shielding gas is {gas_given}" if gas_given else "the WPS gives no shielding gas")
+            kind = "self-shielded" if electrode_shielding == "self" else "used with an external shielding gas"
+            yield Finding("shielding", "error",
+                          f"{e.classification} is {kind} (AWS A5.20 T-{e.usability_code}), but {said}: choose an "
+                          f"electrode classified for {'gas shielding' if wanted == 'gas' else 'self-shielding'}, or "
+                          "change the process.", SOURCE_SHIELDING, "electrode")
+            return
+    elif wps.process == "GMAW" and gas_given == "":
+        yield Finding("shielding", "error", f"{e.classification} with GMAW needs a shielding gas; the WPS says none.",
+                      SOURCE_SHIELDING, "shielding_gas")
+        return
+    kind = _gas_kind(gas_given) if gas_given else None
+    if e.shielding in ("C", "M") and kind and kind != e.shielding:
+        names = {"C": "carbon dioxide (C)", "M": "an argon mix (M)"}
+        yield Finding("shielding_gas_designator", "not_prequalified",
+                      f"{e.classification} is classified with {names[e.shielding]}, but the shielding gas "
+                      f"{gas_given} is {names[kind]}: use the electrode classified for that gas or qualify by test.",
+                      SOURCE_SHIELDING, "shielding_gas")
+
+
 # --- rule: maximum single-pass fillet size, AWS D1.1:2020 Table 5.1 -------------------------------
 
 SOURCE_TABLE_5_1 = "AWS D1.1/D1.1M:2020 Table 5.1 (US figures published; SI figures from memory)"
@@ -429,29 +512,105 @@ def rule_electrode_diameter(wps: Procedure) -> Iterable[Finding]:
                           "root.", SOURCE_DIAMETER, "electrode_diameter")
 
 
+# --- base metals: AWS D1.1:2020 Table 5.3 (procedures.base_metals holds the table as data) ------------------
+
+SOURCE_BASE_METALS = f"{base_metals.SOURCE_TABLE_5_3} (rows and status in procedures.base_metals)"
+SOURCE_MATCHING = base_metals.SOURCE_MATCHING
+BaseMetal = base_metals.BaseMetal
+BASE_METALS = base_metals.BASE_METALS
+base_metal_key = base_metals.base_metal_key
+GROUP_I_A36_MAX_THICKNESS = base_metals.GROUP_I_MAX_36
+MATCHING_TENSILE_KSI = {group: m.tensile_ksi for group, m in base_metals.MATCHING_FILLER.items()}
+SMAW_GROUP_II_COVERINGS = base_metals.MATCHING_FILLER["II"].smaw_low_hydrogen
+_GROUP_ORDER = base_metals.GROUPS
+
+
+def base_metal_group(name: str, thickness_max: Length | None = None, system: str = "US") -> str | None:
+    """'I'..'IV', or None for a base metal that is not prequalified (not in the table as entered, or approved only
+    with qualification by test). A36 without a thickness counts as Group I (the usual case, up to 3/4 in)."""
+    metal = base_metals.lookup(name)
+    return None if metal is None else metal.group_for(thickness_max, system)
+
+
+def _known_metals(wps: Procedure) -> list[BaseMetal]:
+    return [m for m in (base_metals.lookup(n) for n in wps.base_metals or ()) if m is not None and m.group]
+
+
+def rule_base_metals_known(wps: Procedure) -> Iterable[Finding]:
+    """A base metal not in Table 5.3 cannot be prequalified; one the code approves only with qualification by test
+    (A514, A517, ...) is not prequalified either."""
+    for name in wps.base_metals or ():
+        metal = base_metals.lookup(name)
+        if metal is not None and metal.group is None:
+            yield Finding("base_metal_qualification_by_test", "not_prequalified",
+                          f"{metal.name} ({metal.note}) is approved for this code only with a WPS qualified by test "
+                          f"(PQR): it is not a prequalified base metal ({metal.status}).",
+                          base_metals.SOURCE_TEST_ONLY, "base_metals")
+        elif metal is None:
+            grades = base_metals.grades_of(name)
+            if grades:
+                yield Finding("base_metal_grade", "not_prequalified",
+                              f"{name}: give the grade; the grades in the prequalified table differ in group and "
+                              f"preheat ({', '.join(grades)}).", SOURCE_BASE_METALS, "base_metals")
+            else:
+                yield Finding("base_metal_unknown", "not_prequalified",
+                              f"{name} is not in the table of prequalified base metals as entered here, so it cannot "
+                              "be prequalified: qualify the WPS by test (PQR), or, if the code's own Table 5.3 lists "
+                              "it, have the table here extended.", SOURCE_BASE_METALS, "base_metals")
+
+
 # --- rule: minimum preheat and interpass temperature, AWS D1.1:2020 Table 5.8 ---------------------
 
-SOURCE_TABLE_5_8 = ("AWS D1.1/D1.1M:2020 Table 5.8, thickest part at the point of welding (US figures published; "
-                    "SI thickness bands from memory)")
-# Upper bound of each thickness band (inclusive); None = no upper bound.
-PREHEAT_BANDS = (_limit("3/4 in", "20 mm"), _limit("1-1/2 in", "38 mm"), _limit("2-1/2 in", "65 mm"), None)
-_BAND_NAMES = {"US": ("up to 3/4 in", "over 3/4 in to 1-1/2 in", "over 1-1/2 in to 2-1/2 in", "over 2-1/2 in"),
-               "SI": ("up to 20 mm", "over 20 mm to 38 mm", "over 38 mm to 65 mm", "over 65 mm")}
-# Category A: SMAW with other than low-hydrogen electrodes. Category B: SMAW low hydrogen, SAW, GMAW, FCAW.
-PREHEAT_MIN = {
-    "A": ((32, 0), (150, 65), (225, 110), (300, 150)),  # (F, C) per band
-    "B": ((32, 0), (50, 10), (150, 65), (225, 110)),
-}
+SOURCE_TABLE_5_8 = (f"{base_metals.SOURCE_TABLE_5_8}, thickest part at the point of welding (categories A and B "
+                    "published for D1.1:2015 Table 3.3; C and D US figures published in an older edition, SI and "
+                    "the H8 condition of D from memory)")
+PREHEAT_BANDS = base_metals.PREHEAT_BANDS
+_BAND_NAMES = base_metals.BAND_NAMES
+PREHEAT_MIN = {category: row.minimum for category, row in base_metals.PREHEAT_MIN.items()}
 BELOW_FREEZING_NOTE = "base metal below 32 F [0 C]: preheat to at least 70 F [20 C] (from memory)"
 
 
-def preheat_category(wps: Procedure) -> str | None:
-    """Table 5.8 category of a WPS, or None when the WPS does not say enough (SMAW without its electrode)."""
+def _process_hydrogen(wps: Procedure) -> str | None:
+    """'low' for SMAW low-hydrogen, SAW, GMAW, FCAW; 'other' for other SMAW; None when it cannot be told."""
     if wps.process == "SMAW":
         if wps.electrode is None or "SMAW" not in wps.electrode.processes:
             return None
-        return "B" if wps.electrode.low_hydrogen else "A"
-    return "B" if wps.process in ("SAW", "GMAW", "FCAW") else None
+        return "low" if wps.electrode.low_hydrogen else "other"
+    return "low" if wps.process in ("SAW", "GMAW", "FCAW") else None
+
+
+def _category_of(metal: BaseMetal | None, hydrogen: str, wps: Procedure, system: str) -> str | None:
+    if metal is None:  # no base metal named: judge by the process alone
+        return "B" if hydrogen == "low" else "A"
+    if hydrogen == "other":  # only Group I steels take non-low-hydrogen SMAW (Category A)
+        return "A" if metal.group_for(wps.thickness_max, system) == "I" else None
+    e = wps.electrode
+    if metal.category_d and e is not None and e.diffusible_hydrogen_ml is not None and \
+            e.diffusible_hydrogen_ml <= base_metals.CATEGORY_D_MAX_HYDROGEN_ML:
+        return "D"
+    return metal.category
+
+
+def preheat_categories(wps: Procedure) -> list[tuple[str, str | None]]:
+    """(Table 5.8 category, base metal name or None) for each base metal the WPS names that has one."""
+    hydrogen = _process_hydrogen(wps)
+    if hydrogen is None:
+        return []
+    metals = _known_metals(wps)
+    if not metals:
+        return [(_category_of(None, hydrogen, wps, "US"), None)]
+    system = wps.system("thickness_max")
+    found = [(_category_of(m, hydrogen, wps, system), m.name) for m in metals]
+    return [(category, name) for category, name in found if category is not None]
+
+
+def preheat_category(wps: Procedure) -> str | None:
+    """The governing Table 5.8 category of a WPS (the one needing the most preheat), or None when the WPS does
+    not say enough (SMAW without its electrode)."""
+    found = preheat_categories(wps)
+    if not found:
+        return None
+    return max((c for c, _ in found), key=base_metals.CATEGORY_ORDER.index)
 
 
 def minimum_preheat(category: str, thickest: Length, thickness_system: str = "US") -> tuple[int, int, str]:
@@ -468,11 +627,16 @@ def _temperature_of(f: int, c: int, system: str) -> Temperature:
 
 
 def rule_preheat(wps: Procedure) -> Iterable[Finding]:
-    """Preheat (and the interpass maximum) below the Table 5.8 minimum for the category and thickest part."""
-    category = preheat_category(wps)
-    if category is None or wps.thickness_max is None:
+    """Preheat (and the interpass maximum) below the Table 5.8 minimum for the category and thickest part; with
+    several base metals the one needing the most preheat governs."""
+    found = preheat_categories(wps)
+    if not found or wps.thickness_max is None:
         return
-    f, c, band = minimum_preheat(category, wps.thickness_max, wps.system("thickness_max"))
+    thickness_system = wps.system("thickness_max")
+    minimums = [(minimum_preheat(category, wps.thickness_max, thickness_system), category, name)
+                for category, name in found]
+    (f, c, band), category, metal = max(minimums, key=lambda item: item[0][0])
+    of_metal = f" ({metal})" if metal else ""
     for key, value in (("preheat_min", wps.preheat_min), ("interpass_max", wps.interpass_max)):
         if value is None:
             continue
@@ -481,68 +645,14 @@ def rule_preheat(wps: Procedure) -> Iterable[Finding]:
         if value < required:
             what = "Minimum preheat" if key == "preheat_min" else "Maximum interpass temperature"
             yield Finding("preheat", "not_prequalified",
-                          f"{what} {format_temperature(value, system)} is below the "
-                          f"{format_temperature(required, system)} minimum preheat and interpass temperature of "
-                          f"Category {category} for the thickest part {band} "
-                          f"({format_length(wps.thickness_max, wps.system('thickness_max'))}); "
+                          f"{what} {_temperature(value, system)} is below the "
+                          f"{_temperature(required, system)} minimum preheat and interpass temperature of "
+                          f"Category {category}{of_metal} for the thickest part {band} "
+                          f"({_show(wps.thickness_max, thickness_system)}); "
                           f"{BELOW_FREEZING_NOTE}.", SOURCE_TABLE_5_8, key)
 
 
-# --- rules: base metal and matching filler metal --------------------------------------------------
-
-SOURCE_BASE_METALS = ("AWS D1.1/D1.1M:2020 clause 5, table of approved base metals for prequalified WPSs "
-                      "(A36 published; A572 Gr 50 and A992 from memory)")
-SOURCE_MATCHING = ("AWS D1.1/D1.1M:2020 clause 5, table of matching filler metals by base metal group "
-                   "(from memory)")
-GROUP_I_A36_MAX_THICKNESS = _limit("3/4 in", "20 mm")  # A36 over this is Group II (US published; SI from memory)
-MATCHING_TENSILE_KSI = {"I": 60, "II": 70}  # Group I: E60XX or E70XX; Group II: E70XX (from memory)
-SMAW_GROUP_II_COVERINGS = ("15", "16", "18", "28")  # low-hydrogen E7015, E7016, E7018, E7028 (from memory)
-_GROUP_ORDER = ("I", "II")
-
-
-@dataclass(frozen=True)
-class BaseMetal:
-    name: str
-    group: str  # "I" or "II"; "A36" means Group I up to 3/4 in, Group II over
-    status: str
-
-
-BASE_METALS = {
-    "A36": BaseMetal("ASTM A36", "A36", "published"),
-    "A572GR50": BaseMetal("ASTM A572 Gr 50", "II", "from memory"),
-    "A992": BaseMetal("ASTM A992", "II", "from memory"),
-}
-_BASE_METAL_ALIASES = {"A57250": "A572GR50"}
-
-
-def base_metal_key(name: str) -> str:
-    """'ASTM A572 Grade 50', 'A572-50', 'a572 gr. 50' -> 'A572GR50'; 'ASTM A36/A36M' -> 'A36'."""
-    key = name.upper().replace("GRADE", "GR")
-    key = re.sub(r"^ASTM|/A?[0-9]+M\b|[\s.\-]", "", key)
-    return _BASE_METAL_ALIASES.get(key, key)
-
-
-def base_metal_group(name: str, thickness_max: Length | None = None, system: str = "US") -> str | None:
-    """'I' or 'II', or None for a base metal not in this engine's table. A36 without a thickness counts as
-    Group I (the usual case, up to 3/4 in)."""
-    metal = BASE_METALS.get(base_metal_key(name))
-    if metal is None:
-        return None
-    if metal.group == "A36":
-        limit = GROUP_I_A36_MAX_THICKNESS.in_system(system)
-        return "II" if thickness_max is not None and thickness_max > limit else "I"
-    return metal.group
-
-
-def rule_base_metals_known(wps: Procedure) -> Iterable[Finding]:
-    """A base metal this engine has no group for cannot be judged: say so rather than pass it silently."""
-    for name in wps.base_metals or ():
-        if base_metal_group(name) is None:
-            yield Finding("base_metal_unknown", "warning",
-                          f"{name} is not a prequalified base metal in this engine's table (known: "
-                          f"{', '.join(m.name for m in BASE_METALS.values())}): check it against the code's list "
-                          "or qualify by test.", SOURCE_BASE_METALS, "base_metals")
-
+# --- rule: matching filler metal ------------------------------------------------------------------
 
 def rule_matching_filler(wps: Procedure) -> Iterable[Finding]:
     """Filler metal that does not match the base metal group. Joining two groups, the filler may match the
@@ -550,33 +660,38 @@ def rule_matching_filler(wps: Procedure) -> Iterable[Finding]:
     if not _usable(wps) or not wps.base_metals or wps.process not in PROCESSES_PREQUALIFIED:
         return
     system = wps.system("thickness_max")
-    groups = [g for g in (base_metal_group(n, wps.thickness_max, system) for n in wps.base_metals) if g]
+    groups = [g for g in (m.group_for(wps.thickness_max, system) for m in _known_metals(wps)) if g]
     if not groups:
         return
     e = wps.electrode
     lowest = min(groups, key=_GROUP_ORDER.index)
     highest = max(groups, key=_GROUP_ORDER.index)
-    required = MATCHING_TENSILE_KSI[lowest]
+    matching = base_metals.MATCHING_FILLER
+    required = matching[lowest].tensile_ksi
     metals = ", ".join(wps.base_metals)
     if wps.thickness_max is not None:
-        metals += f", thickest part {format_length(wps.thickness_max, system)}"
+        metals += f", thickest part {_show(wps.thickness_max, system)}"
     if e.tensile_ksi < required:
         yield Finding("matching_filler", "error",
                       f"{e.classification} ({e.tensile_ksi} ksi) undermatches Group {lowest} base metal ({metals}): "
-                      f"matching filler is {required} ksi or stronger.", SOURCE_MATCHING, "electrode")
-        return
-    if wps.process == "SMAW" and highest == "II" and not (e.low_hydrogen and e.usability_code in
-                                                          SMAW_GROUP_II_COVERINGS):
-        yield Finding("matching_filler", "not_prequalified",
-                      f"{e.classification} is not a matching filler for Group II base metal ({metals}): SMAW needs a "
-                      "low-hydrogen E7015, E7016, E7018 or E7028 (or the A5.5 -X forms).", SOURCE_MATCHING,
+                      f"matching filler is {required} ksi or stronger: {matching[lowest].text}.", SOURCE_MATCHING,
                       "electrode")
+        return
+    coverings = matching[highest].smaw_low_hydrogen
+    if wps.process == "SMAW" and coverings is not None and not (e.low_hydrogen and e.usability_code in coverings):
+        yield Finding("matching_filler", "not_prequalified",
+                      f"{e.classification} is not a matching filler for Group {highest} base metal ({metals}): "
+                      f"SMAW needs {matching[highest].text.split(' (SMAW)')[0]}.", SOURCE_MATCHING, "electrode")
     if wps.process == "FCAW" and e.single_pass_only:
         yield Finding("matching_filler", "not_prequalified",
                       f"{e.classification} is a single-pass flux-cored electrode (T-{e.usability_code}); the "
                       "matching filler list for prequalified WPSs excludes T-2, T-3, T-10, T-13, T-14 and T-GS.",
                       SOURCE_MATCHING, "electrode")
-    if e.tensile_ksi > MATCHING_TENSILE_KSI["II"]:
+    if wps.process == "GMAW" and e.single_pass_only:
+        yield Finding("matching_filler", "not_prequalified",
+                      f"{e.classification} is a single-pass metal-cored electrode; the matching filler list for "
+                      "prequalified WPSs excludes E70C-GS.", SOURCE_MATCHING, "electrode")
+    if e.tensile_ksi > matching[highest].overmatch_above_ksi:
         yield Finding("overmatching_filler", "warning",
                       f"{e.classification} ({e.tensile_ksi} ksi) is stronger than the matching filler for Group "
                       f"{highest} ({metals}); confirm the choice with the engineer of record.", SOURCE_MATCHING,
@@ -604,17 +719,66 @@ def minimum_fillet_size(thinner: Length, thickness_system: str = "US", size_syst
     raise AssertionError("unreachable: the last band has no upper bound")  # pragma: no cover
 
 
+SOURCE_MIN_FILLET_NON_LH = ("AWS D1.1/D1.1M:2020 Table 7.7, note on non-low-hydrogen processes: without preheat "
+                            "calculated to the code's hydrogen-control method, T is the thicker part joined and "
+                            "single-pass welds shall be used (from memory, high confidence)")
+
+
+def _non_low_hydrogen_smaw(wps: Procedure) -> bool:
+    """SMAW with an electrode other than low hydrogen: the one non-low-hydrogen process of clause 5 (Table 5.8
+    puts SAW, GMAW and FCAW with low-hydrogen SMAW)."""
+    return wps.process == "SMAW" and _usable(wps) and not wps.electrode.low_hydrogen
+
+
 def rule_minimum_fillet_size(wps: Procedure) -> Iterable[Finding]:
-    """The smallest fillet the WPS allows is under the minimum for the thinner part joined."""
-    if wps.fillet_size_min is None or wps.thickness_min is None or wps.joint == "groove":
+    """The smallest fillet the WPS allows is under the minimum for the part that governs: the thinner part
+    joined, or the thicker part for non-low-hydrogen SMAW (Table 7.7 note), which must then be single pass."""
+    if wps.fillet_size_min is None or wps.joint == "groove":
         return
     size_system = wps.system("fillet_size_min")
-    required = minimum_fillet_size(wps.thickness_min, wps.system("thickness_min"), size_system)
+    if _non_low_hydrogen_smaw(wps) and wps.thickness_max is not None:
+        part, key, which, source = wps.thickness_max, "thickness_max", "thicker part", SOURCE_MIN_FILLET_NON_LH
+    elif wps.thickness_min is not None:
+        part, key, which, source = wps.thickness_min, "thickness_min", "thinner part", SOURCE_MIN_FILLET
+    else:
+        return
+    required = minimum_fillet_size(part, wps.system(key), size_system)
+    why = (f" ({wps.electrode.classification} is not low hydrogen: the thicker part joined governs unless preheat "
+           "is calculated to the code's hydrogen-control method)" if which == "thicker part" else "")
     if wps.fillet_size_min < required:
         yield Finding("minimum_fillet_size", "not_prequalified",
                       f"Fillet size {_show(wps.fillet_size_min, size_system)} is under the "
-                      f"{_show(required, size_system)} minimum for a thinner part of "
-                      f"{_show(wps.thickness_min, wps.system('thickness_min'))}.", SOURCE_MIN_FILLET,
+                      f"{_show(required, size_system)} minimum for a {which} of "
+                      f"{_show(part, wps.system(key))}{why}.", source, "fillet_size_min")
+    if which == "thicker part" and wps.single_pass_size_max is not None:
+        pass_system = wps.system("single_pass_size_max")
+        needed = minimum_fillet_size(part, wps.system(key), pass_system)
+        if wps.single_pass_size_max < needed:
+            yield Finding("minimum_fillet_single_pass", "not_prequalified",
+                          f"{wps.electrode.classification} is not low hydrogen, so the minimum fillet "
+                          f"{_show(needed, pass_system)} for the thicker part "
+                          f"({_show(part, wps.system(key))}) must be made in a single pass; the WPS's largest "
+                          f"single pass is {_show(wps.single_pass_size_max, pass_system)}.", source,
+                          "single_pass_size_max")
+
+
+# --- rule: cyclically loaded fillet welds -----------------------------------------------------------
+
+SOURCE_CYCLIC_FILLET = ("AWS D1.1/D1.1M:2020 clause 4 Part C (cyclically loaded nontubular connections): minimum "
+                        "fillet weld size 3/16 in [5 mm] (from memory; clause number not confirmed)")
+CYCLIC_FILLET_MIN = limit("3/16 in", "5 mm")
+
+
+def rule_cyclic_fillet_size(wps: Procedure) -> Iterable[Finding]:
+    """A WPS for cyclically loaded work allowing a fillet under 3/16 in [5 mm]."""
+    if wps.loading != "cyclic" or wps.fillet_size_min is None or wps.joint == "groove":
+        return
+    system = wps.system("fillet_size_min")
+    least = CYCLIC_FILLET_MIN.in_system(system)
+    if wps.fillet_size_min < least:
+        yield Finding("cyclic_fillet_size", "error",
+                      f"Fillet size {_show(wps.fillet_size_min, system)} is under the {_show(least, system)} "
+                      "minimum for fillet welds in cyclically loaded structures.", SOURCE_CYCLIC_FILLET,
                       "fillet_size_min")
 
 
@@ -631,7 +795,7 @@ def _show_value(wps: Procedure, key: str, value, kind: str) -> str:
     if kind == "length":
         return _show(value, wps.system(key))
     if kind == "temperature":
-        return format_temperature(value, wps.system(key))
+        return _temperature(value, wps.system(key))
     if kind == "speed":
         return f"{format_speed(value, 'US')} ({format_speed(value, 'SI')})"
     return f"{value} {kind}"
@@ -658,6 +822,8 @@ RULES = (
     rule_base_metals_known,
     rule_matching_filler,
     rule_minimum_fillet_size,
+    rule_cyclic_fillet_size,
+    rule_shielding,
     rule_ranges,
 )
 

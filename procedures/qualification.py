@@ -11,6 +11,16 @@ hand, so a rule sits in exactly one place:
   them for an ISO job.
 
 Plate tests only: pipe test positions (5G, 6G, 6GR, 5F, ...) are refused rather than guessed.
+
+Essential variables beyond position, thickness and SMAW electrode group (AWS D1.1/D1.1M:2020 Table 6.12, from
+memory): a change of process, with GMAW short-circuiting transfer (GMAW-S) a process apart from the other GMAW
+transfers; a change of vertical progression (up / down); the omission of backing (a test with backing does not
+qualify welding without it; a test without backing qualifies both). ISO 9606-1:2012: PF (up) and PG (down) are
+separate positions already; welding details ss nb (single side, no backing), ss mb (with backing) and bs (both
+sides), from memory: ss nb qualifies all three, ss mb and bs qualify ss mb and bs.
+QualificationFacts and WeldDemand carry these as optional progression, backing and transfer. An absent value means
+"not recorded": check_welder has no warning level, so an absent value is treated as matching (the weld is not
+refused for it), and the acceptance reason names what could not be checked.
 """
 
 from __future__ import annotations
@@ -199,15 +209,22 @@ def _written_in_mm(value) -> bool:
     return isinstance(value, str) and re.search(r"(?:mm|cm|m|millimet(?:re|er)s?)\s*$", value.strip(), re.I) is not None
 
 
-def thickness_qualified(test_thickness, test="groove", code=AWS, *, system=None) -> tuple[Length, Length | None]:
+def thickness_qualified(test_thickness, test="groove", code=AWS, *, system=None,
+                        weld=None) -> tuple[Length, Length | None]:
     """(minimum, maximum) plate thickness a test qualifies; maximum None means unlimited.
 
+    weld: the joint type of the production weld ("groove" or "fillet"); None means the same type as the test.
+    AWS D1.1/D1.1M:2020 Table 6.11 has a fillet row for every plate test: a groove test qualifies fillet welds on
+    base metal 1/8 in [3 mm] and over, unlimited (from memory, high confidence), however thin the test plate.
     AWS: a groove test thinner than 3/8 in [10 mm] is refused, because Table 6.11 has no plate row below it (thinner
     work is sheet steel, AWS D1.3). On an SI job (system="SI", or the test thickness written in mm) the D1.1M SI
     figures are used: 3 mm, 10 mm, 20 mm, 25 mm (SI equivalents from memory).
+    ISO 9606-1: the range of the test's own joint type (a butt test's fillet range is not entered: from memory only,
+    and not confirmed), so weld is ignored there.
     """
     code = _code(code)
     test = _joint(test, "test")
+    weld = test if weld is None else _joint(weld, "weld")
     t = _thickness(test_thickness, "Test plate thickness")
     if system is None:
         system = "SI" if _written_in_mm(test_thickness) else "US"
@@ -217,15 +234,17 @@ def thickness_qualified(test_thickness, test="groove", code=AWS, *, system=None)
         return _iso_thickness(t, test)
     si = system == "SI"
     eighth = Length(Decimal(3)) if si else _IN("0.125")
-    if test == "fillet":
-        # AWS D1.1/D1.1M:2020 Table 6.11, fillet weld tests: 1/8 in [3 mm] and over, unlimited (from memory).
-        return eighth, None
     # AWS D1.1/D1.1M:2020 Table 6.11, plate groove tests (published; SI column from memory).
     three_eighths, one_inch = (Length(Decimal(10)), Length(Decimal(25))) if si else (_IN("0.375"), _IN(1))
-    if t < three_eighths:
-        raise ValueError(f"A {format_length(t, system)} groove test is thinner than the thinnest plate test of "
+    if test == "groove" and t < three_eighths:
+        shown = _inches(t) if system == "US" else format_length(t, "SI")
+        raise ValueError(f"A {shown} groove test is thinner than the thinnest plate test of "
                          f"{_AWS_SOURCE} Table 6.11 ({format_length(three_eighths, system)}); "
                          "use a 3/8 in [10 mm] or 1 in [25 mm] test plate.")
+    if test == "fillet" or weld == "fillet":
+        # AWS D1.1/D1.1M:2020 Table 6.11, fillet rows: a fillet test, and a groove test for fillet welds, qualify
+        # base metal 1/8 in [3 mm] and over, unlimited (from memory, high confidence; SI figure from memory).
+        return eighth, None
     if t == three_eighths:
         return eighth, (Length(Decimal(20)) if si else _IN("0.75"))
     if t < one_inch:
@@ -341,8 +360,84 @@ def _process(process) -> str:
         key = _ISO_4063.get(key, key)
         if key in PROCESSES:
             return key
-    raise ValueError(f"Process must be one of {', '.join(PROCESSES)} (or an ISO 4063 number such as 111 or 135), "
-                     f"not {process!r}.")
+    raise ValueError(f"Process must be one of {', '.join(PROCESSES)} or GMAW-S (or an ISO 4063 number such as 111 or "
+                     f"135), not {process!r}.")
+
+
+# --- essential variables beyond position and thickness (AWS D1.1:2020 Table 6.12, ISO 9606-1:2012; from memory) ---
+
+PROGRESSIONS = ("up", "down")
+_PROGRESSION_WORDS = {"up": "up", "uphill": "up", "vertical up": "up", "vu": "up", "pf": "up",
+                      "down": "down", "downhill": "down", "vertical down": "down", "vd": "down", "pg": "down"}
+BACKINGS = ("without", "with", "both_sides")
+_BACKING_WORDS = {"without": "without", "without backing": "without", "no backing": "without", "open root": "without",
+                  "ss nb": "without", "nb": "without",
+                  "with": "with", "with backing": "with", "ss mb": "with", "mb": "with",
+                  "both sides": "both_sides", "both_sides": "both_sides", "bs": "both_sides"}
+# What a test's backing qualifies. AWS D1.1/D1.1M:2020 Table 6.12 (from memory): without backing qualifies with and
+# without; with backing qualifies with backing only; welding from both sides counts as with backing (from memory).
+# ISO 9606-1:2012 welding details (from memory): ss nb qualifies ss nb, ss mb, bs; ss mb and bs qualify ss mb, bs.
+BACKING_QUALIFIES = {
+    "without": frozenset({"without", "with", "both_sides"}),
+    "with": frozenset({"with", "both_sides"}),
+    "both_sides": frozenset({"with", "both_sides"}),
+}
+_BACKING_NAMES = {AWS: {"without": "without backing", "with": "with backing", "both_sides": "from both sides"},
+                  ISO: {"without": "ss nb", "with": "ss mb", "both_sides": "bs"}}
+TRANSFERS = ("short_circuit", "globular", "spray", "pulsed")
+_TRANSFER_WORDS = {"short_circuit": "short_circuit", "short circuit": "short_circuit", "short": "short_circuit",
+                   "short circuiting": "short_circuit", "short arc": "short_circuit", "gmaw-s": "short_circuit",
+                   "dip": "short_circuit", "globular": "globular", "spray": "spray", "pulsed": "pulsed",
+                   "pulsed spray": "pulsed"}
+
+
+def _word(value, words: dict, what: str, example: str) -> str | None:
+    if value is None:
+        return None
+    if isinstance(value, str):
+        key = " ".join(value.replace("_", " ").replace("-", " ").split()).lower()
+        key = {"gmaw s": "gmaw-s"}.get(key, key)
+        found = words.get(key) or words.get(key.replace(" ", "_"))
+        if found:
+            return found
+    raise ValueError(f"{what} must be {example}, or None when not recorded; not {value!r}.")
+
+
+def _progression(value) -> str | None:
+    return _word(value, _PROGRESSION_WORDS, "Vertical progression", "'up' or 'down'")
+
+
+def _backing(value) -> str | None:
+    return _word(value, _BACKING_WORDS, "Backing", "'with', 'without' or 'both sides' (ISO: ss mb, ss nb, bs)")
+
+
+def _transfer(value) -> str | None:
+    return _word(value, _TRANSFER_WORDS, "GMAW transfer", "'short_circuit', 'globular', 'spray' or 'pulsed'")
+
+
+def _process_and_transfer(instance, put):
+    """'GMAW-S' is GMAW with short-circuiting transfer; a transfer is for GMAW only."""
+    raw = instance.process.strip().upper().replace(" ", "") if isinstance(instance.process, str) else None
+    transfer = _transfer(instance.transfer)
+    if raw == "GMAW-S":
+        if transfer not in (None, "short_circuit"):
+            raise ValueError(f"Process GMAW-S is short-circuiting transfer, but transfer says {transfer!r}: give one "
+                             "or make them agree.")
+        put("process", "GMAW")
+        put("transfer", "short_circuit")
+        return
+    put("process", _process(instance.process))
+    if transfer is not None and instance.process != "GMAW":
+        raise ValueError(f"A metal transfer mode ({transfer}) applies to GMAW only, not {instance.process}.")
+    put("transfer", transfer)
+
+
+def _process_name(process: str, transfer: str | None) -> str:
+    if process == "GMAW" and transfer == "short_circuit":
+        return "GMAW-S"
+    if process == "GMAW" and transfer is not None:
+        return f"GMAW ({transfer.replace('_', '-')} transfer)"
+    return process
 
 
 def _bool(value, what) -> bool:
@@ -389,11 +484,16 @@ class QualificationFacts:
     revoked: bool = False
     iso_revalidation: str | None = None
     unit_system: str | None = None  # 'US' or 'SI' (AWS D1.1M figures); None: read from how the thickness is written
+    progression: str | None = None  # vertical progression of the test: 'up' or 'down'; None: not recorded
+    backing: str | None = None  # 'with', 'without' or 'both_sides' (ISO ss mb, ss nb, bs); None: not recorded
+    transfer: str | None = None  # GMAW: 'short_circuit' (GMAW-S), 'globular', 'spray', 'pulsed'; None: not recorded
 
     def __post_init__(self):
         put = _setter(self)
         put("code", _code(self.code))
-        put("process", _process(self.process))
+        _process_and_transfer(self, put)
+        put("progression", _progression(self.progression))
+        put("backing", _backing(self.backing))
         put("joint", _joint(self.joint))
         put("test_position", normalise_test_position(self.test_position, self.code))
         if self.unit_system is None:
@@ -422,7 +522,8 @@ class QualificationFacts:
     @property
     def label(self) -> str:
         who = f"Stamp {self.welder}'s" if self.welder else "This"
-        return f"{who} {self.process} {self.test_position} test of {self.test_date.isoformat()}"
+        process = "GMAW-S" if self.process == "GMAW" and self.transfer == "short_circuit" else self.process
+        return f"{who} {process} {self.test_position} test of {self.test_date.isoformat()}"
 
 
 _ALL_POSITIONS = set(AWS_POSITIONS) | set(ISO_POSITIONS)
@@ -459,11 +560,16 @@ class WeldDemand:
     thickness: Length
     electrode: str | None = None
     code: str = AWS
+    progression: str | None = None  # vertical welds: 'up' or 'down'; None: not stated
+    backing: str | None = None  # groove welds: 'with', 'without', 'both_sides'; None: not stated
+    transfer: str | None = None  # GMAW: 'short_circuit' (GMAW-S), 'globular', 'spray', 'pulsed'; None: not stated
 
     def __post_init__(self):
         put = _setter(self)
         put("code", _code(self.code))
-        put("process", _process(self.process))
+        _process_and_transfer(self, put)
+        put("progression", _progression(self.progression))
+        put("backing", _backing(self.backing))
         put("joint", _joint(self.joint))
         put("thickness", _thickness(self.thickness, "Base metal thickness at the weld"))
         put("electrode", _electrode(self.electrode))
@@ -499,10 +605,16 @@ class QualificationStatus:
     reason: str
 
 
+def _inches(length: Length) -> str:
+    """Inches as a fitter writes them; '≈' before a value that is rounded (a metric thickness to 1/32 in)."""
+    text = format_length(length, "US")
+    return text if parse_length(text.replace('"', " in")).mm == length.mm else f"≈{text}"
+
+
 def _show(length: Length, code: str) -> str:
     if code == ISO:
         return format_length(length, "SI")
-    return f"{format_length(length, 'US')} [{format_length(length, 'SI')}]"
+    return f"{_inches(length)} [{format_length(length, 'SI')}]"
 
 
 def _range_text(low: Length, high: Length | None, code: str) -> str:
@@ -558,8 +670,15 @@ def _not_in_force(q: QualificationFacts, on: date) -> list[str]:
     return reasons
 
 
-def _thickness_range(q: QualificationFacts) -> tuple[Length, Length | None]:
-    return thickness_qualified(q.test_thickness, q.joint, q.code, system=q.unit_system)
+def _thickness_range(q: QualificationFacts, weld_joint: str | None = None) -> tuple[Length, Length | None]:
+    """The range for the weld's joint type: a groove test covers fillets on 1/8 in and over (Table 6.11)."""
+    return thickness_qualified(q.test_thickness, q.joint, q.code, system=q.unit_system, weld=weld_joint)
+
+
+def _table_6_11(q: QualificationFacts, weld_joint: str) -> str:
+    if q.code != AWS:
+        return ""
+    return " Table 6.11, fillet row, from memory" if weld_joint == "fillet" else " Table 6.11"
 
 
 def _refusals(q: QualificationFacts, weld: WeldDemand, on: date) -> list[str]:
@@ -577,14 +696,51 @@ def _refusals(q: QualificationFacts, weld: WeldDemand, on: date) -> list[str]:
     elif weld.position not in qualified:
         reasons.append(f"{q.label} qualifies {weld.joint} welds in {', '.join(_order(qualified, known))}; "
                        f"this weld is {weld.position} ({source}{' Table 6.10' if q.code == AWS else ''}).")
-    low, high = _thickness_range(q)
+    low, high = _thickness_range(q, weld.joint)
     if weld.thickness < low or (high is not None and weld.thickness > high):
-        reasons.append(f"{q.label} on {_show(q.test_thickness, q.code)} plate qualifies "
+        reasons.append(f"{q.label} on {_show(q.test_thickness, q.code)} plate qualifies {weld.joint} welds on "
                        f"{_range_text(low, high, q.code)}; this weld is on {_show(weld.thickness, q.code)} "
-                       f"({source}{' Table 6.11' if q.code == AWS else ''}).")
+                       f"({source}{_table_6_11(q, weld.joint)}).")
     if q.code == AWS and q.process == weld.process == "SMAW":
         reasons.extend(_electrode_refusals(q, weld))
+    reasons.extend(_essential_refusals(q, weld))
     return reasons
+
+
+_TABLE_6_12 = f"{_AWS_SOURCE} Table 6.12, from memory"
+
+
+def _essential_refusals(q: QualificationFacts, weld: WeldDemand) -> list[str]:
+    """GMAW-S against other GMAW, vertical progression, omitted backing; only where both sides record the value."""
+    reasons = []
+    if q.code == AWS and q.process == weld.process == "GMAW" and q.transfer and weld.transfer and \
+            (q.transfer == "short_circuit") != (weld.transfer == "short_circuit"):
+        reasons.append(f"{q.label} was welded {_process_name(q.process, q.transfer)}; this weld is "
+                       f"{_process_name(weld.process, weld.transfer)}: GMAW-S and the other GMAW transfers qualify "
+                       f"apart ({_TABLE_6_12}).")
+    if q.code == AWS and weld.position == "V" and q.progression and weld.progression and \
+            q.progression != weld.progression:
+        reasons.append(f"{q.label} was welded vertical {q.progression}; this weld is vertical {weld.progression}: a "
+                       f"change of vertical progression needs a new test ({_TABLE_6_12}).")
+    if weld.joint == "groove" and q.joint == "groove" and q.backing and weld.backing and \
+            weld.backing not in BACKING_QUALIFIES[q.backing]:
+        names = _BACKING_NAMES[q.code]
+        source = _TABLE_6_12 if q.code == AWS else f"{_ISO_SOURCE} welding details, from memory"
+        reasons.append(f"{q.label} was welded {names[q.backing]}, which does not qualify welding "
+                       f"{names[weld.backing]} ({source}).")
+    return reasons
+
+
+def _not_checked(q: QualificationFacts, weld: WeldDemand) -> list[str]:
+    """The essential variables a check could not compare because one side does not record them."""
+    missing = []
+    if q.code == AWS and q.process == weld.process == "GMAW" and not (q.transfer and weld.transfer):
+        missing.append("GMAW transfer (GMAW-S or not)")
+    if q.code == AWS and weld.position == "V" and not (q.progression and weld.progression):
+        missing.append("vertical progression")
+    if weld.joint == "groove" and q.joint == "groove" and not (q.backing and weld.backing):
+        missing.append("backing")
+    return missing
 
 
 def _electrode_refusals(q: QualificationFacts, weld: WeldDemand) -> list[str]:
@@ -605,16 +761,22 @@ def _electrode_refusals(q: QualificationFacts, weld: WeldDemand) -> list[str]:
 
 
 def _acceptance(q: QualificationFacts, weld: WeldDemand, validity: _Validity) -> str:
-    low, high = _thickness_range(q)
+    low, high = _thickness_range(q, weld.joint)
     known = AWS_POSITIONS if q.code == AWS else ISO_POSITIONS
     qualified = positions_qualified(q.test_position, q.code, joint=q.joint)[weld.joint]
-    source = (f"{_AWS_SOURCE} Tables 6.10 and 6.11" if q.code == AWS
+    fillet_row = " (fillet row from memory)" if weld.joint == "fillet" else ""
+    source = (f"{_AWS_SOURCE} Tables 6.10 and 6.11{fillet_row}" if q.code == AWS
               else f"{_ISO_SOURCE}, position and thickness ranges from memory")
     text = (f"Covered by {q.label[0].lower() + q.label[1:]} on {_show(q.test_thickness, q.code)} plate: "
             f"{weld.joint} welds in {', '.join(_order(qualified, known))} on {_range_text(low, high, q.code)}")
     if q.code == AWS and q.process == "SMAW":
         text += f", electrode groups {', '.join(sorted(electrode_groups_qualified(q.electrode), reverse=True))}"
-    return f"{text}; valid until {validity.until.isoformat()} ({validity.explain(q)}) ({source})."
+    text = f"{text}; valid until {validity.until.isoformat()} ({validity.explain(q)}) ({source})."
+    missing = _not_checked(q, weld)
+    if missing:
+        text += (f" Not checked, not recorded on the test or the weld: {', '.join(missing)} "
+                 f"({_TABLE_6_12 if q.code == AWS else _ISO_SOURCE + ', from memory'}).")
+    return text
 
 
 def check_welder(qualifications, weld, on) -> Eligibility:

@@ -27,6 +27,7 @@ from procedures.heat_input import (
     heat_input,
     heat_input_range,
     heat_input_range_of,
+    method_findings,
 )
 from procedures.prequalified import Finding
 
@@ -223,3 +224,71 @@ def test_range_brackets_every_setting_inside_it(v1, v2, a1, a2, s1, s2):
         for a in (a_lo, a_hi):
             for s in (s_lo, s_hi):
                 assert r.minimum <= heat_input(v, a, f"{s} in/min") <= r.maximum
+
+
+# --- pulsed / waveform-controlled: ASME BPVC IX QW-409.1(c) (published): HI = energy / length, or
+# power x arc time / length ------------------------------------------------------------------------------------
+
+def test_heat_input_from_instantaneous_energy():  # QW-409.1(c): HI = energy / weld length
+    # 12.7 kJ over 10 in is 1.27 kJ/in; over 254 mm, 0.05 kJ/mm (worked by hand)
+    hi = heat_input(energy="12.7 kJ", weld_length="10 in")
+    assert hi.kj_per_in == Decimal("1.27") and hi.kj_per_mm == Decimal("0.05")
+    assert heat_input(energy="12700 J", weld_length="254 mm") == hi
+
+
+def test_heat_input_from_instantaneous_power_and_arc_time():  # QW-409.1(c): HI = power x arc time / weld length
+    # 5.2 kW for 45 s over 9 in: 234 kJ / 9 in = 26 kJ/in (worked by hand)
+    assert heat_input(power="5.2 kW", arc_time="45 s", weld_length="9 in").kj_per_in == Decimal("26")
+    assert heat_input(power="5200 W", arc_time="0.75 min", weld_length="9 in").kj_per_in == Decimal("26")
+
+
+def test_power_over_travel_speed_equals_volts_times_amps_at_the_same_power():
+    # 25 V x 200 A is 5 kW: at 10 in/min both forms give 30 kJ/in (common practice form and QW-409.1(c))
+    assert heat_input(power="5 kW", travel_speed="10 in/min") == heat_input("25 V", "200 A", "10 in/min")
+    assert heat_input(power="5 kW", travel_speed="10 in/min").kj_per_in == Decimal("30")
+
+
+@pytest.mark.parametrize("kwargs, part", [
+    (dict(energy="12700", weld_length="10 in"), "with its unit"),  # J or kJ? never guessed
+    (dict(energy="12.7 kJ"), "needs the weld length"),
+    (dict(energy="0 J", weld_length="10 in"), "more than zero"),
+    (dict(power="5 kW", arc_time="45 s"), "needs the arc time and the weld length"),
+    (dict(power="5 kW", energy="1 kJ", weld_length="1 in"), "not both"),
+    (dict(voltage="25 V", amperage="200 A", power="5 kW", travel_speed="10 in/min"), "not both"),
+    (dict(voltage="25 V", amperage="200 A", travel_speed="10 in/min", weld_length="10 in"), "not with volts"),
+    (dict(energy="12.7 kWh", weld_length="10 in"), "with its unit"),
+    (dict(voltage="25 V", amperage="200 A"), "needs the arc voltage, the current and the travel speed"),
+])
+def test_bad_pulsed_inputs_are_refused_in_words(kwargs, part):
+    with pytest.raises(ValueError) as info:
+        heat_input(**kwargs)
+    assert part in str(info.value)
+
+
+POWER_WPS = dict(transfer="pulsed", power_min="4.5 kW", power_max="6 kW", travel_speed_min="10 in/min",
+                 travel_speed_max="15 in/min")
+
+
+def test_wps_range_from_power():  # QW-409.1(c) with S = L / t: 4.5 kW at 15 in/min .. 6 kW at 10 in/min
+    heat = heat_input_range_of(POWER_WPS)
+    assert heat.minimum.kj_per_in == Decimal("18") and heat.maximum.kj_per_in == Decimal("36")  # by hand
+
+
+@pytest.mark.parametrize("pqr, flagged", [("36 kJ/in", False), ("35.9 kJ/in", True)])
+def test_power_range_against_its_pqr_at_and_just_past_the_limit(pqr, flagged):  # D1.1:2020 Table 6.5 (memory)
+    findings = check_against_pqrs(POWER_WPS, [pqr])
+    assert bool(findings) is flagged
+
+
+def test_pulsed_wps_judged_by_volts_and_amps_is_warned():  # QW-409.1(c): V x A does not give the arc energy
+    volts_amps = dict(transfer="pulsed", voltage_min="24 V", voltage_max="27 V", amperage_min="180 A",
+                      amperage_max="220 A", travel_speed_min="10 in/min", travel_speed_max="14 in/min")
+    (finding,) = method_findings(volts_amps)
+    assert finding.severity == "warning" and "QW-409.1(c)" in finding.source
+    assert method_findings(POWER_WPS) == []
+    assert method_findings(dict(volts_amps, transfer="spray")) == []
+
+
+def test_power_range_backwards_is_refused():
+    with pytest.raises(ValueError, match="minimum 6 kW is above"):
+        heat_input_range_of(dict(POWER_WPS, power_min="6 kW", power_max="4.5 kW"))

@@ -302,6 +302,20 @@ def test_interpass_maximum_below_the_minimum_is_flagged():  # Table 5.8: minimum
     assert finding.field == "interpass_max"
 
 
+@pytest.mark.parametrize("preheat, shown", [("-0.3 F", "0 °F"), ("-0.4 C", "0 °C")])
+def test_a_temperature_just_below_zero_prints_as_0_not_minus_0(preheat, shown):  # Table 5.8 Category B
+    thickness = "1 in" if preheat.endswith("F") else "25 mm"
+    finding = only(review(dict(process="SMAW", electrode="E7018", thickness_max=thickness, preheat_min=preheat)),
+                   "preheat")
+    assert f"Minimum preheat {shown} is below" in finding.message and "-0" not in finding.message
+
+
+def test_a_metric_size_rounded_to_inches_is_marked_approximate():  # AISC 360-16 Table J2.4: 1/2 in part, 3/16 in
+    finding = only(review(dict(process="SMAW", electrode="E7018", joint="fillet", unit_system="US",
+                               thickness_min="1/2 in", fillet_size_min="4.5 mm")), "minimum_fillet_size")
+    assert 'Fillet size ≈3/16" is under the 3/16" minimum' in finding.message
+
+
 # --- base metals and matching filler -----------------------------------------------------------
 
 @pytest.mark.parametrize("name, thickness, group", [
@@ -320,10 +334,107 @@ def test_base_metal_spellings(spelling):
     assert base_metal_group(spelling) == "II"
 
 
-def test_unknown_base_metal_is_a_warning():
-    finding = only(review(wps(base_metals=["ASTM A514"])), "base_metal_unknown")
-    assert finding.severity == "warning" and finding.field == "base_metals"
-    assert "not a prequalified base metal in this engine's table" in finding.message
+# AWS D1.1/D1.1M:2020 Table 5.3 groups as entered in procedures.base_metals. Group I = the Category A list of
+# D1.1:2015 Table 3.3 (published); other groups from memory unless marked.
+@pytest.mark.parametrize("name, group", [
+    ("ASTM A53 Gr B", "I"), ("ASTM A500 Gr B", "I"), ("ASTM A500 Gr C", "I"), ("ASTM A501 Gr A", "I"),
+    ("ASTM A709 Gr 36", "I"),
+    ("ASTM A501 Gr B", "II"), ("ASTM A529 Gr 50", "II"), ("ASTM A572 Gr 42", "II"), ("ASTM A572 Gr 55", "II"),
+    ("ASTM A588", "II"), ("ASTM A709 Gr 50W", "II"), ("ASTM A913 Gr 50", "II"), ("ASTM A1085", "II"),
+    ("ASTM A572 Gr 60", "III"), ("ASTM A572 Gr 65", "III"), ("ASTM A913 Gr 60", "III"), ("ASTM A913 Gr 65", "III"),
+    ("ASTM A709 Gr HPS 70W", "IV"),  # from memory, low confidence
+])
+def test_table_5_3_groups(name, group):  # AWS D1.1:2020 Table 5.3 (from memory; Group I membership published 2015)
+    assert base_metal_group(name, parse_length("1/2 in")) == group
+
+
+def test_a709_gr_36_is_group_ii_over_3_4_in():  # D1.1 Table 5.3: A709 Gr 36 <= 3/4 in [20 mm] Group I (published)
+    assert base_metal_group("ASTM A709 Gr 36", parse_length("3/4 in")) == "I"
+    assert base_metal_group("ASTM A709 Gr 36", parse_length("25/32 in")) == "II"
+    assert base_metal_group("ASTM A709 Gr 36", parse_length("20 mm"), "SI") == "I"
+    assert base_metal_group("ASTM A709 Gr 36", parse_length("21 mm"), "SI") == "II"
+
+
+def test_base_metal_not_in_the_table_cannot_be_prequalified():  # AWS D1.1:2020 clause 5: only Table 5.3 metals
+    finding = only(review(wps(base_metals=["EN 10025-2 S355J2"])), "base_metal_unknown")
+    assert finding.severity == "not_prequalified" and finding.field == "base_metals"
+    assert "EN 10025-2 S355J2 is not in the table of prequalified base metals" in finding.message
+    assert not is_prequalified(review(wps(base_metals=["ASTM A36", "ASTM A283 Gr C"])))
+
+
+@pytest.mark.parametrize("name", ["ASTM A514", "ASTM A517", "ASTM A709 Gr 100W", "ASTM A709 Gr HPS 100W"])
+def test_steels_approved_only_with_qualification_by_test(name):  # D1.1:2020 clause 6 test-only list (from memory)
+    finding = only(review(wps(base_metals=[name], electrode="E7018")), "base_metal_qualification_by_test")
+    assert finding.severity == "not_prequalified" and name in finding.message
+    assert "from memory" in finding.source or "from memory" in finding.message
+
+
+def test_a_specification_without_its_grade_is_asked_for_it():  # D1.1:2020 Table 5.3: A572 grades differ in group
+    finding = only(review(wps(base_metals=["ASTM A572"])), "base_metal_grade")
+    assert finding.severity == "not_prequalified" and "42, 50, 55, 60, 65" in finding.message
+
+
+# AWS D1.1/D1.1M:2020 Table 5.8 Category C (A572 Gr 60/65, A913 Gr 60/65): 50 F to 3/4 in, 150 F over 3/4 to
+# 1-1/2, 225 F over 1-1/2 to 2-1/2, 300 F over 2-1/2 (US published in an older edition's table; 2020 from memory).
+@pytest.mark.parametrize("thickness, at_minimum, just_below", [
+    ("3/4 in", "50 F", "49 F"), ("25/32 in", "150 F", "149 F"), ("1 in", "150 F", "149 F"),
+    ("1-1/2 in", "150 F", "149 F"), ("1-17/32 in", "225 F", "224 F"), ("2-1/2 in", "225 F", "224 F"),
+    ("2-17/32 in", "300 F", "299 F"),
+])
+def test_category_c_preheat_at_the_minimum_and_just_below(thickness, at_minimum, just_below):
+    base = dict(process="SMAW", electrode="E8018-C3", base_metals=["ASTM A572 Gr 65"], thickness_max=thickness)
+    assert review(dict(base, preheat_min=at_minimum)) == []
+    finding = only(review(dict(base, preheat_min=just_below)), "preheat")
+    assert "Category C (ASTM A572 Gr 65)" in finding.message and finding.severity == "not_prequalified"
+
+
+def test_a572_gr_65_at_1_in_with_50_f_is_not_prequalified():  # D1.1:2020 Table 5.8 Category C (see above)
+    findings = review(dict(process="FCAW", electrode="E71T-1C", base_metals=["ASTM A572 Gr 65"],
+                           thickness_max="1 in", preheat_min="50 F"))
+    assert ("preheat", "not_prequalified") in rules_of(findings)
+    assert ("matching_filler", "error") in rules_of(findings)  # Group III needs 80 ksi filler (from memory)
+
+
+def test_category_c_si_figures():  # D1.1:2020 Table 5.8 Category C, SI 10 C to 20 mm, 65 C to 38 mm (from memory)
+    base = dict(process="SMAW", electrode="E8018-C3", base_metals=["ASTM A913 Gr 60"])
+    assert review(dict(base, thickness_max="20 mm", preheat_min="10 C")) == []
+    assert only(review(dict(base, thickness_max="20 mm", preheat_min="9 C")), "preheat")
+    assert only(review(dict(base, thickness_max="21 mm", preheat_min="64 C")), "preheat")
+
+
+def test_a913_with_h8_filler_is_category_d():  # D1.1:2020 Table 5.8 Category D: 32 F all thicknesses (US
+    # published in an older edition's table; the H8 condition from memory)
+    base = dict(process="SMAW", electrode="E8018-C3 H8", base_metals=["ASTM A913 Gr 65"], thickness_max="3 in")
+    assert review(dict(base, preheat_min="32 F")) == []
+    assert only(review(dict(base, preheat_min="31 F")), "preheat")
+    # without a hydrogen designator of 8 or less it is Category C: over 2-1/2 in needs 300 F
+    finding = only(review(dict(base, electrode="E8018-C3", preheat_min="299 F")), "preheat")
+    assert "Category C" in finding.message
+    finding = only(review(dict(base, electrode="E8018-C3 H16", preheat_min="299 F")), "preheat")
+    assert "Category C" in finding.message
+
+
+def test_the_base_metal_needing_most_preheat_governs():  # D1.1:2020 Table 5.8: thickest part, each metal's category
+    base = dict(process="SMAW", electrode="E7018", base_metals=["ASTM A36", "ASTM A572 Gr 65"], thickness_max="3/4 in")
+    assert review(dict(base, preheat_min="50 F")) == []  # E7018 matches the lower group (A36) (from memory)
+    finding = only(review(dict(base, preheat_min="49 F")), "preheat")
+    assert "Category C (ASTM A572 Gr 65)" in finding.message
+
+
+def test_non_low_hydrogen_smaw_on_group_ii_has_no_category_but_is_not_matching():  # D1.1:2020 Table 5.8: Cat A is
+    # for Group I steels only; Group II needs low-hydrogen filler (from memory)
+    findings = review(dict(process="SMAW", electrode="E7014", base_metals=["ASTM A992"], thickness_max="1 in",
+                           preheat_min="32 F"))
+    assert rules_of(findings) == [("matching_filler", "not_prequalified")]
+
+
+def test_group_iii_smaw_needs_a5_5_low_hydrogen_80_ksi():  # D1.1:2020 matching filler, Group III (from memory)
+    assert only(review(wps(electrode="E7018", base_metals=["ASTM A572 Gr 60"])), "matching_filler").severity == \
+        "error"
+    assert review(wps(electrode="E8018-C3", base_metals=["ASTM A572 Gr 60"])) == []
+    finding = only(review(wps(electrode="E8013-G", current="AC", base_metals=["ASTM A572 Gr 60"])),
+                   "matching_filler")
+    assert finding.severity == "not_prequalified"
 
 
 def test_undermatching_filler_is_an_error():  # AWS D1.1:2020 clause 5 matching filler, Group II: E70XX (from memory)
@@ -368,6 +479,79 @@ def test_single_pass_flux_cored_is_not_matching():  # D1.1:2020 clause 5 exclude
     assert rules_of(findings) == [("matching_filler", "not_prequalified")]
 
 
+def test_single_pass_metal_cored_is_not_matching():  # D1.1:2020 clause 5 excludes E70C-GS (from memory)
+    findings = review(dict(process="GMAW", transfer="spray", electrode="E70C-GS", base_metals=["ASTM A36"]))
+    assert rules_of(findings) == [("matching_filler", "not_prequalified")]
+    assert review(dict(process="GMAW", transfer="spray", electrode="E70C-6M", base_metals=["ASTM A36"])) == []
+
+
+# --- shielding: AWS A5.20 usability types (from memory) ---------------------------------------------
+
+FCAW_FILLET = dict(process="FCAW", electrode="E71T-1C", current="DCEP", positions=["F"], joint="fillet",
+                   base_metals=["ASTM A36"], thickness_max="1/2 in", preheat_min="50 F")
+
+
+@pytest.mark.parametrize("process, electrode, current, gas, ok", [
+    ("FCAW-G", "E71T-1C", "DCEP", None, True),
+    ("FCAW-G", "E71T-8", "DCEN", None, False),  # T-8 is self-shielded (A5.20, from memory)
+    ("FCAW-S", "E71T-8", "DCEN", None, True),
+    ("FCAW-S", "E71T-1C", "DCEP", None, False),  # T-1 uses an external gas (A5.20, from memory)
+    ("FCAW", "E71T-8", "DCEN", "75Ar/25CO2", False),  # gas given to a self-shielded electrode
+    ("FCAW", "E71T-1C", "DCEP", "none", False),  # no gas for a gas-shielded electrode
+    ("FCAW", "E71T-1C", "DCEP", "100% CO2", True),
+    ("FCAW", "E71T-8", "DCEN", "none", True),
+    ("FCAW", "E71T-G", "DCEP", "none", True),  # T-G: shielding not specified by the classification
+    ("FCAW", "E71T-8", "DCEN", None, True),  # nothing said about shielding: nothing to disagree with
+])
+def test_process_and_electrode_shielding_agree(process, electrode, current, gas, ok):  # AWS A5.20 (from memory)
+    findings = review(dict(FCAW_FILLET, process=process, electrode=electrode, current=current, shielding_gas=gas))
+    if ok:
+        assert "shielding" not in [f.rule for f in findings], findings
+    else:
+        finding = only(findings, "shielding")
+        assert finding.severity == "error" and "A5.20" in finding.source and electrode in finding.message
+
+
+def test_fcaw_g_with_no_gas_contradicts_itself():
+    finding = only(review(dict(FCAW_FILLET, process="FCAW-G", shielding_gas="none")), "shielding")
+    assert finding.field == "shielding_gas"
+
+
+@pytest.mark.parametrize("electrode, gas, ok", [
+    ("E71T-1C", "100% CO2", True), ("E71T-1C", "75Ar/25CO2", False), ("E71T-1M", "75Ar/25CO2", True),
+    ("E71T-1M", "CO2", False), ("E71T-1M", "M21 (Ar + 18% CO2)", True), ("E71T-1C", "carbon dioxide", True),
+])
+def test_gas_designator_matches_the_gas(electrode, gas, ok):  # AWS A5.20 C = CO2, M = argon mix (published)
+    findings = review(dict(FCAW_FILLET, electrode=electrode, shielding_gas=gas))
+    assert (findings == []) is ok, findings
+    if not ok:
+        assert only(findings, "shielding_gas_designator").severity == "not_prequalified"
+
+
+def test_gmaw_needs_a_gas():  # GMAW is gas shielded by definition
+    assert only(review(dict(GMAW_FILLET, shielding_gas="none")), "shielding").severity == "error"
+    assert review(dict(GMAW_FILLET, shielding_gas="90Ar/10CO2")) == []
+
+
+# --- cyclically loaded fillet welds: D1.1:2020 clause 4 Part C, minimum 3/16 in [5 mm] (from memory) ---------
+
+@pytest.mark.parametrize("size, ok", [("3/16 in", True), ("5/32 in", False), ("5 mm", True), ("4.5 mm", False)])
+def test_cyclic_fillet_minimum_3_16_in(size, ok):  # D1.1:2020 clause 4 Part C (from memory)
+    base = wps(joint="fillet", thickness_min="1/4 in", fillet_size_min=size, loading="cyclic")
+    findings = review(base)
+    if ok:
+        assert findings == []
+    else:
+        finding = only(findings, "cyclic_fillet_size")
+        assert finding.severity == "error" and "from memory" in finding.source
+    assert "cyclic_fillet_size" not in [f.rule for f in review(dict(base, loading="static"))]
+
+
+def test_loading_must_be_static_or_cyclic():
+    with pytest.raises(ValueError, match="loading"):
+        review(wps(loading="fatigue"))
+
+
 # --- minimum fillet size: AISC 360-16 Table J2.4 ---------------------------------------------------
 
 @pytest.mark.parametrize("thinner, at_minimum, just_under", [
@@ -384,6 +568,37 @@ def test_minimum_fillet_at_the_j2_4_minimum_and_just_under(thinner, at_minimum, 
     assert review(dict(base, fillet_size_min=at_minimum)) == []
     finding = only(review(dict(base, fillet_size_min=just_under)), "minimum_fillet_size")
     assert finding.severity == "not_prequalified" and finding.field == "fillet_size_min" and "J2.4" in finding.source
+
+
+# AWS D1.1/D1.1M:2020 Table 7.7 note (from memory, high confidence): for non-low-hydrogen processes without
+# calculated preheat, T is the thicker part joined, and single-pass welds are used.
+@pytest.mark.parametrize("electrode, current, thicker, at_minimum, just_under", [
+    ("E7024", "AC", "3/4 in", "1/4 in", "7/32 in"),  # thicker 3/4 in: 1/4 in (the thinner 1/2 in would allow 3/16)
+    ("E6010", "DCEP", "3/4 in", "1/4 in", "3/16 in"),
+    ("E7024", "AC", "25/32 in", "5/16 in", "9/32 in"),  # thicker just over 3/4 in: 5/16 in
+    ("E6013", "AC", "1/2 in", "3/16 in", "5/32 in"),  # both parts 1/2 in: 3/16 in
+])
+def test_non_low_hydrogen_smaw_minimum_fillet_uses_the_thicker_part(electrode, current, thicker, at_minimum,
+                                                                    just_under):  # D1.1:2020 Table 7.7 note
+    base = dict(process="SMAW", electrode=electrode, current=current, joint="fillet", thickness_min="1/2 in",
+                thickness_max=thicker)
+    assert review(dict(base, fillet_size_min=at_minimum)) == []
+    finding = only(review(dict(base, fillet_size_min=just_under)), "minimum_fillet_size")
+    assert finding.severity == "not_prequalified" and "Table 7.7" in finding.source and "from memory" in finding.source
+    assert "thicker part" in finding.message and "not low hydrogen" in finding.message
+
+
+def test_low_hydrogen_smaw_minimum_fillet_still_uses_the_thinner_part():  # AISC 360-16 Table J2.4 (published)
+    base = dict(process="SMAW", electrode="E7018", joint="fillet", thickness_min="1/2 in", thickness_max="3/4 in")
+    assert review(dict(base, fillet_size_min="3/16 in")) == []
+
+
+def test_non_low_hydrogen_minimum_fillet_must_be_a_single_pass():  # D1.1:2020 Table 7.7 note (from memory)
+    base = dict(process="SMAW", electrode="E7024", current="AC", joint="fillet", positions=["F"],
+                thickness_min="1/2 in", thickness_max="3/4 in", fillet_size_min="1/4 in")
+    assert review(dict(base, single_pass_size_max="1/4 in")) == []
+    finding = only(review(dict(base, single_pass_size_max="7/32 in")), "minimum_fillet_single_pass")
+    assert finding.severity == "not_prequalified" and finding.field == "single_pass_size_max"
 
 
 def test_minimum_fillet_need_not_exceed_the_thinner_part():  # AISC / AWS minimum size note (from memory)

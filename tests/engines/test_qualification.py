@@ -448,7 +448,50 @@ def test_thickness_edges_of_a_3_8_in_test(thickness, allowed):  # AWS D1.1/D1.1M
     result = check_welder([facts()], weld(thickness=thickness), ON)
     assert result.allowed is allowed
     if not allowed:
-        assert '3/8" [9.53 mm] plate qualifies 1/8" [3.18 mm] to 3/4" [19.05 mm]' in result.reasons[0]
+        assert '3/8" [9.53 mm] plate qualifies groove welds on 1/8" [3.18 mm] to 3/4" [19.05 mm]' in result.reasons[0]
+
+
+# AWS D1.1/D1.1M:2020 Table 6.11, fillet rows (from memory, high confidence): a plate groove test qualifies fillet
+# welds on base metal 1/8 in [3 mm] and over, unlimited, whatever the test plate's thickness.
+@pytest.mark.parametrize(
+    "thickness, allowed",
+    [("1/8 in", True), ("0.12 in", False), ("3/4 in", True), ("0.76 in", True), ("1-1/2 in", True), ("6 in", True)],
+)
+def test_groove_test_covers_fillets_on_1_8_in_and_over(thickness, allowed):  # D1.1:2020 T6.11 fillet row, memory
+    record = facts(process="FCAW", test_position="3G+4G", electrode=None)
+    result = check_welder([record], weld(process="FCAW", joint="fillet", position="OH", thickness=thickness,
+                                         electrode=None), ON)
+    assert result.allowed is allowed, result.reasons
+    if allowed:
+        assert "fillet welds in F, H, V, OH on 1/8\" [3.18 mm] and over" in result.reasons[0]
+        assert "fillet row from memory" in result.reasons[0]
+    else:
+        assert "qualifies fillet welds on 1/8\" [3.18 mm] and over" in result.reasons[0]
+        assert "Table 6.11, fillet row, from memory" in result.reasons[0]
+
+
+def test_groove_test_still_limits_groove_welds_to_its_row():  # D1.1:2020 Table 6.11: 3/8 in test, 1/8 to 3/4 in
+    record = facts(process="FCAW", test_position="3G+4G", electrode=None)
+    result = check_welder([record], weld(process="FCAW", position="OH", thickness="1-1/2 in", electrode=None), ON)
+    assert not result.allowed
+    assert "qualifies groove welds on 1/8\" [3.18 mm] to 3/4\" [19.05 mm]" in result.reasons[0]
+
+
+@pytest.mark.parametrize("test", ["3/8 in", "1/2 in", "1 in", "10 mm"])
+def test_thickness_qualified_for_fillet_welds_from_a_groove_test(test):  # D1.1:2020 T6.11 fillet row, from memory
+    low, high = thickness_qualified(test, test="groove", weld="fillet")
+    assert high is None
+    assert low == (Length(Decimal(3)) if test.endswith("mm") else inches("1/8"))
+
+
+def test_thickness_qualified_weld_defaults_to_the_test_joint():  # D1.1:2020 Table 6.11 groove row (published)
+    assert thickness_qualified("3/8 in") == thickness_qualified("3/8 in", weld="groove")
+    with pytest.raises(ValueError, match="'groove'"):
+        thickness_qualified("3/8 in", weld="plug")
+
+
+def test_iso_butt_test_range_is_not_widened_for_fillets():  # ISO 9606-1:2012: fillet range of a butt test not entered
+    assert thickness_qualified("10 mm", code=ISO, weld="fillet") == thickness_qualified("10 mm", code=ISO)
 
 
 def test_continuity_holds_on_the_last_valid_day_and_lapses_the_next():
@@ -511,7 +554,7 @@ def test_every_refusal_of_every_record_is_listed():
     assert len(result.reasons) == 5
     text = " | ".join(result.reasons)
     for part in ("continuity lapsed on 2026-03-31", "qualifies no groove welds", "is for GMAW; this weld is SMAW",
-                 "qualifies 1/8\" [3.18 mm] to 3/4\" [19.05 mm]; this weld is on 1\" [25.4 mm]"):
+                 "qualifies groove welds on 1/8\" [3.18 mm] to 3/4\" [19.05 mm]; this weld is on 1\" [25.4 mm]"):
         assert part in text
 
 
@@ -716,3 +759,107 @@ def test_vertical_without_its_direction_is_refused_on_an_iso_weld():
 
     with pytest.raises(ValueError, match="PF .vertical up. or PG"):
         WeldDemand("GMAW", "fillet", "V", "10 mm", code="ISO 9606-1:2012")
+
+
+# --- essential variables: AWS D1.1/D1.1M:2020 Table 6.12 (from memory); ISO 9606-1:2012 (from memory) ---------
+
+def gmaw(**changes):
+    return facts(**{"process": "GMAW", "electrode": None, **changes})
+
+
+@pytest.mark.parametrize("test_transfer, weld_transfer, allowed", [
+    ("short_circuit", "short_circuit", True),
+    ("short_circuit", "spray", False),  # GMAW-S does not qualify the other transfers
+    ("spray", "short_circuit", False),  # nor the reverse
+    ("spray", "pulsed", True),  # other transfers among themselves: one process
+    ("globular", "spray", True),
+])
+def test_gmaw_s_qualifies_apart(test_transfer, weld_transfer, allowed):  # D1.1:2020 Table 6.12 (from memory)
+    result = check_welder([gmaw(transfer=test_transfer)],
+                          weld(process="GMAW", electrode=None, transfer=weld_transfer), ON)
+    assert result.allowed is allowed
+    if not allowed:
+        assert "GMAW-S and the other GMAW transfers qualify apart" in result.reasons[0]
+        assert "Table 6.12, from memory" in result.reasons[0]
+
+
+def test_gmaw_s_written_as_the_process():  # D1.1:2020 Table 6.12: GMAW-S a process of its own (from memory)
+    record = facts(process="GMAW-S", electrode=None)
+    assert record.process == "GMAW" and record.transfer == "short_circuit" and "GMAW-S 3G test" in record.label
+    assert not check_welder([record], weld(process="GMAW", electrode=None, transfer="spray"), ON).allowed
+    assert check_welder([record], weld(process="GMAW-S", electrode=None), ON).allowed
+    with pytest.raises(ValueError, match="GMAW-S is short-circuiting"):
+        facts(process="GMAW-S", transfer="spray", electrode=None)
+    with pytest.raises(ValueError, match="GMAW only"):
+        facts(transfer="spray")
+
+
+@pytest.mark.parametrize("test, weld_way, position, allowed", [
+    ("up", "up", "V", True), ("up", "down", "V", False), ("down", "up", "V", False), ("down", "down", "V", True),
+    ("up", "down", "F", True),  # progression is a vertical matter only
+])
+def test_vertical_progression(test, weld_way, position, allowed):  # D1.1:2020 Table 6.12 (from memory)
+    result = check_welder([facts(progression=test)], weld(progression=weld_way, position=position), ON)
+    assert result.allowed is allowed
+    if not allowed:
+        assert f"welded vertical {test}; this weld is vertical {weld_way}" in result.reasons[0]
+
+
+@pytest.mark.parametrize("test, weld_backing, allowed", [
+    ("without", "without", True), ("without", "with", True),  # without backing qualifies both
+    ("with", "with", True), ("with", "without", False),  # omitting backing needs a new test
+    ("both sides", "with", True), ("both sides", "without", False),  # both sides counts as with backing (memory)
+])
+def test_backing(test, weld_backing, allowed):  # D1.1:2020 Table 6.12 (from memory)
+    result = check_welder([facts(backing=test)], weld(backing=weld_backing), ON)
+    assert result.allowed is allowed
+    if not allowed:
+        assert "does not qualify welding without backing" in result.reasons[0]
+
+
+def test_backing_does_not_matter_for_fillet_welds():  # D1.1:2020 Table 6.12: backing is a groove-weld variable
+    assert check_welder([facts(backing="with")], weld(joint="fillet", backing="without"), ON).allowed
+
+
+@pytest.mark.parametrize("test, weld_backing, allowed", [
+    ("ss nb", "ss mb", True), ("ss nb", "bs", True), ("ss mb", "bs", True), ("bs", "ss mb", True),
+    ("ss mb", "ss nb", False), ("bs", "ss nb", False),
+])
+def test_iso_welding_details(test, weld_backing, allowed):  # ISO 9606-1:2012 welding details (from memory)
+    record = facts(code=ISO, test_position="PF", test_thickness="10 mm", electrode=None, backing=test)
+    result = check_welder([record], weld(code=ISO, position="PF", thickness="12 mm", electrode=None,
+                                         backing=weld_backing), date(2025, 6, 1))
+    assert result.allowed is allowed
+    if not allowed:
+        assert "which does not qualify welding ss nb" in result.reasons[0] and "from memory" in result.reasons[0]
+
+
+def test_absent_essential_variables_are_treated_as_matching_and_said_so():  # module docstring: no warning level
+    result = check_welder([facts()], weld(backing="without", progression="down"), ON)
+    assert result.allowed
+    assert "Not checked, not recorded on the test or the weld: vertical progression, backing" in result.reasons[0]
+    result = check_welder([gmaw(transfer="spray")], weld(process="GMAW", electrode=None), ON)
+    assert result.allowed and "GMAW transfer (GMAW-S or not)" in result.reasons[0]
+
+
+@pytest.mark.parametrize("field, bad", [("progression", "sideways"), ("backing", "ceramic tape"),
+                                        ("progression", 3), ("backing", True)])
+def test_bad_essential_variable_is_refused_in_words(field, bad):
+    with pytest.raises(ValueError, match="or None when not recorded"):
+        facts(**{field: bad})
+
+
+# --- printing: a metric value rounded to inches is marked '≈' ------------------------------------------------
+
+def test_a_rounded_inch_value_is_marked_approximate():
+    result = check_welder([facts()], weld(thickness="0.76 in"), ON)  # 0.76 in prints as the nearest 1/32, 3/4"
+    assert 'this weld is on ≈3/4" [19.3 mm]' in result.reasons[0]
+    result = check_welder([facts(test_thickness="10 mm")], weld(thickness="1 in"), ON)  # D1.1M: 10 mm test
+    assert '10 mm plate' not in result.reasons[0] and '≈13/32" [10 mm] plate' in result.reasons[0]
+    exact = check_welder([facts()], weld(thickness="1 in"), ON)
+    assert '3/8" [9.53 mm] plate' in exact.reasons[0] and "≈" not in exact.reasons[0]
+
+
+def test_thin_groove_test_refusal_marks_a_rounded_value():  # D1.1:2020 Table 6.11 starts at 3/8 in
+    with pytest.raises(ValueError, match='A ≈11/32" groove test'):
+        thickness_qualified(Length(Decimal(9)), system="US")

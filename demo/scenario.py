@@ -232,7 +232,7 @@ def _states(users, procedures):
         electrode_diameter=L("1/8 in"), current="AC", amperage_min=100, amperage_max=130, voltage_min=20,
         voltage_max=24, travel_speed_min=parse_speed("5 in/min"), travel_speed_max=parse_speed("9 in/min"),
         positions="F, H", joint_types="fillet", base_metals="ASTM A36", thickness_min=L("1/8 in"),
-        thickness_max=L("3/8 in"), fillet_size_min=L("1/8 in"), fillet_size_max=L("1/4 in"),
+        thickness_max=L("3/8 in"), fillet_size_min=L("3/16 in"), fillet_size_max=L("1/4 in"),
         single_pass_size_max=L("1/4 in"), preheat_min=parse_temperature("50 F"), created_by=engineer,
     )
     wps_steps.drafted(retired, engineer)

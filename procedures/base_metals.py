@@ -25,7 +25,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
-from legwork.units import Length, parse_length
+from core.units import Length, parse_length
 
 SOURCE_TABLE_5_3 = "AWS D1.1/D1.1M:2020 Table 5.3, approved base metals for prequalified WPSs by group"
 SOURCE_TABLE_5_8 = "AWS D1.1/D1.1M:2020 Table 5.8, prequalified minimum preheat and interpass temperature"

@@ -128,6 +128,12 @@ def _seed(existing: int, welds_per_assembly: int = 10, per_weld: int = 10):
                 Inspection.objects.bulk_create(batch)
                 batch = []
         Inspection.objects.bulk_create(batch)
+        # What sign_inspection keeps on each weld: its latest (final) inspection.
+        from django.db.models import Max
+        latest = dict(Inspection.objects.values_list("weld_id").annotate(Max("pk")))
+        for weld in welds:
+            weld.latest_inspection_id = weld.latest_final_id = latest.get(weld.pk)
+        Weld.objects.bulk_update(welds, ["latest_inspection", "latest_final"], batch_size=2000)
     session = SessionStore()
     session[SESSION_KEY] = str(inspector.pk)
     session[BACKEND_SESSION_KEY] = "django.contrib.auth.backends.ModelBackend"

@@ -16,11 +16,12 @@ standard prints them. A set with SI values only (ISO 5817) is judged and reporte
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, make_dataclass
 from decimal import Decimal
 
 from legwork.units import Length, UnitError, format_length, inch_fraction, length_system, parse_length, significant
 
+from . import observations
 from .criteria import CriteriaSet, derive, get_criteria, list_criteria, resolve
 from .criteria.base import SYSTEMS, Banded, Count, Limit, Permission, Proportional, Ratio, Threshold, is_measured
 
@@ -63,10 +64,9 @@ class Verdict:
 
 WELD_LENGTHS = ("size", "throat", "length", "thickness")
 WELD_FLAGS = ("primary_member", "transverse_to_tension", "stiffener_to_web")
-OBSERVED_LENGTHS = ("min_size", "undersize_length", "undercut_depth", "undercut_length", "porosity_sum_1in",
-                    "porosity_sum_12in", "pore_max", "convexity", "face_width", "throat", "crater_depth")
-OBSERVED_FLAGS = ("crack", "incomplete_fusion", "unfilled_crater", "overlap", "arc_strike")
-OBSERVED_COUNTS = ("pores_per_4in",)
+OBSERVED_LENGTHS = observations.LENGTHS
+OBSERVED_FLAGS = observations.FLAGS
+OBSERVED_COUNTS = observations.COUNTS
 
 
 @dataclass(frozen=True)
@@ -80,34 +80,33 @@ class Weld:
     stiffener_to_web: bool
 
 
-@dataclass(frozen=True)
-class Observed:
-    min_size: Length | None
-    undersize_length: Length | None
-    undercut_depth: Length | None
-    undercut_length: Length | None
-    porosity_sum_1in: Length | None
-    porosity_sum_12in: Length | None
-    pore_max: Length | None
-    convexity: Length | None
-    face_width: Length | None
-    throat: Length | None
-    crater_depth: Length | None
-    crack: bool
-    incomplete_fusion: bool
-    unfilled_crater: bool
-    overlap: bool
-    arc_strike: bool
-    pores_per_4in: int | None
+# One field per observation of the table (inspections.observations): a length, a count or a flag.
+_FIELD_TYPES = {"length": Length | None, "count": int | None, "flag": bool}
+Observed = make_dataclass("Observed", [(o.name, _FIELD_TYPES[o.kind]) for o in observations.OBSERVATIONS],
+                          frozen=True)
+Observed.__doc__ = "What the inspector saw, read from the observed dict (absent: None, or False for a flag)."
 
 
-def _read(data, what, lengths, flags, counts=(), extra=(), positive=()):
+_WHAT = {"weld": "The weld data", "observed": "The observations"}
+
+
+def _words(name: str, system: str = "US", what: str = "weld") -> str:
+    """The words for a key of the weld dict or the observed dict, as a person reads them."""
+    return observations.weld_label(name) if what == "weld" else observations.label(name, system)
+
+
+def _cap(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
+def _read(data, what, lengths, flags, counts=(), extra=(), positive=(), system="US"):
     if not isinstance(data, dict):
-        raise ValueError(f"{what} must be a dict such as {{'size': '1/4 in'}}, not {type(data).__name__}.")
+        raise ValueError(f"{_WHAT[what]} must be a dict such as {{'size': '1/4 in'}}, not {type(data).__name__}.")
     known = (*lengths, *flags, *counts, *extra)
     unknown = [k for k in data if k not in known]
     if unknown:
-        raise ValueError(f"{what} has unknown keys {', '.join(map(repr, unknown))}; the keys are: {', '.join(known)}.")
+        raise ValueError(f"{_WHAT[what]} hold {', '.join(map(repr, unknown))}, which this engine does not read; "
+                         f"it reads: {', '.join(_words(k, system, what) for k in known)}.")
     out = {}
     for key in lengths:
         value = data.get(key)
@@ -117,37 +116,58 @@ def _read(data, what, lengths, flags, counts=(), extra=(), positive=()):
         try:
             out[key] = parse_length(value)
         except UnitError as exc:
-            raise UnitError(f"{what}['{key}']: {exc} Leave the key out when nothing was measured.") from None
+            hint = " Leave it out when nothing was measured." if what == "observed" else ""
+            raise UnitError(f"{_cap(_words(key, system, what))}: {exc}{hint}") from None
         if key in positive and out[key] == ZERO:
-            raise ValueError(f"{what}['{key}'] cannot be zero: give the {key.replace('_', ' ')} such as '1/4 in'.")
+            raise ValueError(f"The {_words(key, system, what)} cannot be zero: give it such as "
+                             f"{'1/4 in' if system == 'US' else '6 mm'}.")
     for key in flags:
         value = data.get(key, False)
         if not isinstance(value, bool):
-            raise ValueError(f"{what}['{key}'] is True or False, not {value!r}.")
+            raise ValueError(f"{_cap(_words(key, system, what))} is yes or no (True or False), not {value!r}.")
         out[key] = value
     for key in counts:
         value = data.get(key)
         if isinstance(value, str) and value.strip().isdigit():
             value = int(value.strip())
         if key in data and (isinstance(value, bool) or not isinstance(value, int) or value < 0):
-            raise ValueError(f"{what}['{key}'] is a whole number of zero or more, such as 1, not {value!r}.")
+            raise ValueError(f"{_cap(_words(key, system, what))} is a whole number of zero or more, such as 1, "
+                             f"not {value!r}.")
         out[key] = value
     return out
 
 
+def _text_system(data) -> str:
+    """The system the words of an error are written for: the weld dict's system or its size's unit, else US."""
+    if isinstance(data, dict):
+        if data.get("system") in SYSTEMS:
+            return data["system"]
+        try:
+            return length_system(data["size"]) or "US"
+        except (KeyError, ValueError, TypeError):
+            pass
+    return "US"
+
+
 def read_weld(weld) -> Weld:
-    return Weld(**_read(weld, "weld", WELD_LENGTHS, WELD_FLAGS, extra=("system",), positive=WELD_LENGTHS))
+    return Weld(**_read(weld, "weld", WELD_LENGTHS, WELD_FLAGS, extra=("system",), positive=WELD_LENGTHS,
+                        system=_text_system(weld)))
 
 
-def read_observed(observed) -> Observed:
-    return Observed(**_read(observed, "observed", OBSERVED_LENGTHS, OBSERVED_FLAGS, OBSERVED_COUNTS))
+def read_observed(observed, system: str = "US") -> Observed:
+    return Observed(**_read(observed, "observed", OBSERVED_LENGTHS, OBSERVED_FLAGS, OBSERVED_COUNTS, system=system))
+
+
+def set_words(cset: CriteriaSet) -> str:
+    """The set as a person names it: its title up to the first comma ('ISO 5817:2014 quality level C')."""
+    return cset.title.split(",")[0].strip()
 
 
 def verdict_system(cset: CriteriaSet, weld) -> str:
     """The system whose values apply: weld['system'], else the unit the size is written in; SI-only sets: SI."""
     explicit = weld.get("system") if isinstance(weld, dict) else None
     if explicit is not None and explicit not in SYSTEMS:
-        raise ValueError(f"weld['system'] is 'US' or 'SI', not {explicit!r}.")
+        raise ValueError(f"The unit system of the job is 'US' or 'SI', not {explicit!r}.")
     size = weld.get("size") if isinstance(weld, dict) else None
     job = explicit or (length_system(size) if isinstance(size, str) else None)
     if job in cset.systems:
@@ -155,10 +175,10 @@ def verdict_system(cset: CriteriaSet, weld) -> str:
     if len(cset.systems) == 1:
         return cset.systems[0]
     if size is None:
-        raise ValueError(f"{cset.key} needs the specified leg as weld['size'] (such as '1/4 in' or '6 mm'); its "
-                         "unit decides whether the US or the SI values apply (or set weld['system']).")
-    raise ValueError(f"weld['size'] given as a Length carries no unit system: add weld['system'] = 'US' or 'SI' "
-                     f"so {cset.key} knows which of its printed values apply.")
+        raise ValueError(f"{set_words(cset)} needs the specified leg (such as '1/4 in' or '6 mm'); its unit "
+                         "decides whether the US or the SI values apply (or give the job's unit system).")
+    raise ValueError(f"The specified leg was given without a unit system (a computed length): give the job's unit "
+                     f"system, US or SI, so {set_words(cset)} knows which of its printed values apply.")
 
 
 # --- the job a check reads -----------------------------------------------------------------------------
@@ -185,14 +205,14 @@ class Job:
     def limit(self, name: str, *kinds) -> Limit:
         limit = self.cset.limit(name)
         if kinds and not isinstance(limit, kinds):
-            raise ValueError(f"Limit '{name}' of {self.cset.key} is a {limit.kind} limit; this check needs "
+            raise ValueError(f"Limit '{name}' of {set_words(self.cset)} is a {limit.kind} limit; this check needs "
                              f"{' or '.join(k.kind for k in kinds)}.")
         return limit
 
     def measured_limit(self, name: str) -> Limit:
         limit = self.cset.limit(name)
         if not is_measured(limit):
-            raise ValueError(f"Limit '{name}' of {self.cset.key} must give an allowance (a length, bands, a "
+            raise ValueError(f"Limit '{name}' of {set_words(self.cset)} must give an allowance (a length, bands, a "
                              f"proportional rule or 'not permitted'), not a {limit.kind} limit.")
         return limit
 
@@ -202,7 +222,7 @@ class Job:
     def needs(self, name: str, why: str) -> Length:
         value = getattr(self.weld, name)
         if value is None:
-            raise ValueError(f"weld['{name}'] is needed {why} ({self.cset.key}); give it such as "
+            raise ValueError(f"{set_words(self.cset)} needs the {_words(name)} {why}; give it such as "
                              f"{'1/2 in' if self.system == 'US' else '12 mm'}.")
         return value
 
@@ -300,13 +320,13 @@ def check_undersize(job: Job) -> Finding:
     size = job.needs("size", "to judge undersize (the specified leg)")
     smallest, under_length = job.seen.min_size, job.seen.undersize_length
     if smallest is None:
-        raise ValueError(f"{job.cset.key} judges the smallest leg: give observed['min_size'], the smallest leg "
-                         f"measured (such as {'3/16 in' if job.system == 'US' else '5 mm'}).")
+        raise ValueError(f"{set_words(job.cset)} judges the smallest leg: give the smallest leg measured (such as "
+                         f"{'3/16 in' if job.system == 'US' else '5 mm'}).")
     under = size - smallest
     if under <= ZERO:
         if _positive(under_length):
-            raise ValueError(f"observed['undersize_length'] is {job.fmt(under_length)}, but the smallest leg "
-                             f"{job.fmt(smallest)} is not under the specified {job.fmt(size)}: check both.")
+            raise ValueError(f"The length under the specified size is {job.fmt(under_length)}, but the smallest "
+                             f"leg {job.fmt(smallest)} is not under the specified {job.fmt(size)}: check both.")
         return job.finding("undersize", True, f"smallest leg {job.fmt(smallest)} is not under the specified "
                            f"{job.fmt(size)}", limit, applied=job.allowance(limit, size)[0], measured=ZERO)
     allowed, status = job.allowance(limit, size)
@@ -320,7 +340,7 @@ def check_undersize(job: Job) -> Finding:
                               f"{_percent(portion.value)} of the weld length)", limit, measured=under)
     length = job.needs("length", "to judge the undersize portion of the weld length")
     if under_length > length:
-        raise ValueError(f"observed['undersize_length'] {job.fmt(under_length)} is longer than the weld "
+        raise ValueError(f"The length under the specified size ({job.fmt(under_length)}) is longer than the weld "
                          f"({job.fmt(length)}): check both.")
     share = under_length / length
     ok = share <= portion.value
@@ -370,8 +390,8 @@ def check_undercut_by_thickness(job: Job) -> Finding:
         return job.unmeasured("undercut", f"{deeper}: measure the accumulated length deeper than "
                               f"{job.fmt(allowed)} in the worst {job.fmt(window)}", short, measured=depth)
     if accumulated > window:
-        raise ValueError(f"observed['undercut_length'] is the accumulated length in the worst {job.fmt(window)}; "
-                         f"{job.fmt(accumulated)} is longer than that window.")
+        raise ValueError(f"The undercut length over the general limit is counted in the worst {job.fmt(window)}; "
+                         f"{job.fmt(accumulated)} is longer than that stretch of weld.")
     ok = _within(accumulated, most)
     return job.finding("undercut", ok, f"{deeper}; {job.fmt(accumulated)} accumulated is deeper than "
                        f"{job.fmt(allowed)}", length_limit,
@@ -474,11 +494,11 @@ def check_undercut_depth(job: Job) -> Finding:
 
 def check_throat(job: Job) -> Finding:
     """ISO 5817 5213 (too small, short imperfections) and 5214 (too large) against the nominal throat a."""
-    nominal = job.needs("throat", "for ISO 5817 (the nominal throat a)")
+    nominal = job.needs("throat", "to judge the throat")
     measured = job.seen.throat
     if measured is None:
-        raise ValueError(f"{job.cset.key} judges the throat (5213/5214), not the leg: give observed['throat'], "
-                         "the measured throat a (such as '4.5 mm').")
+        raise ValueError(f"{set_words(job.cset)} judges the throat a (items 5213/5214): give the smallest throat "
+                         "measured (such as 4.5 mm).")
     if measured < nominal:
         h = nominal - measured
         return _judge(job, "throat", job.measured_limit("throat_small"), h, nominal,
@@ -518,7 +538,7 @@ def check_crater_pipe(job: Job) -> Finding:
         return job.finding("crater", False, "end crater pipe seen: not permitted", limit, applied=ZERO,
                            measured=depth)
     if depth is None:
-        return job.unmeasured("crater", "end crater pipe seen: measure its depth (observed['crater_depth'])", limit)
+        return job.unmeasured("crater", "end crater pipe seen: measure its depth", limit)
     t = job.needs("thickness", "to judge an end crater pipe (h against t)")
     return _judge(job, "crater", limit, depth, t, f"end crater pipe {job.fmt(depth)} deep, t = {job.fmt(t)}")
 
@@ -546,8 +566,8 @@ def _in_scope(job: Job) -> None:
     if "applies_above_thickness" in job.cset.limits and job.weld.thickness is not None:
         floor = job.threshold("applies_above_thickness")
         if job.weld.thickness <= floor:
-            raise ValueError(f"{job.cset.key} holds the limits for t > {job.fmt(floor)} only; weld['thickness'] is "
-                             f"{job.fmt(job.weld.thickness)}.")
+            raise ValueError(f"{set_words(job.cset)} holds the limits for material thicker than {job.fmt(floor)} "
+                             f"only; the base metal thickness given is {job.fmt(job.weld.thickness)}.")
 
 
 def evaluate(criteria, weld, observed) -> Verdict:
@@ -559,11 +579,12 @@ def evaluate(criteria, weld, observed) -> Verdict:
     cset = resolve(criteria)
     unknown = [name for name in cset.checks if name not in CHECKS]
     if unknown:
-        raise ValueError(f"{cset.key} names unknown checks {', '.join(unknown)}; the checks are: "
+        raise ValueError(f"{set_words(cset)} names unknown checks {', '.join(unknown)}; the checks are: "
                          f"{', '.join(CHECKS)}.")
     parsed_weld = read_weld(weld)
-    seen = read_observed(observed)
-    job = Job(cset=cset, system=verdict_system(cset, weld), weld=parsed_weld, seen=seen)
+    system = verdict_system(cset, weld)
+    seen = read_observed(observed, system)
+    job = Job(cset=cset, system=system, weld=parsed_weld, seen=seen)
     _in_scope(job)
     findings = tuple(CHECKS[name](job) for name in cset.checks)
     return Verdict(accepted=all(f.ok for f in findings), findings=findings, criteria_key=cset.key,

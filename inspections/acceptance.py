@@ -24,6 +24,7 @@ from legwork.units import Length, UnitError, format_length, inch_fraction, lengt
 from . import observations
 from .criteria import CriteriaSet, derive, get_criteria, list_criteria, resolve
 from .criteria.base import SYSTEMS, Banded, Count, Limit, Permission, Proportional, Ratio, Threshold, is_measured
+from .strength import THROAT_EQUAL_LEGS, effective_throat
 
 __all__ = ["CHECKS", "Finding", "Verdict", "derive", "evaluate", "get_criteria", "list_criteria"]
 
@@ -492,23 +493,49 @@ def check_undercut_depth(job: Job) -> Finding:
                   f"undercut {job.fmt(job.seen.undercut_depth)} deep, t = {job.fmt(t)}")
 
 
+def nominal_throat(job: Job) -> tuple[Length, Length]:
+    """(a, z): the nominal throat and leg of an ISO weld from weld['throat'] and/or weld['size'] (ISO 2553: a, z).
+
+    Only the leg given: a is its effective throat (inspections.strength.effective_throat, 0.707 z for equal legs).
+    Only the throat given: z = a / 0.707, for the message only. Both given: each as given (a deep-penetration
+    weld may have a larger a than its legs show)."""
+    a, z = job.weld.throat, job.weld.size
+    if a is None and z is None:
+        raise ValueError(f"{set_words(job.cset)} judges the throat against the nominal throat a: give the specified "
+                         "throat a or the specified leg z (such as 5 mm or 7 mm).")
+    if a is None:
+        a = effective_throat(z)
+    if z is None:
+        z = Length(a.mm / THROAT_EQUAL_LEGS)
+    return a, z
+
+
+def measured_throat(job: Job) -> tuple[Length, str]:
+    """The measured throat a and how it was had: measured with a throat gauge, or from the smallest leg z."""
+    if job.seen.throat is not None:
+        return job.seen.throat, f"throat a = {job.fmt(job.seen.throat)} measured"
+    if job.seen.min_size is not None:
+        a = effective_throat(job.seen.min_size)
+        return a, f"throat a = {job.fmt(a)} (a = 0.707 x z measured, z = {job.fmt(job.seen.min_size)})"
+    raise ValueError(f"{set_words(job.cset)} judges the throat a (items 5213/5214): give the smallest throat "
+                     "measured (such as 4.5 mm), or the smallest leg measured, whose effective throat is then "
+                     "judged.")
+
+
 def check_throat(job: Job) -> Finding:
     """ISO 5817 5213 (too small, short imperfections) and 5214 (too large) against the nominal throat a."""
-    nominal = job.needs("throat", "to judge the throat")
-    measured = job.seen.throat
-    if measured is None:
-        raise ValueError(f"{set_words(job.cset)} judges the throat a (items 5213/5214): give the smallest throat "
-                         "measured (such as 4.5 mm).")
+    nominal, leg = nominal_throat(job)
+    measured, how = measured_throat(job)
+    against = f"the nominal a = {job.fmt(nominal)} (z = {job.fmt(leg)})"
     if measured < nominal:
         h = nominal - measured
         return _judge(job, "throat", job.measured_limit("throat_small"), h, nominal,
-                      f"throat {job.fmt(measured)} is {job.fmt(h)} under the nominal a = {job.fmt(nominal)}")
+                      f"{how} is {job.fmt(h)} under {against}")
     if measured > nominal:
         h = measured - nominal
         return _judge(job, "throat", job.measured_limit("throat_large"), h, nominal,
-                      f"throat {job.fmt(measured)} is {job.fmt(h)} over the nominal a = {job.fmt(nominal)}")
-    return job.finding("throat", True, f"throat {job.fmt(measured)} equals the nominal a", job.limit("throat_small"),
-                       measured=ZERO)
+                      f"{how} is {job.fmt(h)} over {against}")
+    return job.finding("throat", True, f"{how} equals {against}", job.limit("throat_small"), measured=ZERO)
 
 
 def check_surface_pore(job: Job) -> Finding:
@@ -523,7 +550,7 @@ def check_surface_pore(job: Job) -> Finding:
                            measured=seen.pore_max)
     if seen.pore_max is None:
         return job.unmeasured("porosity", "surface pore seen: measure the largest pore diameter", limit)
-    nominal = job.needs("throat", "to judge a surface pore (d against a)")
+    nominal, _ = nominal_throat(job)
     return _judge(job, "porosity", limit, seen.pore_max, nominal,
                   f"largest surface pore {job.fmt(seen.pore_max)}, a = {job.fmt(nominal)}", symbol="d")
 

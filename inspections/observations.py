@@ -42,8 +42,9 @@ def _same(name, kind, label, help, read_by):
 
 OBSERVATIONS: tuple[Observation, ...] = (
     _same("min_size", "length", "Smallest leg measured",
-          "The smallest leg (z) the fillet gauge reads anywhere along the weld.",
-          ("undersize",)),
+          "The smallest leg (z) the fillet gauge reads anywhere along the weld; on ISO jobs without a measured "
+          "throat, its effective throat is judged.",
+          ("undersize", "throat")),
     _same("undersize_length", "length", "Length under the specified size",
           "Total length of weld whose leg is under the specified size.",
           ("undersize",)),

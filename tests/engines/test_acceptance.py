@@ -443,11 +443,36 @@ def test_iso_judges_a_us_job_in_millimetres():
     assert verdict.system == "SI" and not f.ok and "0.51 mm" in f.message and "0.5 mm" in f.message
 
 
-def test_iso_sets_need_the_nominal_and_the_measured_throat():
-    with pytest.raises(ValueError, match="throat"):
-        evaluate(ISO_C, {"size": "7 mm", "thickness": "10 mm"}, {"throat": "5 mm"})
-    with pytest.raises(ValueError, match="throat"):
-        evaluate(ISO_C, {"size": "7 mm", "throat": "5 mm", "thickness": "10 mm"}, {"min_size": "7 mm"})
+def test_iso_sets_need_a_nominal_and_a_measured_throat_or_leg():
+    with pytest.raises(ValueError, match="specified throat a or the specified leg z"):
+        evaluate(ISO_C, {"thickness": "10 mm", "length": "300 mm"}, {"throat": "5 mm"})
+    with pytest.raises(ValueError, match="smallest throat measured"):
+        evaluate(ISO_C, {"size": "7 mm", "throat": "5 mm", "thickness": "10 mm"}, {})
+
+
+def test_iso_nominal_throat_from_the_specified_leg_and_leg_from_the_throat_are_both_reported():
+    # ISO 2553 notation: a throat, z leg; a = 0.707 z for equal legs (AISC 360-16 J2.2a, geometry)
+    by_leg = finding(evaluate(ISO_C, {"size": "7 mm", "length": "300 mm", "thickness": "10 mm"},
+                              {"throat": "4.95 mm"}), "throat")
+    assert "a = 4.95 mm (z = 7 mm)" in by_leg.message and by_leg.ok  # 0.707 x 7 = 4.949: 0.001 under
+    by_throat = finding(evaluate(ISO_C, {"throat": "5 mm", "length": "300 mm", "thickness": "10 mm"},
+                                 {"throat": "5 mm"}), "throat")
+    assert "a = 5 mm (z = 7.07 mm)" in by_throat.message and by_throat.ok  # 5 / 0.707 = 7.072
+
+
+@pytest.mark.parametrize("nominal,accepted", [("8.07 mm", True), ("8.08 mm", False)])
+def test_iso_judges_the_effective_throat_of_the_smallest_leg_when_no_throat_was_measured(nominal, accepted):
+    # ISO 5817:2014 5213 (from memory for 2014), level C: h <= 0.3 mm + 0.1 a, max 1 mm. z = 10 mm measured:
+    # a = 0.707 x 10 = 7.07 mm; nominal 8.07 mm: h = 1 mm, the cap, accepted; 8.08 mm: 1.01 mm, rejected.
+    f = finding(evaluate(ISO_C, {"throat": nominal, "length": "300 mm", "thickness": "10 mm"},
+                         {"min_size": "10 mm"}), "throat")
+    assert f.ok is accepted
+    assert "a = 0.707 x z measured, z = 10 mm" in f.message and "throat a = 7.07 mm" in f.message
+
+
+def test_a_measured_throat_is_judged_before_the_leg():
+    f = finding(iso(ISO_C, {"throat": "5 mm", "min_size": "6 mm"}), "throat")
+    assert f.ok and "0.707 x z" not in f.message
 
 
 def test_iso_sets_hold_the_limits_for_material_over_3_mm_only():

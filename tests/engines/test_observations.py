@@ -159,7 +159,8 @@ _BAD = [
     *((STATIC, _AWS_WELD, {"min_size": "1/4 in", name: "quarter"}) for name in obs.LENGTHS),
     *((STATIC, _AWS_WELD, {"min_size": "1/4 in", name: "no"}) for name in obs.FLAGS),
     *((STATIC, {**_AWS_WELD, name: "-1 in"}, {"min_size": "1/4 in"}) for name in ("size", "length", "thickness")),
-    *((key, {k: v for k, v in _ISO_WELD.items() if k != "throat"}, {"throat": "5 mm"}) for key in ISO_KEYS),
+    *((key, {k: v for k, v in _ISO_WELD.items() if k not in ("throat", "size")}, {"throat": "5 mm"})
+      for key in ISO_KEYS),
     *((key, _ISO_WELD, {}) for key in ISO_KEYS),
     *((key, {**_ISO_WELD, "thickness": "3 mm"}, {"throat": "5 mm"}) for key in ISO_KEYS),
     *((key, {k: v for k, v in _ISO_WELD.items() if k != "thickness"}, {"throat": "5 mm", "undercut_depth": "0.2 mm"})

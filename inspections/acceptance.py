@@ -16,14 +16,23 @@ standard prints them. A set with SI values only (ISO 5817) is judged and reporte
 
 from __future__ import annotations
 
-from dataclasses import dataclass, make_dataclass
+from dataclasses import dataclass, make_dataclass, replace
 from decimal import Decimal
 
-from legwork.units import Length, UnitError, format_length, inch_fraction, length_system, parse_length, significant
+from legwork.units import (
+    Length,
+    UnitError,
+    format_length,
+    inch_fraction,
+    length_system,
+    parse_angle,
+    parse_length,
+    significant,
+)
 
 from . import observations
 from .criteria import CriteriaSet, derive, get_criteria, list_criteria, resolve
-from .criteria.base import SYSTEMS, Banded, Count, Limit, Permission, Proportional, Ratio, Threshold, is_measured
+from .criteria.base import SYSTEMS, Angle, Banded, Count, Limit, Permission, Proportional, Ratio, Threshold, is_measured
 from .strength import THROAT_EQUAL_LEGS, effective_throat
 
 __all__ = ["CHECKS", "Finding", "Verdict", "derive", "evaluate", "get_criteria", "list_criteria"]
@@ -68,6 +77,7 @@ WELD_FLAGS = ("primary_member", "transverse_to_tension", "stiffener_to_web")
 OBSERVED_LENGTHS = observations.LENGTHS
 OBSERVED_FLAGS = observations.FLAGS
 OBSERVED_COUNTS = observations.COUNTS
+OBSERVED_ANGLES = observations.ANGLES
 
 
 @dataclass(frozen=True)
@@ -82,7 +92,7 @@ class Weld:
 
 
 # One field per observation of the table (inspections.observations): a length, a count or a flag.
-_FIELD_TYPES = {"length": Length | None, "count": int | None, "flag": bool}
+_FIELD_TYPES = {"length": Length | None, "count": int | None, "flag": bool, "angle": Decimal | None}
 Observed = make_dataclass("Observed", [(o.name, _FIELD_TYPES[o.kind]) for o in observations.OBSERVATIONS],
                           frozen=True)
 Observed.__doc__ = "What the inspector saw, read from the observed dict (absent: None, or False for a flag)."
@@ -100,10 +110,10 @@ def _cap(text: str) -> str:
     return text[:1].upper() + text[1:]
 
 
-def _read(data, what, lengths, flags, counts=(), extra=(), positive=(), system="US"):
+def _read(data, what, lengths, flags, counts=(), extra=(), positive=(), system="US", angles=()):
     if not isinstance(data, dict):
         raise ValueError(f"{_WHAT[what]} must be a dict such as {{'size': '1/4 in'}}, not {type(data).__name__}.")
-    known = (*lengths, *flags, *counts, *extra)
+    known = (*lengths, *counts, *angles, *flags, *extra)
     unknown = [k for k in data if k not in known]
     if unknown:
         raise ValueError(f"{_WHAT[what]} hold {', '.join(map(repr, unknown))}, which this engine does not read; "
@@ -135,6 +145,16 @@ def _read(data, what, lengths, flags, counts=(), extra=(), positive=(), system="
             raise ValueError(f"{_cap(_words(key, system, what))} is a whole number of zero or more, such as 1, "
                              f"not {value!r}.")
         out[key] = value
+    for key in angles:
+        if key not in data:
+            out[key] = None
+            continue
+        try:
+            out[key] = parse_angle(data[key], 0, 180)
+        except UnitError as exc:
+            raise UnitError(f"{_cap(_words(key, system, what))}: {exc}") from None
+        if out[key] == 0:
+            raise ValueError(f"{_cap(_words(key, system, what))} cannot be 0°: give it in degrees such as 120°.")
     return out
 
 
@@ -156,7 +176,8 @@ def read_weld(weld) -> Weld:
 
 
 def read_observed(observed, system: str = "US") -> Observed:
-    return Observed(**_read(observed, "observed", OBSERVED_LENGTHS, OBSERVED_FLAGS, OBSERVED_COUNTS, system=system))
+    return Observed(**_read(observed, "observed", OBSERVED_LENGTHS, OBSERVED_FLAGS, OBSERVED_COUNTS, system=system,
+                            angles=OBSERVED_ANGLES))
 
 
 def set_words(cset: CriteriaSet) -> str:
@@ -289,7 +310,25 @@ def _flag(job: Job, criterion: str, seen: bool, what: str) -> Finding:
 
 
 def check_crack(job: Job) -> Finding:
-    return _flag(job, "crack", job.seen.crack, "crack")
+    """A crack; where the set has no crater-crack line of its own (AWS D1.1), a crater crack is a crack too."""
+    if "crater_crack" in job.cset.checks or not job.seen.crater_crack:
+        return _flag(job, "crack", job.seen.crack, "crack")
+    return _flag(job, "crack", True, "crack (in a crater)" if not job.seen.crack else "crack, also in a crater")
+
+
+def check_crater_crack(job: Job) -> Finding:
+    """ISO 5817 104 crater crack."""
+    return _flag(job, "crater_crack", job.seen.crater_crack, "crater crack")
+
+
+def check_poor_restart(job: Job) -> Finding:
+    """ISO 5817 517 poor restart."""
+    return _flag(job, "poor_restart", job.seen.poor_restart, "poor restart")
+
+
+def check_spatter(job: Job) -> Finding:
+    """ISO 5817 602 spatter."""
+    return _flag(job, "spatter", job.seen.spatter, "spatter")
 
 
 def check_fusion(job: Job) -> Finding:
@@ -523,19 +562,114 @@ def measured_throat(job: Job) -> tuple[Length, str]:
 
 
 def check_throat(job: Job) -> Finding:
-    """ISO 5817 5213 (too small, short imperfections) and 5214 (too large) against the nominal throat a."""
+    """ISO 5817 5213 (too small: short imperfections only) and 5214 (too large) against the nominal throat a."""
     nominal, leg = nominal_throat(job)
     measured, how = measured_throat(job)
     against = f"the nominal a = {job.fmt(nominal)} (z = {job.fmt(leg)})"
+    short_length = job.seen.throat_short_length
     if measured < nominal:
-        h = nominal - measured
-        return _judge(job, "throat", job.measured_limit("throat_small"), h, nominal,
-                      f"{how} is {job.fmt(h)} under {against}")
+        return _throat_shortfall(job, nominal, measured, f"{how} is {job.fmt(nominal - measured)} under {against}")
+    if _positive(short_length):
+        raise ValueError(f"The length with the throat under nominal is {job.fmt(short_length)}, but the throat "
+                         f"judged ({job.fmt(measured)}) is not under the nominal a = {job.fmt(nominal)}: check both.")
     if measured > nominal:
         h = measured - nominal
         return _judge(job, "throat", job.measured_limit("throat_large"), h, nominal,
                       f"{how} is {job.fmt(h)} over {against}")
     return job.finding("throat", True, f"{how} equals {against}", job.limit("throat_small"), measured=ZERO)
+
+
+def _throat_shortfall(job: Job, nominal: Length, measured: Length, text: str) -> Finding:
+    """5213: the depth h against its limit, then its length: only a short imperfection is permitted (ISO 5817:2014,
+    short imperfection: at most 25 mm in any 100 mm of weld, or 25 % of a weld shorter than 100 mm)."""
+    limit = job.measured_limit("throat_small")
+    h = nominal - measured
+    allowed, status = job.allowance(limit, nominal)
+    text = f"{text}; {job.rule_text(limit, allowed)}"
+    if not _within(h, allowed):
+        return job.finding("throat", False, text, limit, status=status, applied=allowed, measured=h)
+    window = job.threshold("short_imperfection_window")
+    length = job.seen.throat_short_length
+    if length is None:
+        return job.unmeasured("throat", f"{text}; only a short shortfall is permitted: measure the length with the "
+                              f"throat under nominal in the worst {job.fmt(window)}", limit, measured=h)
+    weld_length = job.needs("length", "to judge the length of a throat shortfall")
+    if length > min(window, weld_length):
+        raise ValueError(f"The length with the throat under nominal is counted in the worst {job.fmt(window)} of "
+                         f"weld; {job.fmt(length)} is longer than that (or than the {job.fmt(weld_length)} weld).")
+    if weld_length < window:
+        share = job.limit("short_imperfection_share", Ratio)
+        most, rule = weld_length * share.value, share
+        what = f"{_percent(share.value)} of a weld shorter than {job.fmt(window)}"
+    else:
+        rule = job.measured_limit("short_imperfection")
+        most = job.allowance(rule)[0]
+        what = f"{job.fmt(most)} in any {job.fmt(window)} of weld"
+    ok = _within(length, most)
+    text += (f"; under nominal for {job.fmt(length)}: a short imperfection is at most {what} ({job.fmt(most)})"
+             + ("" if ok else ", so this longer shortfall is not permitted"))
+    found = job.finding("throat", ok, text, limit, status=status, applied=allowed, measured=h)
+    return replace(found, source=f"{found.source}; {rule.cite()}")
+
+
+def check_asymmetry(job: Job) -> Finding:
+    """ISO 5817 512 excessive asymmetry: the difference of the legs h against plus + factor a (unequal legs not
+    prescribed)."""
+    limit = job.measured_limit("asymmetry")
+    difference = job.seen.leg_difference
+    if not _positive(difference):
+        return job.finding("asymmetry", True, "no difference between the legs measured", limit, measured=ZERO)
+    nominal, _ = nominal_throat(job)
+    return _judge(job, "asymmetry", limit, difference, nominal,
+                  f"legs differ by {job.fmt(difference)}, a = {job.fmt(nominal)}")
+
+
+def check_weld_toe(job: Job) -> Finding:
+    """ISO 5817 505 incorrect weld toe: the toe angle alpha at least the set's smallest angle."""
+    limit = job.limit("weld_toe", Angle)
+    angle = job.seen.toe_angle
+    if angle is None:
+        return job.finding("weld_toe", True, "no sharp weld toe seen (toe angle not measured)", limit)
+    ok = angle >= limit.minimum
+    return job.finding("weld_toe", ok, f"sharpest weld toe angle {_degrees(angle)}; the toe angle must be at least "
+                       f"{_degrees(limit.minimum)}", limit, applied=limit.minimum, measured=angle)
+
+
+def _degrees(value: Decimal) -> str:
+    return f"{format(value.normalize(), 'f')}\u00b0"
+
+
+def check_root_gap(job: Job) -> Finding:
+    """ISO 5817 617 incorrect root gap for fillet welds: h against plus + factor a, capped."""
+    limit = job.measured_limit("root_gap")
+    gap = job.seen.root_gap
+    if not _positive(gap):
+        return job.finding("root_gap", True, "no root gap measured", limit, measured=ZERO)
+    nominal, _ = nominal_throat(job)
+    finding = _judge(job, "root_gap", limit, gap, nominal, f"root gap {job.fmt(gap)}, a = {job.fmt(nominal)}")
+    if finding.ok:
+        return finding
+    return replace(finding, message=finding.message.replace(
+        " \u2014 rejected", "; a larger throat may in certain cases make up for the gap: the engineer decides "
+                            "\u2014 rejected"))
+
+
+def check_overlap_by_width(job: Job) -> Finding:
+    """ISO 5817 506 overlap: not permitted (B, C), or h, how far it reaches beyond the toe, against the face width."""
+    limit = job.limit("overlap")
+    seen, width = job.seen.overlap, job.seen.overlap_width
+    if not (seen or _positive(width)):
+        return job.finding("overlap", True, "no overlap seen", limit, measured=ZERO)
+    if isinstance(limit, Permission):
+        return _flag(job, "overlap", True, "overlap")
+    if width is None:
+        return job.unmeasured("overlap", "overlap seen: measure how far it reaches beyond the toe", limit)
+    b = job.seen.face_width
+    if b is None:
+        return job.unmeasured("overlap", f"overlap {job.fmt(width)} beyond the toe: measure the face width to "
+                              "judge it", limit, measured=width)
+    return _judge(job, "overlap", limit, width, b, f"overlap {job.fmt(width)} beyond the toe on a face "
+                  f"{job.fmt(b)} wide")
 
 
 def check_surface_pore(job: Job) -> Finding:
@@ -586,6 +720,13 @@ CHECKS = {
     "throat": check_throat,
     "surface_pore": check_surface_pore,
     "crater_pipe": check_crater_pipe,
+    "crater_crack": check_crater_crack,
+    "poor_restart": check_poor_restart,
+    "spatter": check_spatter,
+    "asymmetry": check_asymmetry,
+    "weld_toe": check_weld_toe,
+    "root_gap": check_root_gap,
+    "overlap_by_width": check_overlap_by_width,
 }
 
 

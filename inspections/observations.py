@@ -5,8 +5,8 @@ engine's own messages print `label(name, system)`, so one observation carries on
 `read_by` names the acceptance checks (inspections.acceptance.CHECKS) that judge it; which observations a criteria
 set asks for follows from the checks the set runs (asked_by), so that list is never typed a second time.
 
-Kinds: "length" (a length with its unit), "count" (a whole number), "flag" (seen or not). An absent length or count
-means nothing was measured (none seen), an absent flag is False.
+Kinds: "length" (a length with its unit), "count" (a whole number), "flag" (seen or not), "angle" (degrees, such as
+100°). An absent length, count or angle means nothing was measured (none seen), an absent flag is False.
 """
 
 from __future__ import annotations
@@ -14,7 +14,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 SYSTEMS = ("US", "SI")
-KINDS = ("length", "count", "flag")
+KINDS = ("length", "count", "flag", "angle")
 
 
 @dataclass(frozen=True)
@@ -22,7 +22,7 @@ class Observation:
     """One thing an inspector looks for or measures on a fillet weld."""
 
     name: str  # the engine's key in the observed dict
-    kind: str  # "length" | "count" | "flag"
+    kind: str  # "length" | "count" | "flag" | "angle"
     us_label: str  # the words on a US job (windows in inches)
     si_label: str  # the words on an SI job (windows in millimetres)
     help: str  # one line: what to measure and how
@@ -73,21 +73,43 @@ OBSERVATIONS: tuple[Observation, ...] = (
           "Height of the weld face above the straight line joining the toes.",
           ("convexity",)),
     _same("face_width", "length", "Face width",
-          "Width of the weld face from toe to toe (the convexity limit depends on it).",
-          ("convexity",)),
+          "Width of the weld face from toe to toe (the convexity and overlap limits depend on it).",
+          ("convexity", "overlap_by_width")),
     _same("throat", "length", "Smallest throat measured (a)",
           "The smallest throat a the throat gauge reads; ISO 5817 judges the throat.",
           ("throat",)),
+    _same("throat_short_length", "length", "Length with the throat under nominal, worst 100 mm",
+          "Length of weld where the throat is under the nominal a, in the worst 100 mm (ISO 5817 5213 permits "
+          "only a short shortfall).",
+          ("throat",)),
+    _same("leg_difference", "length", "Difference between the two legs",
+          "Largest difference between the two legs at one place along the weld (asymmetry, ISO 5817 512).",
+          ("asymmetry",)),
+    _same("toe_angle", "angle", "Sharpest weld toe angle",
+          "Angle between the base metal surface and the weld face at the sharpest toe, in degrees (180° is a "
+          "flat transition; ISO 5817 505).",
+          ("weld_toe",)),
+    _same("root_gap", "length", "Root gap between the parts",
+          "Gap between the parts joined at the root of the fillet, where it can be seen or gauged.",
+          ("root_gap",)),
     _same("crater_depth", "length", "Crater depth",
           "Depth of an unfilled crater or end crater pipe below the weld face.",
           ("crater", "crater_pipe")),
+    _same("overlap_width", "length", "Overlap beyond the toe",
+          "How far unfused weld metal reaches over the base metal beyond the toe.",
+          ("overlap_by_width",)),
     _same("crack", "flag", "Crack", "Any crack in the weld or the heat-affected zone.", ("crack",)),
+    _same("crater_crack", "flag", "Crater crack", "A crack in the crater at the end of a run.",
+          ("crack", "crater_crack")),
     _same("incomplete_fusion", "flag", "Incomplete fusion",
           "Weld metal not fused to the base metal or to the pass below, where it can be seen.", ("fusion",)),
     _same("unfilled_crater", "flag", "Unfilled crater", "A crater not filled to the full cross section.",
           ("crater", "crater_pipe")),
     _same("overlap", "flag", "Overlap", "Weld metal rolled over the base metal surface beyond the toe, not fused.",
-          ("overlap",)),
+          ("overlap", "overlap_by_width")),
+    _same("poor_restart", "flag", "Poor restart", "A local irregularity where the run was restarted.",
+          ("poor_restart",)),
+    _same("spatter", "flag", "Spatter", "Spatter stuck to the weld or the base metal.", ("spatter",)),
     _same("arc_strike", "flag", "Arc strike", "A stray arc touched the base metal outside the weld.",
           ("arc_strike",)),
 )
@@ -96,6 +118,7 @@ BY_NAME: dict[str, Observation] = {o.name: o for o in OBSERVATIONS}
 LENGTHS: tuple[str, ...] = tuple(o.name for o in OBSERVATIONS if o.kind == "length")
 COUNTS: tuple[str, ...] = tuple(o.name for o in OBSERVATIONS if o.kind == "count")
 FLAGS: tuple[str, ...] = tuple(o.name for o in OBSERVATIONS if o.kind == "flag")
+ANGLES: tuple[str, ...] = tuple(o.name for o in OBSERVATIONS if o.kind == "angle")
 
 
 # The weld data an evaluation reads (the weld map's line), in the same words.
@@ -148,5 +171,5 @@ def asked_by(criteria) -> list[Observation]:
     return [o for o in OBSERVATIONS if checks.intersection(o.read_by)]
 
 
-__all__ = ["BY_NAME", "COUNTS", "FLAGS", "KINDS", "LENGTHS", "OBSERVATIONS", "Observation", "WELD_LABELS",
+__all__ = ["ANGLES", "BY_NAME", "COUNTS", "FLAGS", "KINDS", "LENGTHS", "OBSERVATIONS", "Observation", "WELD_LABELS",
            "asked_by", "get", "label", "weld_label"]

@@ -56,11 +56,20 @@ class UnitError(ValueError):
     """A quantity a person typed that cannot be read; the message says what would be right."""
 
 
+def _a(what: str) -> str:
+    """'a length', 'an amperage': the article a message needs."""
+    return f"{'an' if what[:1] in 'aeiou' else 'a'} {what}"
+
+
+def _cap(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
 def _clean(text, what):
     if not isinstance(text, str):
-        raise UnitError(f"{what} must be text such as {_EXAMPLES[what]}, not {type(text).__name__}.")
+        raise UnitError(f"{_cap(_a(what))} must be text such as {_EXAMPLES[what]}, not {type(text).__name__}.")
     if len(text) > MAX_INPUT_CHARS:
-        raise UnitError(f"{what} is too long to be a {what}: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"{_cap(what)} is too long to be {_a(what)}: write it as {_EXAMPLES[what]}.")
     for mark, plain in _VULGAR.items():  # before NFKC, which would turn 1½ into 11⁄2
         text = text.replace(mark, f" {plain}")
     text = unicodedata.normalize("NFKC", text)  # full-width digits, non-breaking spaces
@@ -69,9 +78,9 @@ def _clean(text, what):
     text = text.replace("\u2212", "-").replace("\u2013", "-")  # minus sign, en dash
     text = text.strip()
     if not text:
-        raise UnitError(f"Enter a {what}, for example {_EXAMPLES[what]}.")
+        raise UnitError(f"Enter {_a(what)}, for example {_EXAMPLES[what]}.")
     if text.startswith(("-", "+")):
-        raise UnitError(f"A {what} cannot be negative or signed: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"{_cap(_a(what))} cannot be negative or signed: write it as {_EXAMPLES[what]}.")
     if _EXPONENT.search(text):
         raise UnitError(f"'{text}': write the number out in full (exponents such as 1e3 are not read).")
     return text
@@ -91,7 +100,7 @@ def _quantity(text, what):
     """Split '1-1/2 in' into (Fraction(3, 2), 'in'); the unit may be None."""
     match = _QUANTITY.match(text)
     if not match:
-        raise UnitError(f"'{text}' is not a {what}: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"'{text}' is not {_a(what)}: write it as {_EXAMPLES[what]}.")
     if match["dec"] is not None:
         try:
             value = Fraction(Decimal(match["dec"]))
@@ -317,9 +326,9 @@ def _parse_scaled(text, what, units: dict, default_unit=None, allow_zero=True) -
         unit = default_unit
     key = unit.lower().replace(" ", "")
     if key not in units:
-        raise UnitError(f"'{unit}' is not a {what} unit: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"'{unit}' is not {_a(what)} unit: write it as {_EXAMPLES[what]}.")
     if not allow_zero and value == 0:
-        raise UnitError(f"A {what} of zero is not possible here: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"{_cap(_a(what))} of zero is not possible here: write it as {_EXAMPLES[what]}.")
     base = _to_decimal(value) * units[key][0]
     return base, units[key][1]
 
@@ -442,6 +451,28 @@ def format_flow(flow: Flow, system="US") -> str:
     return f"{_plain(flow.l_per_min.quantize(Decimal(1), rounding=ROUND_HALF_UP))} L/min"
 
 
+# --- angles: a weld toe angle, the angle between a load and a weld ------------------------------------------
+
+_EXAMPLES["angle"] = "100° or 100 deg"
+_ANGLE_UNITS = {"°": Decimal(1), "deg": Decimal(1), "degree": Decimal(1), "degrees": Decimal(1)}
+
+
+def parse_angle(value, low=0, high=180) -> Decimal:
+    """Read an angle in degrees: '100°', '100 deg', '100', 100. Outside low..high (inclusive) is refused."""
+    if isinstance(value, bool) or not isinstance(value, (str, int, Decimal)):
+        raise UnitError(f"An angle is written in degrees such as {_EXAMPLES['angle']}, not {type(value).__name__}.")
+    text = value if isinstance(value, str) else format(value, "f")
+    text = _clean(text.replace("º", "°").replace("˚", "°"), "angle")
+    number, unit = _quantity(text, "angle")
+    if unit is not None and unit.lower() not in _ANGLE_UNITS:
+        raise UnitError(f"'{unit}' is not a unit of angle: write the angle in degrees, such as {_EXAMPLES['angle']}.")
+    degrees = _to_decimal(number)
+    if not Decimal(low) <= degrees <= Decimal(high):
+        raise UnitError(f"'{text}' is outside {low}° to {high}°: write the angle in degrees, such as "
+                        f"{_EXAMPLES['angle']}.")
+    return _normal(degrees)
+
+
 def significant(value: Decimal, figures: int = 3) -> Decimal:
     """Round to significant figures for printing a result (arithmetic keeps full precision)."""
     if value == 0:
@@ -507,7 +538,8 @@ _VOLTAGE_UNITS = {"v": (Decimal(1), ""), "volt": (Decimal(1), ""), "volts": (Dec
 def _electrical_text(value, what):
     """Amps and volts have one unit each, so a bare number is read; a bool or a float NaN is not a reading."""
     if isinstance(value, bool) or not isinstance(value, (str, int, Decimal)):
-        raise UnitError(f"{what} must be text or a number such as {_EXAMPLES[what]}, not {type(value).__name__}.")
+        raise UnitError(f"{_cap(_a(what))} must be text or a number such as {_EXAMPLES[what]}, "
+                        f"not {type(value).__name__}.")
     return value if isinstance(value, str) else format(value, "f")
 
 

@@ -12,6 +12,7 @@ import copy
 
 from . import aws_d1_1_2020, iso_5817_2014
 from .base import (
+    Angle,
     Band,
     Banded,
     Count,
@@ -30,7 +31,7 @@ from .base import derive as _derive
 _MODULES = (aws_d1_1_2020, iso_5817_2014)
 REGISTRY: dict[str, CriteriaSet] = {s.key: s for module in _MODULES for s in module.SETS}
 
-__all__ = ["Band", "Banded", "Count", "CriteriaSet", "Fixed", "Limit", "Permission", "Proportional", "Ratio",
+__all__ = ["Angle", "Band", "Banded", "Count", "CriteriaSet", "Fixed", "Limit", "Permission", "Proportional", "Ratio",
            "Threshold", "REGISTRY", "derive", "from_dict", "get_criteria", "length_text", "list_criteria",
            "resolve"]
 

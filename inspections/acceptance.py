@@ -72,7 +72,7 @@ class Verdict:
 
 # --- reading the weld and the observations ---------------------------------------------------------------
 
-WELD_LENGTHS = ("size", "throat", "length", "thickness")
+WELD_LENGTHS = ("size", "size2", "throat", "length", "thickness")
 WELD_FLAGS = ("primary_member", "transverse_to_tension", "stiffener_to_web")
 OBSERVED_LENGTHS = observations.LENGTHS
 OBSERVED_FLAGS = observations.FLAGS
@@ -83,6 +83,7 @@ OBSERVED_ANGLES = observations.ANGLES
 @dataclass(frozen=True)
 class Weld:
     size: Length | None
+    size2: Length | None  # the second specified leg of an unequal-leg fillet (None: equal legs)
     throat: Length | None
     length: Length | None
     thickness: Length | None
@@ -354,30 +355,79 @@ def _percent(value: Decimal) -> str:
     return f"{format((value * 100).quantize(Decimal('0.1')).normalize(), 'f')} %"
 
 
-def check_undersize(job: Job) -> Finding:
-    """Smallest leg against the nominal size band, then the undersize portion of the weld length."""
-    limit = job.measured_limit("undersize")
+@dataclass(frozen=True)
+class _Leg:
+    """One leg of a fillet judged for undersize against its own specified size (AWS D1.1 Table 8.1)."""
+
+    name: str  # "" for an equal-leg fillet measured on one leg, else "first leg" / "second leg"
+    nominal: Length
+    smallest: Length | None
+    allowed: Length | None
+    status: str | None
+
+    @property
+    def under(self) -> Length:
+        return self.nominal - self.smallest
+
+    def text(self, job: Job) -> str:
+        if self.smallest is None:
+            return f"{self.name}: not measured (specified {job.fmt(self.nominal)})"
+        head = f"{self.name}: smallest {job.fmt(self.smallest)}" if self.name else \
+            f"smallest leg {job.fmt(self.smallest)}"
+        if self.under <= ZERO:
+            return f"{head} is not under the specified {job.fmt(self.nominal)}"
+        if self.name:
+            return (f"{head} is {job.fmt(self.under)} under the specified {job.fmt(self.nominal)} (limit for a "
+                    f"{job.fmt(self.nominal)} leg: {job.fmt(self.allowed)})")
+        return (f"{head} is {job.fmt(self.under)} under the specified {job.fmt(self.nominal)}; the limit for a "
+                f"{job.fmt(self.nominal)} fillet is {job.fmt(self.allowed)}")
+
+
+def _legs(job: Job, limit: Limit) -> list[_Leg]:
+    """The legs to judge: one for an equal-leg fillet (two when both legs were measured), two for unequal legs."""
     size = job.needs("size", "to judge undersize (the specified leg)")
-    smallest, under_length = job.seen.min_size, job.seen.undersize_length
-    if smallest is None:
+    size2, seen = job.weld.size2, job.seen
+    if seen.min_size is None:
         raise ValueError(f"{set_words(job.cset)} judges the smallest leg: give the smallest leg measured (such as "
                          f"{'3/16 in' if job.system == 'US' else '5 mm'}).")
-    under = size - smallest
-    if under <= ZERO:
+    pairs = [("", size, seen.min_size)]
+    if (size2 is not None and size2 != size) or seen.min_size2 is not None:
+        pairs = [("first leg", size, seen.min_size), ("second leg", size2 or size, seen.min_size2)]
+    legs = []
+    for name, nominal, smallest in pairs:
+        allowed, status = job.allowance(limit, nominal)
+        legs.append(_Leg(name, nominal, smallest, allowed, status))
+    return legs
+
+
+def check_undersize(job: Job) -> Finding:
+    """Each leg's smallest against its own nominal size band (unequal legs: each its own, AWS D1.1:2020 Table 8.1),
+    then the undersize portion of the weld length."""
+    limit = job.measured_limit("undersize")
+    legs = _legs(job, limit)
+    under_length = job.seen.undersize_length
+    text = "; ".join(leg.text(job) for leg in legs)
+    measured = [leg for leg in legs if leg.smallest is not None]
+    over = [leg for leg in measured if leg.allowed is not None and leg.under > leg.allowed]
+    if over:
+        worst = max(over, key=lambda leg: leg.under - leg.allowed)
+        return job.finding("undersize", False, text, limit, status=worst.status, applied=worst.allowed,
+                           measured=worst.under)
+    under = [leg for leg in measured if leg.under > ZERO]
+    if len(measured) < len(legs):
+        return job.unmeasured("undersize", f"{text}: measure the smallest leg on the second leg too", limit,
+                              measured=max(legs[0].under, ZERO))
+    if not under:
         if _positive(under_length):
-            raise ValueError(f"The length under the specified size is {job.fmt(under_length)}, but the smallest "
-                             f"leg {job.fmt(smallest)} is not under the specified {job.fmt(size)}: check both.")
-        return job.finding("undersize", True, f"smallest leg {job.fmt(smallest)} is not under the specified "
-                           f"{job.fmt(size)}", limit, applied=job.allowance(limit, size)[0], measured=ZERO)
-    allowed, status = job.allowance(limit, size)
-    text = (f"smallest leg {job.fmt(smallest)} is {job.fmt(under)} under the specified {job.fmt(size)}; "
-            f"the limit for a {job.fmt(size)} fillet is {job.fmt(allowed)}")
-    if allowed is not None and under > allowed:
-        return job.finding("undersize", False, text, limit, status=status, applied=allowed, measured=under)
+            raise ValueError(f"The length under the specified size is {job.fmt(under_length)}, but no leg is "
+                             f"under its specified size ({text}): check both.")
+        return job.finding("undersize", True, text, limit, applied=legs[0].allowed, measured=ZERO)
+    governing = max(under, key=lambda leg: leg.under - leg.allowed if leg.allowed is not None else leg.under)
+    allowed, status = governing.allowed, governing.status
     portion = job.limit("undersize_portion", Ratio)
     if under_length is None:
         return job.unmeasured("undersize", f"{text}; measure the length under size (at most "
-                              f"{_percent(portion.value)} of the weld length)", limit, measured=under)
+                              f"{_percent(portion.value)} of the weld length)", limit, measured=governing.under)
     length = job.needs("length", "to judge the undersize portion of the weld length")
     if under_length > length:
         raise ValueError(f"The length under the specified size ({job.fmt(under_length)}) is longer than the weld "
@@ -387,7 +437,7 @@ def check_undersize(job: Job) -> Finding:
     text += (f"; under size for {job.fmt(under_length)} of {job.fmt(length)} ({_percent(share)}), "
              f"{'within' if ok else 'more than'} {_percent(portion.value)} of the weld length")
     status = status or (None if portion.status == limit.status else portion.status)
-    return job.finding("undersize", ok, text, limit, status=status, applied=allowed, measured=under)
+    return job.finding("undersize", ok, text, limit, status=status, applied=allowed, measured=governing.under)
 
 
 def _undercut_unmeasured(job: Job, limit: Limit) -> Finding | None:
@@ -532,30 +582,36 @@ def check_undercut_depth(job: Job) -> Finding:
                   f"undercut {job.fmt(job.seen.undercut_depth)} deep, t = {job.fmt(t)}")
 
 
-def nominal_throat(job: Job) -> tuple[Length, Length]:
-    """(a, z): the nominal throat and leg of an ISO weld from weld['throat'] and/or weld['size'] (ISO 2553: a, z).
+def nominal_throat(job: Job) -> tuple[Length, str]:
+    """(a, z text): the nominal throat and the nominal leg(s) of an ISO weld from weld['throat'] and/or the
+    specified legs weld['size'] (and 'size2'), in ISO 2553 notation.
 
-    Only the leg given: a is its effective throat (inspections.strength.effective_throat, 0.707 z for equal legs).
-    Only the throat given: z = a / 0.707, for the message only. Both given: each as given (a deep-penetration
-    weld may have a larger a than its legs show)."""
-    a, z = job.weld.throat, job.weld.size
+    Only the legs given: a is their effective throat (inspections.strength.effective_throat: 0.707 z for equal legs,
+    z1 z2 / sqrt(z1^2 + z2^2) for unequal). Only the throat given: z = a / 0.707, for the message only. Both given:
+    each as given (a deep-penetration weld may have a larger a than its legs show)."""
+    a, z, z2 = job.weld.throat, job.weld.size, job.weld.size2
     if a is None and z is None:
         raise ValueError(f"{set_words(job.cset)} judges the throat against the nominal throat a: give the specified "
                          "throat a or the specified leg z (such as 5 mm or 7 mm).")
     if a is None:
-        a = effective_throat(z)
+        a = effective_throat(z, z2)
     if z is None:
-        z = Length(a.mm / THROAT_EQUAL_LEGS)
-    return a, z
+        return a, job.fmt(Length(a.mm / THROAT_EQUAL_LEGS))
+    return a, (f"{job.fmt(z)} x {job.fmt(z2)}" if z2 is not None and z2 != z else job.fmt(z))
 
 
 def measured_throat(job: Job) -> tuple[Length, str]:
-    """The measured throat a and how it was had: measured with a throat gauge, or from the smallest leg z."""
-    if job.seen.throat is not None:
-        return job.seen.throat, f"throat a = {job.fmt(job.seen.throat)} measured"
-    if job.seen.min_size is not None:
-        a = effective_throat(job.seen.min_size)
-        return a, f"throat a = {job.fmt(a)} (a = 0.707 x z measured, z = {job.fmt(job.seen.min_size)})"
+    """The measured throat a and how it was had: measured with a throat gauge, or from the smallest leg(s) z."""
+    seen = job.seen
+    if seen.throat is not None:
+        return seen.throat, f"throat a = {job.fmt(seen.throat)} measured"
+    if seen.min_size is not None and seen.min_size2 is not None:
+        a = effective_throat(seen.min_size, seen.min_size2)
+        return a, (f"throat a = {job.fmt(a)} (a = z1 z2 / sqrt(z1^2 + z2^2) of the smallest legs measured, "
+                   f"z1 = {job.fmt(seen.min_size)}, z2 = {job.fmt(seen.min_size2)})")
+    if seen.min_size is not None:
+        a = effective_throat(seen.min_size)
+        return a, f"throat a = {job.fmt(a)} (a = 0.707 x z measured, z = {job.fmt(seen.min_size)})"
     raise ValueError(f"{set_words(job.cset)} judges the throat a (items 5213/5214): give the smallest throat "
                      "measured (such as 4.5 mm), or the smallest leg measured, whose effective throat is then "
                      "judged.")
@@ -565,7 +621,7 @@ def check_throat(job: Job) -> Finding:
     """ISO 5817 5213 (too small: short imperfections only) and 5214 (too large) against the nominal throat a."""
     nominal, leg = nominal_throat(job)
     measured, how = measured_throat(job)
-    against = f"the nominal a = {job.fmt(nominal)} (z = {job.fmt(leg)})"
+    against = f"the nominal a = {job.fmt(nominal)} (z = {leg})"
     short_length = job.seen.throat_short_length
     if measured < nominal:
         return _throat_shortfall(job, nominal, measured, f"{how} is {job.fmt(nominal - measured)} under {against}")
@@ -617,6 +673,9 @@ def check_asymmetry(job: Job) -> Finding:
     prescribed)."""
     limit = job.measured_limit("asymmetry")
     difference = job.seen.leg_difference
+    if job.weld.size2 is not None and job.weld.size is not None and job.weld.size2 != job.weld.size:
+        return job.finding("asymmetry", True, f"unequal legs specified ({job.fmt(job.weld.size)} x "
+                           f"{job.fmt(job.weld.size2)}): item 512 does not apply", limit)
     if not _positive(difference):
         return job.finding("asymmetry", True, "no difference between the legs measured", limit, measured=ZERO)
     nominal, _ = nominal_throat(job)

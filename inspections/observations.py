@@ -45,6 +45,9 @@ OBSERVATIONS: tuple[Observation, ...] = (
           "The smallest leg (z) the fillet gauge reads anywhere along the weld; on ISO jobs without a measured "
           "throat, its effective throat is judged.",
           ("undersize", "throat")),
+    _same("min_size2", "length", "Smallest leg measured, second leg",
+          "On a fillet with unequal legs (or to record both legs): the smallest reading on the second leg.",
+          ("undersize", "throat")),
     _same("undersize_length", "length", "Length under the specified size",
           "Total length of weld whose leg is under the specified size.",
           ("undersize",)),
@@ -124,6 +127,7 @@ ANGLES: tuple[str, ...] = tuple(o.name for o in OBSERVATIONS if o.kind == "angle
 # The weld data an evaluation reads (the weld map's line), in the same words.
 WELD_LABELS: dict[str, str] = {
     "size": "specified leg (fillet size z)",
+    "size2": "second specified leg (unequal legs)",
     "throat": "specified throat a",
     "length": "weld length",
     "thickness": "base metal thickness at the toe",

@@ -149,6 +149,63 @@ def test_undersize_inconsistent_inputs_are_refused():
         evaluate(STATIC, {"size": "1/4 in", "thickness": "1/2 in"}, {"min_size": "3/16 in", "undersize_length": "1 in"})
 
 
+# --- AWS undersize, unequal legs: each leg against its own specified size (Table 8.1) --------------------------
+
+
+@pytest.mark.parametrize("smallest2,accepted", [
+    ("3/16 in", False),     # the long leg 3/16 in under 3/8 in: over the 1/8 in of a 3/8 in leg
+    ("1/4 in", True),       # 1/8 in under 3/8 in: at the limit (L >= 5/16 in: 1/8 in)
+    ("15/64 in", False),    # 9/64 in under: just past it
+])
+def test_each_leg_of_an_unequal_leg_fillet_is_judged_against_its_own_size(smallest2, accepted):
+    # AWS D1.1/D1.1M:2020 Table 8.1, undersize by the nominal size of each leg; 1 in of 12 in under size (8 %)
+    verdict = aws({"min_size": "1/4 in", "min_size2": smallest2, "undersize_length": "1 in"}, size2="3/8 in")
+    f = finding(verdict, "undersize")
+    assert f.ok is accepted
+    assert "second leg" in f.message and '3/8"' in f.message
+
+
+@pytest.mark.parametrize("smallest,accepted", [("5/32 in", True), ("9/64 in", False)])
+def test_the_short_leg_keeps_the_allowance_of_its_own_size(smallest, accepted):
+    # AWS D1.1/D1.1M:2020 Table 8.1: L = 1/4 in: 3/32 in, though the other leg is 3/8 in (1/8 in)
+    verdict = aws({"min_size": smallest, "min_size2": "3/8 in", "undersize_length": "1 in"}, size2="3/8 in")
+    assert ok(verdict, "undersize") is accepted
+
+
+@pytest.mark.parametrize("smallest2,accepted", [("7 mm", True), ("6.9 mm", False)])
+def test_unequal_legs_si_values(smallest2, accepted):
+    # AWS D1.1/D1.1M:2020 Table 8.1, SI: 6 mm leg 2.5 mm, 10 mm leg (>= 8 mm) 3 mm
+    verdict = aws_si({"min_size": "3.5 mm", "min_size2": smallest2, "undersize_length": "25 mm"}, size2="10 mm")
+    assert ok(verdict, "undersize") is accepted
+
+
+def test_an_unequal_leg_fillet_with_one_leg_measured_is_not_accepted_until_both_are():
+    f = finding(aws({"min_size": "1/4 in"}, size2="3/8 in"), "undersize")
+    assert not f.ok and f.message.endswith("rejected until measured") and "second leg" in f.message
+
+
+def test_both_legs_of_an_equal_leg_fillet_may_be_recorded():
+    # AWS D1.1/D1.1M:2020 Table 8.1: L = 1/4 in, 3/32 in; the second reading is judged against the same size
+    assert not ok(aws({"min_size": "1/4 in", "min_size2": "9/64 in", "undersize_length": "1 in"}), "undersize")
+    assert aws({"min_size": "1/4 in", "min_size2": "1/4 in"}).accepted
+    assert aws({"min_size": "1/4 in"}, size2="1/4 in").accepted  # size2 equal to size: equal legs
+
+
+def test_no_leg_under_size_with_a_length_under_size_is_refused():
+    with pytest.raises(ValueError, match="no leg is under"):
+        aws({"min_size": "1/4 in", "min_size2": "3/8 in", "undersize_length": "1 in"}, size2="3/8 in")
+
+
+def test_iso_unequal_legs_give_the_nominal_throat_and_512_does_not_apply():
+    # a = z1 z2 / sqrt(z1^2 + z2^2) (AISC 360-16 J2.2a, geometry): 6 x 8 mm: 48 / 10 = 4.8 mm
+    verdict = evaluate(ISO_C, {"size": "6 mm", "size2": "8 mm", "length": "300 mm", "thickness": "10 mm"},
+                       {"min_size": "6 mm", "min_size2": "8 mm", "leg_difference": "2 mm"})
+    throat = finding(verdict, "throat")
+    assert throat.ok and "a = 4.8 mm (z = 6 mm x 8 mm)" in throat.message and "z1 = 6 mm, z2 = 8 mm" in throat.message
+    asym = finding(verdict, "asymmetry")
+    assert asym.ok and "does not apply" in asym.message
+
+
 # --- AWS undercut: Table 8.1, statically loaded -----------------------------------------------------------
 
 

@@ -20,6 +20,7 @@ from dataclasses import dataclass, make_dataclass, replace
 from decimal import Decimal
 
 from legwork.units import (
+    APPROX,
     Length,
     UnitError,
     format_length,
@@ -257,7 +258,8 @@ class Job:
             return format_length(length, "SI")
         if inch_fraction(length.inch)[3]:
             return format_length(length, "US")
-        return f'{format(significant(length.inch, 3).normalize(), "f")}"'
+        shown = significant(length.inch, 3)
+        return f'{"" if shown == length.inch else APPROX}{format(shown.normalize(), "f")}"'
 
     def allowance(self, limit: Limit, x: Length | None = None):
         """The allowance and, for a banded limit, the status of the band that applied."""

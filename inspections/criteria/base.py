@@ -13,7 +13,7 @@ from dataclasses import dataclass, field, replace
 from decimal import Decimal, InvalidOperation
 from types import MappingProxyType
 
-from legwork.units import Length, UnitError, format_length, inch_fraction, parse_length
+from legwork.units import Length, UnitError, format_length, inch_fraction, number_text, parse_length
 
 SYSTEMS = ("US", "SI")
 PUBLISHED = "published"
@@ -53,7 +53,10 @@ def _decimal(value, what: str) -> Decimal:
     """A plain number from text, an int or a Decimal (floats refused: they cannot hold 0.1 exactly)."""
     if isinstance(value, bool) or not isinstance(value, (str, int, Decimal)):
         raise ValueError(f"{what} must be a number written as text such as '0.1', not {type(value).__name__}.")
-    text = value.strip().rstrip("%").strip() if isinstance(value, str) else value
+    try:
+        text = number_text(value).rstrip("%").strip() if isinstance(value, str) else value
+    except UnitError as exc:
+        raise ValueError(f"{what}: {exc}") from None
     try:
         number = Decimal(text)
     except InvalidOperation:

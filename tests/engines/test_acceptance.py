@@ -851,3 +851,9 @@ def test_tightening_a_set_never_turns_a_reject_into_an_accept(case, factor):
     before, after = evaluate(key, weld, seen), evaluate(tighter, weld, seen)
     if not before.accepted:
         assert not after.accepted
+
+
+def test_a_metric_reading_on_a_us_job_is_printed_rounded_with_its_mark():
+    # AWS D1.1/D1.1M:2020 Table 8.1, static, material under 1 in: 1/32 in; 0.5 mm is 0.0197 in, printed rounded
+    f = finding(aws({"undercut_depth": "0.5 mm"}), "undercut")
+    assert f.ok and "\u22480.0197\"" in f.message and '1/32"' in f.message

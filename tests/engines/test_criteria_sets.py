@@ -307,3 +307,11 @@ def test_a_client_may_ask_a_blunter_weld_toe_but_a_sharper_one_needs_the_enginee
     assert from_dict(json.loads(json.dumps(signed.to_dict()))) == signed
     with pytest.raises(ValueError, match="0 to 180"):
         derive(key, "client-t", {"weld_toe": "190"}, "Client T")
+
+
+def test_a_client_share_may_be_typed_with_a_decimal_comma():
+    # AWS D1.1/D1.1M:2020 Table 8.1: undersize portion at most 10 %; a client's 5 % typed as 0,05
+    assert derive(STATIC, "client-c", {"undersize_portion": "0,05"}, "Client C").limit("undersize_portion").value \
+        == Decimal("0.05")
+    with pytest.raises(ValueError, match="comma and a point"):
+        derive(STATIC, "client-c", {"undersize_portion": "0,05.1"}, "Client C")

@@ -9,6 +9,12 @@ False; a defect seen but not measured (a pore with no diameter, convexity with n
 until it is measured. Weld data a judgement needs (thickness for undercut, length for the undersize portion)
 must be given, or ValueError says which.
 
+Weld data: the specified leg `size` (and `size2` for unequal legs, each leg judged against its own size), the
+nominal throat `throat` (ISO: a; either a or the legs z will do, and messages report both), `length`, `thickness`,
+and the flags. Observations: the table in inspections.observations (names, kinds, labels, which checks read them);
+on ISO sets without a measured throat the effective throat of the smallest leg(s) is judged. Error messages speak
+in the observations' labels and the set's name, never in these keys.
+
 Unit system of the verdict: weld["system"] ("US" or "SI") when given; otherwise the system the weld size is
 written in (inches: US, mm: SI). The US values of a set apply on a US job and the SI values on an SI job, as the
 standard prints them. A set with SI values only (ISO 5817) is judged and reported in millimetres.

@@ -161,6 +161,16 @@ _BAD = [
     *((STATIC, _AWS_WELD, {"min_size": "1/4 in", name: "1/4"}) for name in obs.LENGTHS if name != "min_size"),
     *((STATIC, _AWS_WELD, {"min_size": "1/4 in", name: "quarter"}) for name in obs.LENGTHS),
     *((STATIC, _AWS_WELD, {"min_size": "1/4 in", name: "no"}) for name in obs.FLAGS),
+    *((key, _ISO_WELD, {"throat": "5 mm", name: bad}) for name in obs.ANGLES for bad in ("steep", "0°", "200°")
+      for key in ISO_KEYS),
+    (STATIC, {**_AWS_WELD, "size2": "3/8 in"}, {"min_size": "1/4 in", "min_size2": "3/8 in",
+                                               "undersize_length": "1 in"}),
+    (STATIC, {**_AWS_WELD, "size2": "0 in"}, {"min_size": "1/4 in"}),
+    *((key, _ISO_WELD, {"throat": "5 mm", "throat_short_length": "10 mm"}) for key in ISO_KEYS),
+    # (level B rejects any throat shortfall before its length is looked at: C and D only)
+    *((key, _ISO_WELD, {"throat": "4.5 mm", "throat_short_length": "101 mm"}) for key in ISO_KEYS[1:]),
+    *((key, {k: v for k, v in _ISO_WELD.items() if k != "length"}, {"throat": "4.5 mm", "throat_short_length": "9 mm"})
+      for key in ISO_KEYS[1:]),
     *((STATIC, {**_AWS_WELD, name: "-1 in"}, {"min_size": "1/4 in"}) for name in ("size", "length", "thickness")),
     *((key, {k: v for k, v in _ISO_WELD.items() if k not in ("throat", "size")}, {"throat": "5 mm"})
       for key in ISO_KEYS),

@@ -6,10 +6,20 @@ so a unit is parsed and printed in exactly one place.
 Lengths are kept as Decimal millimetres quantized to 7 places: 1 in is 25.4 mm by definition
 (international yard and pound agreement, 1959), so every binary fraction of an inch down to 1/128
 (0.1984375 mm) is stored exactly. Floats never touch a measured size.
+
+What a person may type, for every quantity (our rules, not a standard's):
+- a decimal point or a decimal comma ("0,4 mm", "6,35mm", "1,5 in"): a comma is read as the decimal mark only when
+  the text has no point and the comma is the only one; "1,000 in" (a comma followed by three digits after a whole
+  number that does not start with 0) could be a thousands separator, so it is refused with a message asking for
+  1000 or 1.000; "0,125 in" is read as 0.125 in;
+- at most 15 digits before the decimal mark (22-digit numbers and the like are refused with a message); exponents
+  (1e3), NaN and Infinity are refused with a message too, never with an arithmetic error;
+- a leading "≈" (as format_length prints a rounded value) is read as the value printed.
 """
 
 from __future__ import annotations
 
+import functools
 import re
 import unicodedata
 from dataclasses import dataclass
@@ -18,8 +28,15 @@ from fractions import Fraction
 
 MM_PER_INCH = Decimal("25.4")  # exact by definition
 MM_PLACES = Decimal("0.0000001")  # 1/128 in is exact at 7 places
-MAX_LENGTH_MM = Decimal("100000")  # 100 m: no weld, plate or member dimension in this shop is longer
+# 100 m: a typo guard (common practice, no source): no weld, plate or member dimension of a fabrication shop is
+# that long, so a longer length is taken as a slip of the unit or the number.
+MAX_LENGTH_MM = Decimal("100000")
 MAX_INPUT_CHARS = 40
+# Digits before the decimal mark: no gauge or drawing gives more, and more would overflow Decimal's 28-digit context
+# once converted and quantized. Digits after the mark are not limited (beyond MAX_INPUT_CHARS): the forms write a
+# stored length that is no binary fraction of an inch as its exact decimal inches, up to 28 digits, and read it back.
+MAX_DIGITS = 15
+APPROX = "\u2248"  # ≈: printed before a value rounded for printing
 
 SYSTEMS = ("US", "SI")
 
@@ -56,25 +73,91 @@ class UnitError(ValueError):
     """A quantity a person typed that cannot be read; the message says what would be right."""
 
 
-def _clean(text, what):
-    if not isinstance(text, str):
-        raise UnitError(f"{what} must be text such as {_EXAMPLES[what]}, not {type(text).__name__}.")
-    if len(text) > MAX_INPUT_CHARS:
-        raise UnitError(f"{what} is too long to be a {what}: write it as {_EXAMPLES[what]}.")
+def _a(what: str) -> str:
+    """'a length', 'an amperage': the article a message needs."""
+    return f"{'an' if what[:1] in 'aeiou' else 'a'} {what}"
+
+
+def _cap(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
+def _normalise(text: str) -> str:
+    """Unicode a keyboard or a pasted note may carry, as plain text: vulgar fractions, full-width digits,
+    non-breaking spaces, fraction and division slashes, primes, minus signs, and the degree look-alikes."""
     for mark, plain in _VULGAR.items():  # before NFKC, which would turn 1½ into 11⁄2
         text = text.replace(mark, f" {plain}")
+    # before NFKC, which turns the ordinal indicator º into the letter o and the ring above ˚ into a space
+    text = text.replace("\u00ba", "\u00b0").replace("\u02da", "\u00b0")
     text = unicodedata.normalize("NFKC", text)  # full-width digits, non-breaking spaces
     text = text.replace("\u2044", "/").replace("\u2215", "/")  # fraction slash, division slash
     text = text.replace("\u2033", '"').replace("\u2032", "'").replace("\u201d", '"').replace("\u2019", "'")
     text = text.replace("\u2212", "-").replace("\u2013", "-")  # minus sign, en dash
-    text = text.strip()
+    return text.strip().removeprefix(APPROX).strip()
+
+
+_THOUSANDS = re.compile(r"(?<![0-9.])[1-9][0-9]{0,2},[0-9]{3}(?![0-9])")
+_DIGIT_RUN = re.compile(r"[0-9]+(?:[.,][0-9]*)?")
+
+
+def _numbers(text: str, what: str) -> str:
+    """The text with its decimal comma read as a point, once the number is known to be plain and not too long."""
+    for run in _DIGIT_RUN.findall(text):
+        if len(re.split(r"[.,]", run)[0]) > MAX_DIGITS:
+            raise UnitError(f"'{text}' has a number of more than {MAX_DIGITS} digits before the decimal mark: no "
+                            f"measurement is written so; write it as {_EXAMPLES[what]}.")
+    if "," not in text:
+        return text
+    if "." in text:
+        raise UnitError(f"'{text}' has both a comma and a point: write the number with one decimal mark and no "
+                        f"thousands separator, such as {_EXAMPLES[what]}.")
+    if text.count(",") > 1:
+        raise UnitError(f"'{text}' has more than one comma: write the number with one decimal mark and no thousands "
+                        f"separator, such as {_EXAMPLES[what]}.")
+    if _THOUSANDS.search(text):
+        number = _THOUSANDS.search(text).group()
+        raise UnitError(f"'{text}': {number} could be a thousands separator or a decimal comma; write it without "
+                        f"the comma ({number.replace(',', '')}) or with a point ({number.replace(',', '.')}).")
+    return text.replace(",", ".")
+
+
+def _clean(text, what):
+    if not isinstance(text, str):
+        raise UnitError(f"{_cap(_a(what))} must be text such as {_EXAMPLES[what]}, not {type(text).__name__}.")
+    if len(text) > MAX_INPUT_CHARS:
+        raise UnitError(f"{_cap(what)} is too long to be {_a(what)}: write it as {_EXAMPLES[what]}.")
+    text = _normalise(text)
     if not text:
-        raise UnitError(f"Enter a {what}, for example {_EXAMPLES[what]}.")
+        raise UnitError(f"Enter {_a(what)}, for example {_EXAMPLES[what]}.")
     if text.startswith(("-", "+")):
-        raise UnitError(f"A {what} cannot be negative or signed: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"{_cap(_a(what))} cannot be negative or signed: write it as {_EXAMPLES[what]}.")
     if _EXPONENT.search(text):
         raise UnitError(f"'{text}': write the number out in full (exponents such as 1e3 are not read).")
-    return text
+    return _numbers(text, what)
+
+
+def number_text(text: str, what: str = "number") -> str:
+    """A typed number made plain for Decimal: Unicode look-alikes and a leading ≈ removed, a decimal comma read as
+    a point (by the rules above). Raises UnitError for an ambiguous comma or a number of too many digits. For the
+    numbers typed without a unit elsewhere (an angle, a share such as '0,1' or '10 %')."""
+    if not isinstance(text, str):
+        raise UnitError(f"{_cap(_a(what))} must be text such as {_EXAMPLES[what]}, not {type(text).__name__}.")
+    return _numbers(_normalise(text[: MAX_INPUT_CHARS + 1]), what)
+
+
+def _refuses_arithmetic(parse):
+    """A parse_* function that answers bad text with UnitError, never an arithmetic error (InvalidOperation,
+    Overflow, DivisionByZero): the rules above should catch everything first; this is the net under them."""
+
+    @functools.wraps(parse)
+    def checked(text, *args, **kwargs):
+        try:
+            return parse(text, *args, **kwargs)
+        except ArithmeticError:
+            raise UnitError(f"{str(text)[:MAX_INPUT_CHARS]!r} cannot be read as a number: write it with at most "
+                            f"{MAX_DIGITS} digits and its unit, such as 3/16 in or 5 mm.") from None
+
+    return checked
 
 
 _EXAMPLES = {
@@ -84,6 +167,7 @@ _EXAMPLES = {
     "force": "12.5 kip or 55 kN",
     "speed": "12 in/min or 300 mm/min",
     "flow": "35 cfh or 16 L/min",
+    "number": "0.5 or 0,5",
 }
 
 
@@ -91,7 +175,7 @@ def _quantity(text, what):
     """Split '1-1/2 in' into (Fraction(3, 2), 'in'); the unit may be None."""
     match = _QUANTITY.match(text)
     if not match:
-        raise UnitError(f"'{text}' is not a {what}: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"'{text}' is not {_a(what)}: write it as {_EXAMPLES[what]}.")
     if match["dec"] is not None:
         try:
             value = Fraction(Decimal(match["dec"]))
@@ -160,6 +244,7 @@ def length_from_mm(mm) -> Length:
     return Length(Decimal(str(mm)))
 
 
+@_refuses_arithmetic
 def parse_length(text, default_unit: str | None = None) -> Length:
     """Read a length such as '3/16 in', '1-1/2"', '0.1875 in', '5 mm', "2'-6\"".
 
@@ -186,7 +271,8 @@ def parse_length(text, default_unit: str | None = None) -> Length:
 
 def _bounded(length: Length, text: str) -> Length:
     if length.mm > MAX_LENGTH_MM:
-        raise UnitError(f"'{text}' is longer than 100 m: check the number and the unit.")
+        raise UnitError(f"'{text}' is longer than 100 m, longer than any weld, plate or member in a fabrication "
+                        "shop, so it is taken as a typo: check the number and the unit.")
     return length
 
 
@@ -211,8 +297,9 @@ def inch_fraction(inches: Decimal, finest: int = 32) -> tuple[int, int, int, boo
 def format_length(length: Length, system: str = "US", *, mm_places: int = 2) -> str:
     """Print a length as a person of that system writes it: 3/16", 1-1/2", 12"; 6 mm, 2.5 mm.
 
-    US: exact binary fractions as they are, others to the nearest 1/32, except a length under 1/32 in
-    that is no binary fraction (0.01 in), which prints in decimal inches rather than as 0".
+    US: exact binary fractions as they are, others to the nearest 1/32 with ≈ before them (6 mm: ≈1/4"), except a
+    length under 1/32 in that is no binary fraction (0.01 in), which prints in decimal inches rather than as 0"
+    (with ≈ when that rounds it: 0.25 mm is ≈0.01").
     """
     if not isinstance(length, Length):
         length = parse_length(length)
@@ -222,16 +309,20 @@ def format_length(length: Length, system: str = "US", *, mm_places: int = 2) -> 
     whole, num, den, exact = inch_fraction(length.inch)
     if not exact and 0 < length.inch < Decimal(1) / 32:
         # Tolerances finer than 1/32 (the 0.01 in undercut limit) would print as 0": show decimals.
-        return f'{_plain(length.inch.quantize(Decimal("0.001"), rounding=ROUND_HALF_UP))}"'
+        shown = length.inch.quantize(Decimal("0.001"), rounding=ROUND_HALF_UP)
+        return f'{"" if shown == length.inch else APPROX}{_plain(shown)}"'
+    mark = "" if exact else APPROX  # a metric (or odd decimal) value rounded to the nearest 1/32 in
     if num == 0:
-        return f'{whole}"'
+        return f'{mark}{whole}"'
     if whole == 0:
-        return f'{num}/{den}"'
-    return f'{whole}-{num}/{den}"'
+        return f'{mark}{num}/{den}"'
+    return f'{mark}{whole}-{num}/{den}"'
 
 
 def _normal(value: Decimal) -> Decimal:
-    """Strip trailing zeros without turning 30 into 3E+1."""
+    """Strip trailing zeros without turning 30 into 3E+1, and print -0 (-0.3 °F rounded) as 0."""
+    if value == 0:
+        return Decimal(0)
     value = value.normalize()
     return value.quantize(Decimal(1)) if value.as_tuple().exponent > 0 else value
 
@@ -271,14 +362,24 @@ _TEMP_UNITS = {"f": "F", "°f": "F", "degf": "F", "deg f": "F", "fahrenheit": "F
 _TEMPERATURE = re.compile(r"^\s*(?P<sign>-)?\s*(?P<num>[0-9]+(?:\.[0-9]+)?)\s*(?P<unit>[^\s0-9].*?)?\s*$")
 
 
+def _temperature_text(text: str) -> str:
+    text = _normalise(text)
+    if _EXPONENT.search(text):
+        raise UnitError(f"'{text}': write the number out in full (exponents such as 1e3 are not read).")
+    return _numbers(text, "temperature")
+
+
+@_refuses_arithmetic
 def parse_temperature(text, default_unit: str | None = None) -> Temperature:
     """Read '50 F', '10 C', '150°F'. A temperature without its unit is refused (50 F is not 50 C)."""
     if isinstance(text, Temperature):
         return text
     if not isinstance(text, str):
         raise UnitError(f"A temperature must be text such as {_EXAMPLES['temperature']}.")
-    text = unicodedata.normalize("NFKC", text).replace("\u2212", "-").strip()
-    if not text or len(text) > MAX_INPUT_CHARS:
+    if len(text) > MAX_INPUT_CHARS:
+        raise UnitError(f"A temperature is too long to be a temperature: write it as {_EXAMPLES['temperature']}.")
+    text = _temperature_text(text)
+    if not text:
         raise UnitError(f"Enter a temperature, for example {_EXAMPLES['temperature']}.")
     match = _TEMPERATURE.match(text)
     if not match:
@@ -286,7 +387,7 @@ def parse_temperature(text, default_unit: str | None = None) -> Temperature:
     unit = match["unit"] or default_unit
     if unit is None:
         raise UnitError(f"'{text}' has no unit: write {text} F or {text} C.")
-    scale = _TEMP_UNITS.get(unit.strip().lower().replace("º", "°"))
+    scale = _TEMP_UNITS.get(unit.strip().lower())
     if scale is None:
         raise UnitError(f"'{unit}' is not a temperature unit: use F or C.")
     value = Decimal(match["num"]) * (-1 if match["sign"] else 1)
@@ -317,9 +418,9 @@ def _parse_scaled(text, what, units: dict, default_unit=None, allow_zero=True) -
         unit = default_unit
     key = unit.lower().replace(" ", "")
     if key not in units:
-        raise UnitError(f"'{unit}' is not a {what} unit: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"'{unit}' is not {_a(what)} unit: write it as {_EXAMPLES[what]}.")
     if not allow_zero and value == 0:
-        raise UnitError(f"A {what} of zero is not possible here: write it as {_EXAMPLES[what]}.")
+        raise UnitError(f"{_cap(_a(what))} of zero is not possible here: write it as {_EXAMPLES[what]}.")
     base = _to_decimal(value) * units[key][0]
     return base, units[key][1]
 
@@ -339,6 +440,7 @@ _STRESS_UNITS = {"ksi": (KSI_TO_MPA, "US"), "mpa": (Decimal(1), "SI"), "n/mm2": 
                  "n/mm²": (Decimal(1), "SI"), "psi": (KSI_TO_MPA / 1000, "US")}
 
 
+@_refuses_arithmetic
 def parse_stress(text, default_unit=None) -> tuple[Stress, str]:
     """Read '70 ksi' or '480 MPa'; returns the stress and the system it was written in."""
     if isinstance(text, Stress):
@@ -366,6 +468,7 @@ _FORCE_UNITS = {"kn": (Decimal(1), "SI"), "n": (Decimal("0.001"), "SI"), "kip": 
                 "lb": (KIP_TO_KN / 1000, "US")}
 
 
+@_refuses_arithmetic
 def parse_force(text, default_unit=None) -> Force:
     """Read '12.5 kip', '55 kN'."""
     if isinstance(text, Force):
@@ -398,6 +501,7 @@ _SPEED_UNITS = {"mm/min": (Decimal(1), "SI"), "mm/s": (Decimal(60), "SI"), "cm/m
                 "in/s": (MM_PER_INCH * 60, "US")}
 
 
+@_refuses_arithmetic
 def parse_speed(text, default_unit=None) -> Speed:
     """Read '12 in/min', '300 mm/min', '5 mm/s', '7.5 m/min' (wire feed)."""
     if isinstance(text, Speed):
@@ -428,6 +532,7 @@ _FLOW_UNITS = {"l/min": (Decimal(1), "SI"), "lpm": (Decimal(1), "SI"), "cfh": (C
                "ft3/h": (CFH_TO_LPM, "US")}
 
 
+@_refuses_arithmetic
 def parse_flow(text, default_unit=None) -> Flow:
     """Read '35 cfh', '16 L/min'."""
     if isinstance(text, Flow):
@@ -442,6 +547,29 @@ def format_flow(flow: Flow, system="US") -> str:
     return f"{_plain(flow.l_per_min.quantize(Decimal(1), rounding=ROUND_HALF_UP))} L/min"
 
 
+# --- angles: a weld toe angle, the angle between a load and a weld ------------------------------------------
+
+_EXAMPLES["angle"] = "100° or 100 deg"
+_ANGLE_UNITS = {"°": Decimal(1), "deg": Decimal(1), "degree": Decimal(1), "degrees": Decimal(1)}
+
+
+@_refuses_arithmetic
+def parse_angle(value, low=0, high=180) -> Decimal:
+    """Read an angle in degrees: '100°', '100 deg', '100', 100. Outside low..high (inclusive) is refused."""
+    if isinstance(value, bool) or not isinstance(value, (str, int, Decimal)):
+        raise UnitError(f"An angle is written in degrees such as {_EXAMPLES['angle']}, not {type(value).__name__}.")
+    text = value if isinstance(value, str) else format(value, "f")
+    text = _clean(text, "angle")
+    number, unit = _quantity(text, "angle")
+    if unit is not None and unit.lower() not in _ANGLE_UNITS:
+        raise UnitError(f"'{unit}' is not a unit of angle: write the angle in degrees, such as {_EXAMPLES['angle']}.")
+    degrees = _to_decimal(number)
+    if not Decimal(low) <= degrees <= Decimal(high):
+        raise UnitError(f"'{text}' is outside {low}° to {high}°: write the angle in degrees, such as "
+                        f"{_EXAMPLES['angle']}.")
+    return _normal(degrees)
+
+
 def significant(value: Decimal, figures: int = 3) -> Decimal:
     """Round to significant figures for printing a result (arithmetic keeps full precision)."""
     if value == 0:
@@ -450,6 +578,7 @@ def significant(value: Decimal, figures: int = 3) -> Decimal:
     return value.quantize(Decimal(1).scaleb(exponent), rounding=ROUND_HALF_UP)
 
 
+@_refuses_arithmetic
 def length_system(text) -> str | None:
     """'US' when a length was written in inches or feet, 'SI' in mm, cm or m; None for a Length value.
 
@@ -486,6 +615,7 @@ class Area:
         return self.mm2 / (MM_PER_INCH * MM_PER_INCH)
 
 
+@_refuses_arithmetic
 def parse_area(text, default_unit=None) -> Area:
     """Read '4.5 in2', '4.5 in²', '2900 mm2'. Zero is refused: no member carries load on no area."""
     if isinstance(text, Area):
@@ -507,10 +637,12 @@ _VOLTAGE_UNITS = {"v": (Decimal(1), ""), "volt": (Decimal(1), ""), "volts": (Dec
 def _electrical_text(value, what):
     """Amps and volts have one unit each, so a bare number is read; a bool or a float NaN is not a reading."""
     if isinstance(value, bool) or not isinstance(value, (str, int, Decimal)):
-        raise UnitError(f"{what} must be text or a number such as {_EXAMPLES[what]}, not {type(value).__name__}.")
+        raise UnitError(f"{_cap(_a(what))} must be text or a number such as {_EXAMPLES[what]}, "
+                        f"not {type(value).__name__}.")
     return value if isinstance(value, str) else format(value, "f")
 
 
+@_refuses_arithmetic
 def parse_amperage(value) -> Decimal:
     """Read welding current in amperes: '200 A', '200', 200. Above 2000 A is refused (no single arc runs there)."""
     amps, _ = _parse_scaled(_electrical_text(value, "amperage"), "amperage", _AMPERAGE_UNITS, "A", allow_zero=False)
@@ -519,6 +651,7 @@ def parse_amperage(value) -> Decimal:
     return _normal(amps)
 
 
+@_refuses_arithmetic
 def parse_voltage(value) -> Decimal:
     """Read arc voltage in volts: '25 V', '25', 25. Above 100 V is refused (arc voltages run about 15-45 V)."""
     volts, _ = _parse_scaled(_electrical_text(value, "voltage"), "voltage", _VOLTAGE_UNITS, "V", allow_zero=False)
@@ -555,6 +688,7 @@ _HEAT_INPUT_UNITS = {"kj/mm": (Fraction(1), "SI"), "j/mm": (Fraction(1, 1000), "
                      "kj/in": (1 / Fraction(MM_PER_INCH), "US"), "kj/in.": (1 / Fraction(MM_PER_INCH), "US")}
 
 
+@_refuses_arithmetic
 def parse_heat_input(text) -> HeatInput:
     """Read '30 kJ/in', '1.2 kJ/mm', '1200 J/mm', '12 kJ/cm'.
 
@@ -584,6 +718,7 @@ def format_heat_input(heat_input: HeatInput, system: str = "US", figures: int = 
     return f"{_plain(significant(heat_input.kj_per_mm, figures))} kJ/mm"
 
 
+@_refuses_arithmetic
 def temperature_system(text) -> str | None:
     """'US' when a temperature was written in F, 'SI' in C; None for a Temperature value.
 
@@ -592,5 +727,5 @@ def temperature_system(text) -> str | None:
     if isinstance(text, Temperature):
         return None
     parse_temperature(text)  # refuses what is not a temperature, with the usual message
-    match = _TEMPERATURE.match(unicodedata.normalize("NFKC", text).replace("\u2212", "-").strip())
-    return "US" if _TEMP_UNITS[match["unit"].strip().lower().replace("º", "°")] == "F" else "SI"
+    match = _TEMPERATURE.match(_temperature_text(text))
+    return "US" if _TEMP_UNITS[match["unit"].strip().lower()] == "F" else "SI"

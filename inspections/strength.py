@@ -29,6 +29,7 @@ from core.units import (
     format_length,
     inch_fraction,
     length_system,
+    number_text,
     parse_area,
     parse_force,
     parse_length,
@@ -45,7 +46,7 @@ ENGINE_VERSION = "2026-12-02"
 PHI_WELD, OMEGA_WELD = Decimal("0.75"), Decimal("2.00")  # AISC 360-16 J2.4, Table J2.5 (fillet, shear)
 FNW_FACTOR = Decimal("0.60")  # Fnw = 0.60 FEXX, AISC 360-16 Table J2.5
 DIRECTIONAL = Decimal("0.50")  # Fnw = 0.60 FEXX (1.0 + 0.50 sin^1.5 theta), AISC 360-16 J2.4(a)
-GROUP_LONGITUDINAL, GROUP_TRANSVERSE = Decimal("0.85"), Decimal("1.5")  # AISC 360-16 J2.4(c)
+GROUP_LONGITUDINAL, GROUP_TRANSVERSE = Decimal("0.85"), Decimal("1.5")  # AISC 360-16 J2.4(b) (360-10: J2.4(c))
 PHI_SHEAR_YIELD, OMEGA_SHEAR_YIELD = Decimal("1.00"), Decimal("1.50")  # AISC 360-16 J4.2(a)
 PHI_SHEAR_RUPTURE, OMEGA_SHEAR_RUPTURE = Decimal("0.75"), Decimal("2.00")  # AISC 360-16 J4.2(b)
 PHI_TENSION_YIELD, OMEGA_TENSION_YIELD = Decimal("0.90"), Decimal("1.67")  # AISC 360-16 J4.1(a)
@@ -151,7 +152,7 @@ class FilletStrength:
 
 @dataclass(frozen=True)
 class WeldGroupStrength:
-    """Longitudinal plus transverse fillet welds of one connection, AISC 360-16 J2.4(c)."""
+    """Longitudinal plus transverse fillet welds of one connection, AISC 360-16 J2.4(b) (J2.4(c) in 360-10)."""
 
     longitudinal: list
     transverse: list
@@ -274,7 +275,10 @@ def _angle(angle) -> Decimal:
         raise ValueError(f"Angle {angle!r} is not a number: {hint}.")
     if isinstance(angle, float) and not math.isfinite(angle):
         raise ValueError(f"Angle {angle!r} is not a number: {hint}.")
-    text = str(angle).strip().lower()
+    try:
+        text = (number_text(angle, "angle") if isinstance(angle, str) else str(angle)).strip().lower()
+    except UnitError as exc:
+        raise ValueError(f"Angle {angle!r}: {exc} {hint[:1].upper()}{hint[1:]}.") from None
     for suffix in ("degrees", "degree", "deg", "°"):
         text = text.removesuffix(suffix).strip()
     try:
@@ -592,12 +596,13 @@ def _segment(segment, fexx, where: str) -> FilletStrength:
     if "leg" not in segment or "length" not in segment:
         raise ValueError(f"{where}: a segment needs 'leg' and 'length', for example "
                          "{'leg': '1/4 in', 'length': '6 in'}.")
-    # J2.4(c): both Rnwl and Rnwt are taken with Fnw = 0.60 FEXX, without the directional increase of J2.4(a).
+    # J2.4(b): both Rnwl and Rnwt are taken with Fnw = 0.60 FEXX, without the directional increase of J2.4(a).
     return fillet_strength(fexx=fexx, angle=0, **segment)
 
 
 def weld_group_strength(longitudinal=(), transverse=(), fexx="70 ksi") -> WeldGroupStrength:
-    """Concentrically loaded group of longitudinal and transverse fillet welds of uniform leg, AISC 360-16 J2.4(c):
+    """Concentrically loaded group of longitudinal and transverse fillet welds of uniform leg, AISC 360-16 J2.4(b)
+    (J2.4(c) in the 2010 edition):
     Rn = max(Rnwl + Rnwt, 0.85 Rnwl + 1.5 Rnwt), both taken without the directional increase."""
     for name, value in (("longitudinal", longitudinal), ("transverse", transverse)):
         if isinstance(value, (str, dict)) or not hasattr(value, "__iter__"):
@@ -614,18 +619,18 @@ def weld_group_strength(longitudinal=(), transverse=(), fexx="70 ksi") -> WeldGr
     governs = "Rnwl + Rnwt" if plain >= combined else "0.85 Rnwl + 1.5 Rnwt"
     nominal = max(plain, combined)
     steps = [
-        Step("Longitudinal welds (AISC 360-16 J2.4(c))", "Rnwl = sum of 0.60 FEXX Awe of the longitudinal welds"
+        Step("Longitudinal welds (AISC 360-16 J2.4(b))", "Rnwl = sum of 0.60 FEXX Awe of the longitudinal welds"
              + (" = " + " + ".join(_force_text(s.nominal_kip, system) for s in longs) if longs else ""),
              _force_text(rnwl, system)),
-        Step("Transverse welds (AISC 360-16 J2.4(c))", "Rnwt = sum of 0.60 FEXX Awe of the transverse welds, "
+        Step("Transverse welds (AISC 360-16 J2.4(b))", "Rnwt = sum of 0.60 FEXX Awe of the transverse welds, "
              "without the directional increase" + (" = " + " + ".join(_force_text(s.nominal_kip, system)
                                                                         for s in trans) if trans else ""),
              _force_text(rnwt, system)),
-        Step("Case (a) (AISC 360-16 J2.4(c))", f"Rn = Rnwl + Rnwt = {_force_text(rnwl, system)} + "
+        Step("Case (a) (AISC 360-16 J2.4(b))", f"Rn = Rnwl + Rnwt = {_force_text(rnwl, system)} + "
              f"{_force_text(rnwt, system)}", _force_text(plain, system)),
-        Step("Case (b) (AISC 360-16 J2.4(c))", f"Rn = 0.85 Rnwl + 1.5 Rnwt = 0.85 x {_force_text(rnwl, system)} + "
+        Step("Case (b) (AISC 360-16 J2.4(b))", f"Rn = 0.85 Rnwl + 1.5 Rnwt = 0.85 x {_force_text(rnwl, system)} + "
              f"1.5 x {_force_text(rnwt, system)}", _force_text(combined, system)),
-        Step("Nominal strength, the larger case governs (AISC 360-16 J2.4(c))", f"Rn = {governs}",
+        Step("Nominal strength, the larger case governs (AISC 360-16 J2.4(b))", f"Rn = {governs}",
              _force_text(nominal, system, both=True)),
     ]
     steps.extend(_available_steps(nominal, PHI_WELD, OMEGA_WELD, system, "AISC 360-16 J2.4, Table J2.5"))

@@ -1,25 +1,31 @@
 """Draw a fillet weld symbol as SVG from a weld's data. Plain Python, no Django.
 
-Two conventions, chosen by the job's unit system:
+Two drawing standards, chosen by the job's code (not its unit system): an AWS D1.1 job draws AWS A2.4 in either
+unit system; an ISO 5817 job draws ISO 2553 (system A). symbol_for(system, standard=...) takes the standard; left
+out, it falls back to the old rule (US: AWS A2.4, SI: ISO 2553) so existing callers draw as before. The job's unit
+system decides only how the numbers read (fractions of an inch, or millimetres), never the layout.
 
-- US jobs: AWS A2.4 (Standard Symbols for Welding, Brazing, and Nondestructive Examination). One
-  reference line; the arrow-side weld is drawn BELOW the line, the other-side weld ABOVE it. Size to
-  the left of the symbol (fraction of an inch, no inch mark: "1/4"; unequal legs "1/4 x 3/8"), length
-  to the right ("12"), intermittent welds as length-pitch ("4-12", pitch centre to centre).
-- SI jobs: ISO 2553:2019 system A. A dual reference line: a solid reference line and a dashed
-  identification line below it. A weld on the arrow side is drawn on the solid line, one on the other
-  side on the dashed line; a weld on both sides needs no dashed line. The size carries its meaning as a
-  prefix: "a5" for a 5 mm throat, "z6" for a 6 mm leg (we store legs, so SI symbols print "z").
-  Intermittent welds as "l (e)": segment length and, in brackets, the gap between segments
-  (e = pitch - l); the number of segments "n x" goes first when it is known.
+- AWS A2.4 (Standard Symbols for Welding, Brazing, and Nondestructive Examination). One reference line; the
+  arrow-side weld is drawn BELOW the line, the other-side weld ABOVE it. Size to the left of the symbol (a fraction
+  of an inch with no inch mark, "1/4", or millimetres with no unit, "6"; unequal legs "1/4 x 3/8"), length to the
+  right ("12"), intermittent welds as length-pitch ("4-12", pitch centre to centre).
+- ISO 2553:2019 system A. A dual reference line: a solid reference line and a dashed identification line below
+  it. A weld on the arrow side is drawn on the solid line, one on the other side on the dashed line; a weld on both
+  sides needs no dashed line. The size carries its meaning as a prefix, as the drawing gives it: "a5" for a 5 mm
+  throat, "z6" for a 6 mm leg; unequal legs "z6 × 8". Intermittent welds as "l (e)": segment length and, in
+  brackets, the gap between segments (e = pitch - l); the number of segments "n × " goes first when it is known.
+  Dimensions use the multiplication sign ×, not the letter x.
 
-Both: the fillet is a right triangle with its perpendicular leg on the LEFT; the all-around circle sits
-at the junction of arrow and reference line; the field-weld flag rises from the same junction and points
-toward the tail; a tail (a fork at the far end) carries a reference such as the WPS number.
+Both: the fillet is a right triangle with its perpendicular leg on the LEFT; the all-around circle sits at the
+junction of arrow and reference line; the field-weld flag rises from the same junction (from the top of the
+all-around circle when there is one, so the staff never crosses it) and points toward the tail; a tail (a fork at
+the far end) is drawn only when it carries a reference such as the WPS number (AWS A2.4 and ISO 2553 both omit an
+empty tail).
 
-From memory, not checked against the documents: the ISO "l (e)" form and the "n x" prefix, placing the
-dashed line below the solid one (ISO 2553 allows either; below is what we draw), the unequal-leg form
-"z6 x 8", and the AWS field-flag direction (A2.4 allows either; toward the tail is what we draw).
+From memory, not checked against the documents: the ISO "l (e)" form and the "n ×" prefix, placing the dashed
+line below the solid one (ISO 2553 allows either; below is what we draw), the unequal-leg form "z6 × 8", the AWS
+field-flag direction (A2.4 allows either; toward the tail is what we draw), and that a symbol whose drawing gives
+both the throat and the leg prints the throat (a), the ISO design dimension.
 
 Every element carries a class (ws-ref-line, ws-id-line, ws-arrow, ws-fillet ws-arrow-side/ws-other-side,
 ws-size, ws-length, ws-all-around, ws-field-flag, ws-tail) so tests and stylesheets can find it; the SVG
@@ -35,7 +41,9 @@ from core.units import Length, format_length, parse_length
 
 AWS = "AWS A2.4"
 ISO = "ISO 2553:2019"
+STANDARDS = (AWS, ISO)
 SIDES = ("arrow", "other", "both")
+TIMES = "\u00d7"  # ×, the multiplication sign of ISO dimensions
 
 # Geometry (SVG user units; the symbol is 270 x 60 and scales with its width attribute).
 WIDTH, HEIGHT = 270, 60  # drawn from y = TOP down
@@ -44,6 +52,7 @@ REF_Y = 40  # the reference (solid) line
 ID_GAP = 6  # ISO: the dashed identification line lies this far below the solid line
 JUNCTION_X = 46  # where the arrow meets the reference line
 REF_END_X = 206  # far end of the reference line, where the tail starts
+ALL_AROUND_R = 5.5  # radius of the all-around circle at the junction
 ARROW_TIP = (16, 68)  # the arrowhead touches the joint here
 SYMBOL_X = 118  # left (perpendicular) leg of the fillet triangle
 LEG = 13  # triangle leg length
@@ -92,39 +101,68 @@ def _number(length: Length, system: str) -> str:
     return text[:-1] if system == "US" else text[: -len(" mm")]
 
 
-def symbol_for(system: str, *, sides="arrow", size=None, size2=None, length=None, pitch=None, segments=None,
-               all_around=False, field_weld=False, tail="", joint="fillet") -> WeldSymbol:
-    """The symbol of a weld in the convention of its job's unit system ("US": AWS A2.4, "SI": ISO 2553).
+def drawing_standard(code) -> str:
+    """The drawing standard of a job's code: AWS A2.4 for an AWS D1.1 job, ISO 2553 for an ISO 5817 job.
 
-    Lengths are core.units.Length values or strings with a unit ("1/4 in", "6 mm"). ValueError names what
-    is wrong (an unknown side or system, a pitch not longer than the segment).
+    code: a criteria set key ("aws-d1.1-2020-static", "iso-5817-2014-C"), a code name ("AWS D1.1:2020",
+    "ISO 5817:2014"), a drawing standard (AWS, ISO, "AWS", "ISO"), or a criteria set or its stored dict."""
+    if isinstance(code, str):
+        word = code.strip().upper()
+        if word in (AWS.upper(), "AWS") or word.startswith("AWS"):
+            return AWS
+        if word in (ISO.upper(), "ISO") or word.startswith("ISO"):
+            return ISO
+    standard = getattr(code, "standard", None) or (code.get("standard") if isinstance(code, dict) else None)
+    if isinstance(standard, str) and standard != code:
+        return drawing_standard(standard)
+    raise ValueError(f"The drawing standard follows the job's code: AWS D1.1 jobs draw {AWS}, ISO 5817 jobs draw "
+                     f"{ISO}; {code!r} is neither.")
+
+
+def symbol_for(system: str, *, standard=None, sides="arrow", size=None, size2=None, throat=None, length=None,
+               pitch=None, segments=None, all_around=False, field_weld=False, tail="", joint="fillet") -> WeldSymbol:
+    """The symbol of a weld, drawn to `standard` (AWS A2.4 or ISO 2553: see drawing_standard) with numbers in the
+    job's unit system ("US": inches, "SI": millimetres). standard=None keeps the old rule: US draws AWS A2.4, SI
+    draws ISO 2553.
+
+    size (and size2 for unequal legs) is the leg z; throat the throat a, where the drawing gives it (ISO prints
+    "a" then; AWS A2.4 gives the leg, so it needs size). Lengths are core.units.Length values or strings with a
+    unit ("1/4 in", "6 mm"). ValueError names what is wrong (an unknown side, system or standard, a pitch not
+    longer than the segment).
     """
     if system not in ("US", "SI"):
         raise ValueError(f"Unit system must be 'US' or 'SI', not {system!r}.")
+    convention = (AWS if system == "US" else ISO) if standard is None else drawing_standard(standard)
     if sides not in SIDES:
         raise ValueError(f"Sides must be one of {', '.join(SIDES)}, not {sides!r}.")
-    size, size2, length, pitch = (_as_length(v) for v in (size, size2, length, pitch))
-    if size is None:
-        raise ValueError("A fillet weld symbol needs the leg size.")
+    size, size2, throat, length, pitch = (_as_length(v) for v in (size, size2, throat, length, pitch))
+    if size is None and (convention == AWS or throat is None):
+        raise ValueError("A fillet weld symbol needs the leg size" + (" (AWS A2.4 gives the leg, not the throat)."
+                                                                      if convention == AWS else
+                                                                      " or the throat a."))
     if pitch is not None and length is None:
         raise ValueError("An intermittent weld needs its segment length as well as its pitch.")
     if pitch is not None and pitch.mm <= length.mm:
         raise ValueError("The pitch (centre to centre of segments) must be longer than the segment length.")
-    if system == "US":
-        size_text = _number(size, "US") + (f" x {_number(size2, 'US')}" if size2 and size2 != size else "")
+    unequal = size2 is not None and size is not None and size2 != size
+    if convention == AWS:
+        size_text = _number(size, system) + (f" x {_number(size2, system)}" if unequal else "")
         length_text = ""
         if length is not None:
-            length_text = _number(length, "US") + (f"-{_number(pitch, 'US')}" if pitch else "")
+            length_text = _number(length, system) + (f"-{_number(pitch, system)}" if pitch else "")
         return WeldSymbol(AWS, sides, size_text, length_text, bool(all_around), bool(field_weld), tail or "", joint)
-    size_text = "z" + _number(size, "SI") + (f" x {_number(size2, 'SI')}" if size2 and size2 != size else "")
+    if throat is not None:
+        size_text = "a" + _number(throat, system)
+    else:
+        size_text = "z" + _number(size, system) + (f" {TIMES} {_number(size2, system)}" if unequal else "")
     length_text = ""
     if length is not None:
-        length_text = _number(length, "SI")
+        length_text = _number(length, system)
         if pitch is not None:
             gap = Length(pitch.mm - length.mm)
-            length_text = f"{length_text} ({_number(gap, 'SI')})"
+            length_text = f"{length_text} ({_number(gap, system)})"
             if segments:
-                length_text = f"{int(segments)} x {length_text}"
+                length_text = f"{int(segments)} {TIMES} {length_text}"
     return WeldSymbol(ISO, sides, size_text, length_text, bool(all_around), bool(field_weld), tail or "", joint)
 
 
@@ -169,23 +207,32 @@ def _arrow() -> list[str]:
     ]
 
 
-def _field_flag() -> str:
-    top = REF_Y - 25
+FLAG_TOP = REF_Y - 25
+
+
+def _staff_foot(symbol: WeldSymbol) -> float:
+    """Where the flag staff starts: the junction, or the top of the all-around circle (the staff never crosses it)."""
+    return REF_Y - ALL_AROUND_R if symbol.all_around else REF_Y
+
+
+def _field_flag(symbol: WeldSymbol) -> str:
+    top = FLAG_TOP
     pennant = f"{JUNCTION_X},{top} {JUNCTION_X + 14},{top + 5} {JUNCTION_X},{top + 10}"
     return ('<g class="ws-field-flag">'
-            + _line(JUNCTION_X, REF_Y, JUNCTION_X, top, "ws-flag-staff")
+            + _line(JUNCTION_X, _staff_foot(symbol), JUNCTION_X, top, "ws-flag-staff")
             + f'<polygon class="ws-flag" points="{pennant}" fill="{INK}" stroke="{INK}" stroke-width="0.6"/>'
             + "</g>")
 
 
 def _tail(symbol: WeldSymbol) -> list[str]:
-    parts = ['<g class="ws-tail">',
-             _line(REF_END_X, REF_Y, REF_END_X + 9, REF_Y - 9, "ws-tail-line"),
-             _line(REF_END_X, REF_Y, REF_END_X + 9, REF_Y + 9, "ws-tail-line")]
-    if symbol.tail:
-        parts.append(_text(REF_END_X + 11, REF_Y + 3.5, symbol.tail, "ws-tail-text", size=8))
-    parts.append("</g>")
-    return parts
+    """The tail fork with its reference; nothing when there is no reference (no empty fork)."""
+    if not symbol.tail:
+        return []
+    return ['<g class="ws-tail">',
+            _line(REF_END_X, REF_Y, REF_END_X + 9, REF_Y - 9, "ws-tail-line"),
+            _line(REF_END_X, REF_Y, REF_END_X + 9, REF_Y + 9, "ws-tail-line"),
+            _text(REF_END_X + 11, REF_Y + 3.5, symbol.tail, "ws-tail-text", size=8),
+            "</g>"]
 
 
 def svg(symbol: WeldSymbol, width: str | None = None, *, title: bool = True) -> str:
@@ -216,13 +263,17 @@ def svg(symbol: WeldSymbol, width: str | None = None, *, title: bool = True) -> 
         # Only fillet welds are drawn; other joints say so in words where the symbol would be.
         out.append(_text(SYMBOL_X, REF_Y - 4, f"{symbol.joint}: see drawing", "ws-note", size=9))
     if symbol.all_around:
-        out.append(f'<circle class="ws-all-around" cx="{JUNCTION_X}" cy="{REF_Y}" r="5.5" fill="none" '
-                   f'stroke="{INK}" stroke-width="1.4"/>')
+        out.append(_all_around())
     if symbol.field_weld:
-        out.append(_field_flag())
+        out.append(_field_flag(symbol))
     out += _tail(symbol)
     out.append("</svg>")
     return "".join(out)
+
+
+def _all_around() -> str:
+    return (f'<circle class="ws-all-around" cx="{JUNCTION_X}" cy="{REF_Y}" r="{ALL_AROUND_R}" fill="none" '
+            f'stroke="{INK}" stroke-width="1.4"/>')
 
 
 def _placements(symbol: WeldSymbol) -> list[tuple[str, float, bool]]:
@@ -245,7 +296,8 @@ def print_svg(symbol: WeldSymbol, width: str | None = None) -> str:
     triangles, tail fork, field-flag staff) is ONE path, the two filled heads (arrowhead, pennant) a second one;
     the ISO dashed identification line, the all-around circle and the texts stay elements of their own. Same
     geometry and classes as svg(): the stroked path's subpaths are, in order, the reference line, the leader,
-    the fillet triangle(s) (arrow side first), the tail fork and the flag staff. No <title> and no tail text.
+    the fillet triangle(s) (arrow side first), the tail fork (only with a reference, whose text is printed too)
+    and the flag staff. No <title>.
     """
     f = _fmt
     tip_x, tip_y = ARROW_TIP
@@ -262,11 +314,14 @@ def print_svg(symbol: WeldSymbol, width: str | None = None) -> str:
             texts += _dimensions(symbol, base_y, up, side)
     else:
         texts.append(_text(SYMBOL_X, REF_Y - 4, f"{symbol.joint}: see drawing", "ws-note", size=9))
-    strokes.append(f"M{f(REF_END_X + 9)} {f(REF_Y - 9)}L{f(REF_END_X)} {f(REF_Y)}L{f(REF_END_X + 9)} {f(REF_Y + 9)}")
-    classes.append("ws-tail")
+    if symbol.tail:
+        strokes.append(f"M{f(REF_END_X + 9)} {f(REF_Y - 9)}L{f(REF_END_X)} {f(REF_Y)}L{f(REF_END_X + 9)} "
+                       f"{f(REF_Y + 9)}")
+        classes.append("ws-tail")
+        texts.append(_text(REF_END_X + 11, REF_Y + 3.5, symbol.tail, "ws-tail-text", size=8))
     if symbol.field_weld:
-        top = REF_Y - 25
-        strokes.append(f"M{f(JUNCTION_X)} {f(REF_Y)}V{f(top)}")
+        top = FLAG_TOP
+        strokes.append(f"M{f(JUNCTION_X)} {f(_staff_foot(symbol))}V{f(top)}")
         fills.append(f"M{f(JUNCTION_X)} {f(top)}L{f(JUNCTION_X + 14)} {f(top + 5)}L{f(JUNCTION_X)} {f(top + 10)}Z")
         classes.append("ws-field-flag")
     size_attrs = f' width="{width}"' if width else ""
@@ -282,8 +337,7 @@ def print_svg(symbol: WeldSymbol, width: str | None = None) -> str:
         out.append(_line(JUNCTION_X + 4, REF_Y + ID_GAP, REF_END_X - 4, REF_Y + ID_GAP, "ws-id-line", dashed=True,
                          width="1.1"))
     if symbol.all_around:
-        out.append(f'<circle class="ws-all-around" cx="{JUNCTION_X}" cy="{REF_Y}" r="5.5" fill="none" '
-                   f'stroke="{INK}" stroke-width="1.4"/>')
+        out.append(_all_around())
     out += texts
     out.append("</svg>")
     return "".join(out)
@@ -293,10 +347,13 @@ def _fmt(value: float) -> str:
     return f"{value:g}"
 
 
-def weld_symbol_svg(system: str, width: str | None = None, *, title: bool = True, lean: bool = False, **weld) -> str:
-    """symbol_for(system, **weld) drawn: the one call pages and PDFs make (lean=True: print_svg, for PDFs)."""
-    symbol = symbol_for(system, **weld)
+def weld_symbol_svg(system: str, width: str | None = None, *, title: bool = True, lean: bool = False, standard=None,
+                    **weld) -> str:
+    """symbol_for(system, standard=standard, **weld) drawn: the one call pages and PDFs make (lean=True: print_svg,
+    for PDFs). Pass the job's code as standard (a criteria key will do); left out, US draws AWS, SI draws ISO."""
+    symbol = symbol_for(system, standard=standard, **weld)
     return print_svg(symbol, width=width) if lean else svg(symbol, width=width, title=title)
 
 
-__all__ = ["AWS", "ISO", "WeldSymbol", "print_svg", "svg", "symbol_for", "weld_symbol_svg"]
+__all__ = ["AWS", "ISO", "STANDARDS", "WeldSymbol", "drawing_standard", "print_svg", "svg", "symbol_for",
+           "weld_symbol_svg"]

@@ -270,16 +270,13 @@ def _limit(us: str, si: str) -> Limit:
 
 
 def _show(length: Length, system: str) -> str:
-    """A length as its system writes it; '≈' before inches that are rounded (a metric value to the nearest 1/32)."""
-    text = format_length(length, system)
-    if system != "SI" and parse_length(text.replace('"', " in")).mm != length.mm:
-        return f"≈{text}"
-    return text
+    """A length as its system writes it (core.units marks rounded inches with '≈')."""
+    return format_length(length, system)
 
 
 def _temperature(value: Temperature, system: str) -> str:
-    """A temperature rounded to whole degrees, never '-0 °F' (a value just below zero rounds to 0)."""
-    return re.sub(r"^-0(?=\s)", "0", format_temperature(value, system))
+    """A temperature rounded to whole degrees (core.units never prints '-0 °F')."""
+    return format_temperature(value, system)
 
 
 def _pos_name(position: str) -> str:

@@ -606,9 +606,8 @@ class QualificationStatus:
 
 
 def _inches(length: Length) -> str:
-    """Inches as a fitter writes them; '≈' before a value that is rounded (a metric thickness to 1/32 in)."""
-    text = format_length(length, "US")
-    return text if parse_length(text.replace('"', " in")).mm == length.mm else f"≈{text}"
+    """Inches as a fitter writes them (core.units marks a rounded metric thickness with '≈')."""
+    return format_length(length, "US")
 
 
 def _show(length: Length, code: str) -> str:

@@ -1,10 +1,11 @@
-"""Weld symbols drawn as SVG: AWS A2.4 on US jobs, ISO 2553:2019 system A on SI jobs (structure, not pixels).
+"""Weld symbols drawn as SVG: AWS A2.4 on AWS D1.1 jobs, ISO 2553:2019 system A on ISO 5817 jobs, whatever the
+unit system (structure, not pixels); without a standard, US draws AWS and SI draws ISO as before.
 
 AWS A2.4: arrow-side weld below the reference line, other side above; size left of the symbol, length (and
 pitch, as length-pitch) right of it; all-around circle and field-weld flag at the arrow/reference junction.
 ISO 2553:2019 system A: solid reference line plus dashed identification line; arrow-side weld on the solid line,
-other side on the dashed line; no dashed line for a weld on both sides; "z" prefix for the leg (the l (e) form
-for intermittent welds is from memory).
+other side on the dashed line; no dashed line for a weld on both sides; "z" prefix for the leg, "a" for the throat,
+"×" in dimensions (the l (e) form for intermittent welds and "n ×" are from memory). Both omit an empty tail.
 """
 
 import re
@@ -12,7 +13,8 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from inspections.weld_symbols import AWS, ISO, REF_Y, symbol_for, weld_symbol_svg
+from inspections.criteria import get_criteria
+from inspections.weld_symbols import ALL_AROUND_R, AWS, ISO, REF_Y, drawing_standard, symbol_for, weld_symbol_svg
 
 NS = {"s": "http://www.w3.org/2000/svg"}
 
@@ -84,6 +86,8 @@ def test_all_around_circle_and_field_flag_sit_at_the_arrow_junction():
     (flag,) = by_class(root, "ws-field-flag")
     staff = by_class(flag, "ws-flag-staff")[0]
     assert float(staff.get("x1")) == float(circle.get("cx")) and float(staff.get("y2")) < REF_Y
+    # the staff stands on the circle: no point of it lies inside the circle
+    assert max(float(staff.get("y1")), float(staff.get("y2"))) <= float(circle.get("cy")) - float(circle.get("r"))
 
 
 def test_the_arrow_leads_from_the_reference_line_to_the_joint_with_a_head():
@@ -117,7 +121,7 @@ def test_iso_other_side_hangs_from_the_dashed_line():
     (ident,) = by_class(root, "ws-id-line")
     (fillet,) = by_class(root, "ws-fillet")
     assert min(y for _, y in fillet_points(fillet)) == float(ident.get("y1"))
-    assert texts(root, "ws-length") == ["4 x 50 (100)"]  # n x l (e), e = pitch - l: from memory
+    assert texts(root, "ws-length") == ["4 \u00d7 50 (100)"]  # n × l (e), e = pitch - l: from memory
 
 
 def test_iso_both_sides_needs_no_identification_line():
@@ -209,7 +213,7 @@ def test_the_lean_iso_symbol_keeps_the_dashed_line_and_hangs_the_other_side_from
     assert ident.get("stroke-dasharray") and float(ident.get("y1")) > REF_Y
     (triangle,) = triangles(root)
     assert min(y for _, y in triangle) == float(ident.get("y1"))
-    assert texts(root, "ws-size") == ["z8"] and texts(root, "ws-length") == ["4 x 50 (100)"]
+    assert texts(root, "ws-size") == ["z8"] and texts(root, "ws-length") == ["4 \u00d7 50 (100)"]
     assert not by_class(lean("SI", sides="both", size="5 mm"), "ws-id-line")
 
 
@@ -225,7 +229,8 @@ def test_the_lean_symbol_keeps_all_around_and_field_flag_at_the_junction():
     assert (float(circle.get("cx")), float(circle.get("cy"))) == subpaths(root)[1][0]  # where the leader starts
     staff = subpaths(root)[-1]
     assert "ws-field-flag" in by_class(root, "ws-strokes")[0].get("class")
-    assert staff[0] == (float(circle.get("cx")), REF_Y) and staff[1][1] < REF_Y  # the staff rises from it
+    # the staff rises from the top of the circle, not through it
+    assert staff[0] == (float(circle.get("cx")), REF_Y - float(circle.get("r"))) and staff[1][1] < staff[0][1]
     (heads,) = by_class(root, "ws-heads")
     assert heads.get("d").count("Z") == 2  # arrowhead and pennant
     plain = lean("US", sides="arrow", size="1/4 in")
@@ -237,3 +242,88 @@ def test_the_lean_symbol_says_so_for_a_groove_and_escapes_text():
     root = lean("US", size="1/4 in", joint="groove")
     assert not triangles(root) and "see drawing" in texts(root, "ws-note")[0]
     assert "&lt;A&amp;B&gt;" in weld_symbol_svg("US", lean=True, size="1/4 in", joint="<A&B>")
+
+
+# --- the drawing standard follows the job's code, not its unit system ------------------------------------------
+
+def test_an_aws_job_in_millimetres_draws_aws_a2_4_with_millimetre_numbers():
+    root = parse("SI", standard="aws-d1.1-2020-static", sides="arrow", size="6 mm", size2="8 mm", length="50 mm",
+                 pitch="150 mm")
+    assert root.get("data-convention") == AWS and not by_class(root, "ws-id-line")
+    (fillet,) = by_class(root, "ws-fillet")
+    assert max(y for _, y in fillet_points(fillet)) > REF_Y  # AWS: arrow side below the line
+    assert texts(root, "ws-size") == ["6 x 8"] and texts(root, "ws-length") == ["50-150"]
+
+
+def test_an_iso_job_in_inches_draws_iso_2553_with_inch_numbers():
+    root = parse("US", standard="iso-5817-2014-C", sides="arrow", size="1/4 in", length="12 in")
+    assert root.get("data-convention") == ISO and by_class(root, "ws-id-line")
+    (fillet,) = by_class(root, "ws-fillet")
+    assert max(y for _, y in fillet_points(fillet)) == REF_Y  # ISO: arrow side on the solid line
+    assert texts(root, "ws-size") == ["z1/4"] and texts(root, "ws-length") == ["12"]
+
+
+@pytest.mark.parametrize("code, standard", [
+    ("aws-d1.1-2020-cyclic", AWS), ("AWS D1.1:2020", AWS), ("AWS", AWS), (AWS, AWS), ("iso-5817-2014-B", ISO),
+    ("ISO 5817:2014", ISO), (ISO, ISO), (get_criteria("iso-5817-2014-D"), ISO),
+    (get_criteria("aws-d1.1-2020-static").to_dict(), AWS),
+])
+def test_the_drawing_standard_of_a_code(code, standard):
+    assert drawing_standard(code) == standard
+
+
+@pytest.mark.parametrize("code", ["EN 1090", "", 3, {"standard": "CSA W59"}])
+def test_a_code_with_no_drawing_standard_is_refused(code):
+    with pytest.raises(ValueError, match="AWS D1.1 jobs draw"):
+        symbol_for("US", standard=code, size="1/4 in")
+    with pytest.raises(ValueError, match="AWS D1.1 jobs draw"):
+        drawing_standard(code)
+
+
+def test_without_a_standard_the_unit_system_still_chooses_as_before():
+    assert parse("US", size="1/4 in").get("data-convention") == AWS
+    assert parse("SI", size="6 mm").get("data-convention") == ISO
+
+
+def test_iso_prints_a_for_a_throat_and_z_for_a_leg_as_the_drawing_gives_it():
+    assert texts(parse("SI", standard="ISO", throat="5 mm", length="100 mm"), "ws-size") == ["a5"]
+    assert texts(parse("SI", standard="ISO", size="7 mm"), "ws-size") == ["z7"]
+    assert texts(parse("SI", standard="ISO", size="7 mm", throat="5 mm"), "ws-size") == ["a5"]  # the design a
+
+
+def test_iso_dimensions_use_the_multiplication_sign():
+    root = parse("SI", standard="ISO", size="6 mm", size2="8 mm", length="50 mm", pitch="150 mm", segments=3)
+    assert texts(root, "ws-size") == ["z6 \u00d7 8"] and texts(root, "ws-length") == ["3 \u00d7 50 (100)"]
+    assert "x" not in "".join(texts(root, "ws-size") + texts(root, "ws-length"))
+
+
+def test_aws_needs_the_leg():
+    with pytest.raises(ValueError, match="AWS A2.4 gives the leg"):
+        symbol_for("US", standard="AWS", throat="0.18 in")
+    with pytest.raises(ValueError, match="leg size or the throat"):
+        symbol_for("SI", standard="ISO")
+
+
+@pytest.mark.parametrize("lean_drawing", [False, True])
+def test_there_is_no_empty_tail_fork(lean_drawing):
+    bare = ET.fromstring(weld_symbol_svg("US", lean=lean_drawing, size="1/4 in"))
+    assert not by_class(bare, "ws-tail") and not by_class(bare, "ws-tail-text")
+    if lean_drawing:
+        assert len(subpaths(bare)) == 3  # reference line, leader, fillet: no fork
+    with_reference = ET.fromstring(weld_symbol_svg("US", lean=lean_drawing, size="1/4 in", tail="WPS-7"))
+    assert by_class(with_reference, "ws-tail") and texts(with_reference, "ws-tail-text") == ["WPS-7"]
+
+
+@pytest.mark.parametrize("lean_drawing", [False, True])
+def test_the_flag_staff_starts_at_the_junction_without_an_all_around_circle(lean_drawing):
+    root = ET.fromstring(weld_symbol_svg("US", lean=lean_drawing, size="1/4 in", field_weld=True))
+    if lean_drawing:
+        assert subpaths(root)[-1][0][1] == REF_Y
+    else:
+        (staff,) = by_class(root, "ws-flag-staff")
+        assert float(staff.get("y1")) == REF_Y
+    with_circle = ET.fromstring(weld_symbol_svg("US", lean=lean_drawing, size="1/4 in", field_weld=True,
+                                                all_around=True))
+    foot = (subpaths(with_circle)[-1][0][1] if lean_drawing
+            else float(by_class(with_circle, "ws-flag-staff")[0].get("y1")))
+    assert foot == REF_Y - ALL_AROUND_R

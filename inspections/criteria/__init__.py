@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from . import aws_d1_1_2020, iso_5817_2014
 from .base import (
+    Angle,
     Band,
     Banded,
     Count,
@@ -28,7 +29,7 @@ from .base import derive as _derive
 _MODULES = (aws_d1_1_2020, iso_5817_2014)
 REGISTRY: dict[str, CriteriaSet] = {s.key: s for module in _MODULES for s in module.SETS}
 
-__all__ = ["Band", "Banded", "Count", "CriteriaSet", "Fixed", "Limit", "Permission", "Proportional", "Ratio",
+__all__ = ["Angle", "Band", "Banded", "Count", "CriteriaSet", "Fixed", "Limit", "Permission", "Proportional", "Ratio",
            "Threshold", "REGISTRY", "derive", "from_dict", "get_criteria", "length_text", "list_criteria",
            "resolve"]
 

@@ -13,7 +13,7 @@ from dataclasses import dataclass, field, replace
 from decimal import Decimal, InvalidOperation
 from types import MappingProxyType
 
-from core.units import Length, UnitError, format_length, inch_fraction, parse_length
+from core.units import Length, UnitError, format_length, inch_fraction, number_text, parse_length
 
 SYSTEMS = ("US", "SI")
 PUBLISHED = "published"
@@ -53,7 +53,10 @@ def _decimal(value, what: str) -> Decimal:
     """A plain number from text, an int or a Decimal (floats refused: they cannot hold 0.1 exactly)."""
     if isinstance(value, bool) or not isinstance(value, (str, int, Decimal)):
         raise ValueError(f"{what} must be a number written as text such as '0.1', not {type(value).__name__}.")
-    text = value.strip().rstrip("%").strip() if isinstance(value, str) else value
+    try:
+        text = number_text(value).rstrip("%").strip() if isinstance(value, str) else value
+    except UnitError as exc:
+        raise ValueError(f"{what}: {exc}") from None
     try:
         number = Decimal(text)
     except InvalidOperation:
@@ -292,6 +295,23 @@ class Ratio(Limit):
 
 
 @dataclass(frozen=True)
+class Angle(Limit):
+    """A smallest angle in degrees (ISO 5817 505 incorrect weld toe: the toe angle alpha at least 100 degrees)."""
+
+    minimum: Decimal = Decimal(0)
+
+    kind = "angle_min"
+
+    def __post_init__(self):
+        super().__post_init__()
+        if not isinstance(self.minimum, Decimal) or not (0 <= self.minimum <= 180):
+            raise ValueError(f"An angle limit is a Decimal number of degrees from 0 to 180, not {self.minimum!r}.")
+
+    def to_dict(self):
+        return {"type": self.kind, "minimum": _plain(self.minimum), "source": self.source, "status": self.status}
+
+
+@dataclass(frozen=True)
 class Threshold(Limit):
     """Where a rule changes or the window it counts over (material 1 in thick, any 12 in): not an allowance,
     so a derived set cannot override it."""
@@ -407,7 +427,7 @@ def limit_from_dict(data, name: str = "limit", *, source: str | None = None, sta
     if not isinstance(data, dict):
         raise ValueError(f"Limit '{name}' must be a dict with a 'type', not {type(data).__name__}.")
     kind = data.get("type")
-    known = {cls.kind: cls for cls in (Fixed, Banded, Proportional, Permission, Count, Ratio, Threshold)}
+    known = {cls.kind: cls for cls in (Fixed, Banded, Proportional, Permission, Count, Ratio, Threshold, Angle)}
     if not isinstance(kind, str) or kind not in known:
         raise ValueError(f"Limit '{name}' has type {kind!r}; use one of {', '.join(known)}.")
     src = data.get("source", source)
@@ -452,6 +472,8 @@ def limit_from_dict(data, name: str = "limit", *, source: str | None = None, sta
                               measured=measured)
         if kind == "count":
             return Count(source=src, status=stat, value=_count(data.get("value"), what))
+        if kind == "angle_min":
+            return Angle(source=src, status=stat, minimum=_degrees(data.get("minimum"), what))
         return Ratio(source=src, status=stat, value=_decimal(data.get("value"), what))
     except TypeError as exc:  # a wrong-typed field in a stored set
         raise ValueError(f"{what} cannot be read: {exc}.") from None
@@ -462,6 +484,16 @@ def _rule(value, what):
     if rule not in PERMISSION_RULES:
         raise ValueError(f"{what}: a permission is one of {', '.join(PERMISSION_RULES)}, not {value!r}.")
     return rule
+
+
+def _degrees(value, what) -> Decimal:
+    """A number of degrees from text ('100', '100°'), an int or a Decimal."""
+    if isinstance(value, str):
+        value = value.strip().replace("º", "°").removesuffix("°").strip()
+    degrees = _decimal(value, what)
+    if degrees > 180:
+        raise ValueError(f"{what} is an angle from 0 to 180 degrees, not {value!r}.")
+    return degrees
 
 
 def _count(value, what):
@@ -509,6 +541,8 @@ def _looser(new: Limit, old: Limit, systems) -> bool:
     between those sizes, at zero and at 100 m (both are piecewise constant or linear in the size)."""
     if isinstance(old, Permission) and isinstance(new, Permission):
         return new.rank > old.rank
+    if isinstance(old, Angle):
+        return new.minimum < old.minimum  # a smaller smallest angle admits a sharper toe
     if isinstance(old, (Count, Ratio)):
         return new.value > old.value
     for system in systems:
@@ -537,6 +571,8 @@ def _override(name: str, old: Limit, value, source: str, status: str) -> Limit:
         new = Count(source=source, status=status, value=_count(value, what))
     elif isinstance(old, Ratio):
         new = Ratio(source=source, status=status, value=_decimal(value, what))
+    elif isinstance(old, Angle):
+        new = Angle(source=source, status=status, minimum=_degrees(value, what))
     elif word in ("not permitted", "refer", "permitted if", "permitted", "unlimited"):
         rule = "permitted" if word == "unlimited" else word
         condition = old.condition if isinstance(old, Permission) and rule == "permitted_if" else ""

@@ -240,7 +240,8 @@ def test_derive_refuses_every_increase_of_a_fixed_limit(case, percent):
     # loosening is judged against the base set's own printed values, in each system it prints
     key, name = case
     limit = REGISTRY[key].limit(name)
-    bigger = {s: f"{format((getattr(limit, s).mm * (100 + percent) / 100).normalize(), 'f')} mm" for s in ("us", "si")}
+    bigger = {s: f"{format((getattr(limit, s).mm * (100 + percent) / 100).normalize(), 'f')} mm" for s in ("us", "si")
+              if getattr(limit, s) is not None}  # ISO prints SI values only
     with pytest.raises(ValueError, match=name):
         derive(key, "client-p", {name: bigger}, "Client P")
     signed = derive(key, "client-p", {name: bigger}, "Client P", signed_by_engineer=True)
@@ -253,10 +254,12 @@ def test_derive_refuses_every_increase_of_an_iso_rule_term(case, term, percent):
     # ISO 5817:2014 h <= plus + factor x, max: raising any term allows more for some weld
     key, name = case
     limit = REGISTRY[key].limit(name)
+    if term == "max" and limit.max is None:
+        return  # no cap to raise (512 asymmetry)
     grow = Decimal(100 + percent) / 100
     value = {"plus": f"{format((limit.plus.mm * grow + Decimal('0.01')).normalize(), 'f')} mm",
              "factor": format(limit.factor * grow, "f"),
-             "max": f"{format((limit.max.mm * grow).normalize(), 'f')} mm"}[term]
+             "max": f"{format((limit.max.mm * grow).normalize(), 'f')} mm" if limit.max else None}[term]
     with pytest.raises(ValueError, match=name):
         derive(key, "client-q", {name: {term: value}}, "Client Q")
 
@@ -267,3 +270,48 @@ def test_a_permission_that_only_confirms_a_condition_is_looser_than_not_permitte
     assert isinstance(d_rule, Permission)
     with pytest.raises(ValueError, match="arc_strike"):
         derive("iso-5817-2014-C", "client-r", {"arc_strike": d_rule.to_dict()}, "Client R")
+
+
+# --- ISO 5817:2014 version 2: the lines added for fillet welds ----------------------------------------------
+
+
+def test_iso_sets_version_2_judge_the_added_items():
+    # ISO 5817:2014 104, 505, 512, 517, 602, 617 and the 5213 length (short imperfection definition, published)
+    for key in ISO_KEYS:
+        cset = get_criteria(key)
+        assert cset.version == 2
+        assert {"crater_crack", "weld_toe", "asymmetry", "poor_restart", "spatter", "root_gap",
+                "overlap_by_width"} <= set(cset.checks)
+        assert cset.limit("short_imperfection").si == L("25 mm") and cset.limit("short_imperfection").us is None
+        assert cset.limit("short_imperfection_share").value == Decimal("0.25")
+        assert cset.limit("short_imperfection_window").si == L("100 mm")
+        for name in ("weld_toe", "crater_crack", "poor_restart", "spatter", "overlap", "fusion"):
+            assert "from memory" in cset.limit(name).status, (key, name)
+
+
+def test_iso_level_d_no_longer_holds_fusion_and_overlap_for_judgement():
+    # ISO 5817:2014 level D: 401 at the surface not permitted, 506 h <= 0.2 b (both from memory)
+    d = get_criteria("iso-5817-2014-D")
+    assert d.limit("fusion").rule == "not_permitted"
+    assert (d.limit("overlap").factor, d.limit("overlap").of, d.limit("overlap").max) == (Decimal("0.2"), "b", None)
+
+
+def test_a_client_may_ask_a_blunter_weld_toe_but_a_sharper_one_needs_the_engineer():
+    # ISO 5817:2014 level C 505: alpha >= 100 degrees (from memory)
+    key = "iso-5817-2014-C"
+    assert derive(key, "client-t", {"weld_toe": "105°"}, "Client T").limit("weld_toe").minimum == Decimal(105)
+    with pytest.raises(ValueError, match="weld_toe"):
+        derive(key, "client-t", {"weld_toe": "95"}, "Client T")
+    signed = derive(key, "client-t", {"weld_toe": "95"}, "Client T", signed_by_engineer=True)
+    assert signed.loosened == ("weld_toe",)
+    assert from_dict(json.loads(json.dumps(signed.to_dict()))) == signed
+    with pytest.raises(ValueError, match="0 to 180"):
+        derive(key, "client-t", {"weld_toe": "190"}, "Client T")
+
+
+def test_a_client_share_may_be_typed_with_a_decimal_comma():
+    # AWS D1.1/D1.1M:2020 Table 8.1: undersize portion at most 10 %; a client's 5 % typed as 0,05
+    assert derive(STATIC, "client-c", {"undersize_portion": "0,05"}, "Client C").limit("undersize_portion").value \
+        == Decimal("0.05")
+    with pytest.raises(ValueError, match="comma and a point"):
+        derive(STATIC, "client-c", {"undersize_portion": "0,05.1"}, "Client C")

@@ -95,7 +95,7 @@ def test_haque_example_1_longitudinal_and_transverse():
 
 def test_haque_example_2_c_shaped_group_terms():
     # M.E. Haque, "Weld Connections" course notes, Example 2: 3/16 in E70, 2 x 10 in longitudinal, 8 in transverse:
-    # Rw(L) = 111.35 kips, Rw(T) = 44.54 kips, Rn = Rnwl + Rnwt = 155.89 kips (AISC 360-16 J2.4(c), case (a))
+    # Rw(L) = 111.35 kips, Rw(T) = 44.54 kips, Rn = Rnwl + Rnwt = 155.89 kips (AISC 360-16 J2.4(b), case (a))
     g = weld_group_strength(longitudinal=[("3/16 in", "10 in"), ("3/16 in", "10 in")],
                             transverse=[("3/16 in", "8 in")])
     assert q(g.rnwl_kip) == Decimal("111.35")
@@ -389,7 +389,7 @@ def test_si_and_us_inputs_agree(leg, length, fexx, angle, end_loaded):
 
 @settings(max_examples=60)
 @given(longs=st.lists(st.integers(4, 48), max_size=3), trans=st.lists(st.integers(4, 48), max_size=3))
-def test_weld_group_is_the_larger_of_the_two_cases(longs, trans):  # AISC 360-16 J2.4(c)
+def test_weld_group_is_the_larger_of_the_two_cases(longs, trans):  # AISC 360-16 J2.4(b)
     if not longs and not trans:
         return
     g = weld_group_strength([("1/4 in", f"{n}/4 in") for n in longs], [("1/4 in", f"{n}/4 in") for n in trans])
@@ -590,3 +590,17 @@ def test_effective_throat_refuses_a_leg_that_is_not_one(leg, leg2):
 
     with pytest.raises(ValueError):
         effective_throat(leg, leg2)
+
+
+def test_the_weld_group_rule_is_cited_by_its_2016_letter():
+    # AISC 360-16 J2.4(b): concentrically loaded groups of longitudinal and transverse fillets (J2.4(c) in 360-10)
+    group = weld_group_strength([("1/4 in", "6 in")], [("1/4 in", "4 in")])
+    cited = [label for label, _, _ in group.steps if "J2.4(" in label]
+    assert cited and all("J2.4(b)" in label for label in cited)
+
+
+def test_an_angle_may_be_typed_with_a_decimal_comma():
+    assert fillet_strength("1/4 in", "4 in", angle="22,5").nominal_kip == \
+        fillet_strength("1/4 in", "4 in", angle="22.5").nominal_kip
+    with pytest.raises(ValueError, match="thousands separator"):
+        fillet_strength("1/4 in", "4 in", angle="1,000")

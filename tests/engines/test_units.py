@@ -10,14 +10,17 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
+from core import units
 from core.units import (
     Length,
     UnitError,
     format_force,
     format_length,
     format_temperature,
+    parse_angle,
     parse_flow,
     parse_force,
+    parse_heat_input,
     parse_length,
     parse_speed,
     parse_stress,
@@ -105,9 +108,9 @@ def test_a_bare_number_takes_the_unit_the_caller_names():
         ("1-1/2 in", '1-1/2"', "38.1 mm"),
         ("12 in", '12"', "304.8 mm"),
         ("1/64 in", '1/64"', "0.4 mm"),
-        ("0.1 in", '3/32"', "2.54 mm"),  # not a binary fraction: nearest 1/32
-        ("5 mm", '3/16"', "5 mm"),
-        ("0.25 mm", '0.01"', "0.25 mm"),  # finer than 1/32 and no fraction: decimals, not 0"
+        ("0.1 in", '\u22483/32"', "2.54 mm"),  # not a binary fraction: nearest 1/32, marked as rounded
+        ("5 mm", '\u22483/16"', "5 mm"),
+        ("0.25 mm", '\u22480.01"', "0.25 mm"),  # finer than 1/32 and no fraction: decimals, not 0"
         ("0.01 in", '0.01"', "0.25 mm"),
         ("0 in", '0"', "0 mm"),
         ("30 in", '30"', "762 mm"),
@@ -204,3 +207,111 @@ def test_other_quantities_refuse_nonsense(call):
 def test_significant_rounds_for_printing():
     assert significant(Decimal("1.39237")) == Decimal("1.39")
     assert significant(Decimal("12345")) == Decimal("1.23E+4")
+
+
+# --- what a person types, wherever a number is typed ----------------------------------------------------------
+
+
+@pytest.mark.parametrize("text, mm", [
+    ("0,4 mm", "0.4"), ("6,35mm", "6.35"), ("1,5 in", "38.1"), ("0,125 in", "3.175"), ("12,5 mm", "12.5"),
+    ("1000,5 mm", "1000.5"), ("≈1/4\"", "6.35"), ("\u2248 6 mm", "6"),
+])
+def test_a_decimal_comma_and_a_printed_approximation_are_read(text, mm):
+    assert parse_length(text).mm == Decimal(mm)
+
+
+@pytest.mark.parametrize("text, fragment", [
+    ("1,000 in", "thousands separator"), ("12,500 mm", "thousands separator"), ("1,000.5 in", "comma and a point"),
+    ("1,2,3 mm", "more than one comma"), ("1.5,2 mm", "comma and a point"),
+])
+def test_an_ambiguous_comma_is_refused_with_the_two_readings(text, fragment):
+    with pytest.raises(UnitError, match=fragment):
+        parse_length(text)
+
+
+def test_every_quantity_takes_a_decimal_comma():
+    assert parse_temperature("37,5 C").c == Decimal("37.5")
+    assert parse_stress("482,5 MPa")[0].mpa == Decimal("482.5")
+    assert parse_force("12,5 kN").kn == Decimal("12.5")
+    assert parse_speed("7,5 m/min").mm_per_min == Decimal("7500")
+    assert parse_flow("16,5 L/min").l_per_min == Decimal("16.5")
+    assert parse_heat_input("1,2 kJ/mm").kj_per_mm == Decimal("1.2")
+    assert parse_angle("22,5°") == Decimal("22.5")
+    assert units.parse_amperage("180,5 A") == Decimal("180.5")
+    assert units.parse_area("4,5 in2").in2 == Decimal("4.5")
+    with pytest.raises(UnitError, match="thousands"):
+        units.parse_amperage("1,200 A")
+
+
+def test_the_ordinal_indicator_and_the_ring_read_as_a_degree_sign():
+    assert parse_temperature("150\u00baF").f == Decimal(150)  # º, which NFKC would turn into the letter o
+    assert parse_temperature("65 \u00baC").c == Decimal(65)
+    assert parse_temperature("65\u02daC").c == Decimal(65)  # ˚ ring above
+    assert units.temperature_system("150\u00baF") == "US"
+    assert parse_angle("100\u00ba") == Decimal(100)
+
+
+def test_minus_zero_prints_as_zero():
+    # -17.9 C = -0.22 F, which rounds to 0 F: printed without a sign
+    assert format_temperature(parse_temperature("-17.9 C"), "US") == "0 °F"
+    assert format_temperature(parse_temperature("-0.4 C"), "SI") == "0 °C"
+    assert format_temperature(parse_temperature("-0.6 C"), "SI") == "-1 °C"
+
+
+def test_a_rounded_inch_value_is_marked_and_an_exact_one_is_not():
+    assert format_length(parse_length("6 mm"), "US") == "\u22481/4\""
+    assert format_length(parse_length("6.35 mm"), "US") == '1/4"'  # exactly 1/4 in
+    assert format_length(parse_length("0.254 mm"), "US") == '0.01"'  # exactly 0.01 in
+    assert format_length(parse_length("38 mm"), "US") == "\u22481-1/2\""
+
+
+@pytest.mark.parametrize("text, fragment", [
+    ("1234567890123456789012 mm", "more than 15 digits"), ("1234567890123456 mm", "more than 15 digits"),
+    ("1234567890123456,7 mm", "more than 15 digits"), ("12345678901234567890123.5 in", "more than 15 digits"),
+    ("1e999 mm", "exponents"), ("NaN mm", "not a length"), ("Infinity in", "not a length"),
+    ("123456789012345 mm", "longer than 100 m"), ("101 m", "typo"),
+])
+def test_huge_numbers_nan_infinity_and_exponents_are_refused_in_words(text, fragment):
+    with pytest.raises(UnitError, match=fragment):
+        parse_length(text)
+
+
+def test_a_long_exact_decimal_as_the_forms_write_it_reads_back():
+    # 5 mm on a US job is written in the form as its exact decimal inches (28 digits) and must read back
+    length = parse_length("5 mm")
+    assert parse_length(f"{format(length.inch, 'f')} in") == length
+
+
+@pytest.mark.parametrize("call", [
+    lambda: parse_temperature("1234567890123456789012 F"), lambda: parse_temperature("1e999 C"),
+    lambda: parse_temperature("NaN F"), lambda: units.parse_amperage(Decimal("NaN")),
+    lambda: units.parse_amperage(Decimal("Infinity")), lambda: units.parse_voltage(Decimal("1E+999")),
+    lambda: units.parse_amperage(10 ** 30), lambda: parse_angle(Decimal("-Infinity")),
+    lambda: parse_stress("9" * 25 + " ksi"), lambda: parse_heat_input("1e999 kJ/in"),
+])
+def test_other_quantities_refuse_huge_and_non_numbers_in_words(call):
+    with pytest.raises(UnitError):
+        call()
+
+
+_PARSERS = [parse_length, parse_temperature, parse_stress, parse_force, parse_speed, parse_flow, parse_angle,
+            units.parse_area, units.parse_amperage, units.parse_voltage, parse_heat_input, units.length_system,
+            units.temperature_system]
+_numberish = st.one_of(
+    st.text(max_size=30),
+    st.from_regex(r"\A[-+≈ ]?[0-9]{0,30}([.,][0-9]{0,30})?([eE][-+]?[0-9]{1,4})? ?"
+                  r"(in|mm|m|ft|F|C|°F|ºC|ksi|MPa|kN|kip|in/min|mm/s|cfh|L/min|in2|mm2|A|V|kJ/in|kJ/mm|°|deg)?\Z"),
+    st.sampled_from(["NaN mm", "Infinity", "-Infinity F", "sNaN", "1e999 mm", "1E-999 in", "9" * 39 + " mm",
+                     "0,000 mm", "1,000", "∞ in", "1/0 in", "0/0 mm", "1-1/0 in"]),
+)
+_values = st.one_of(_numberish, st.integers(min_value=-(10 ** 40), max_value=10 ** 40),
+                    st.decimals(allow_nan=True, allow_infinity=True), st.floats(), st.none(), st.booleans())
+
+
+@given(st.sampled_from(_PARSERS), _values)
+def test_every_parser_answers_any_input_with_a_value_or_a_value_error(parse, value):
+    # random text, numbers of up to 60 digits, exponents, NaN, Infinity, floats, None: a result or a ValueError
+    try:
+        parse(value)
+    except ValueError as exc:  # UnitError is a ValueError; anything else (InvalidOperation, OverflowError) fails
+        assert str(exc) and "InvalidOperation" not in str(exc)

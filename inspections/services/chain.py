@@ -79,7 +79,7 @@ class WeldChain:
 
 # --- the WPS link -----------------------------------------------------------------------------------------------
 
-def _prime_successors(wps_list) -> None:
+def prime_successors(wps_list) -> None:
     """Load the next revision of every WPS (WPS.superseded_by) in one query, unless already cached."""
     wanted = [w for w in wps_list if w is not None and not WPS.superseded_by.is_cached(w)]
     if not wanted:
@@ -113,7 +113,7 @@ def wps_check(weld, wps, job, day, label=None) -> WpsCheck:
 def wps_checks(welds, job, on=None) -> dict[int, WpsCheck]:
     """The WPS link of each weld (the tablet's cards): on the weld date, else `on`, else today. One query at most."""
     welds = list(welds)
-    _prime_successors([w.wps for w in welds])
+    prime_successors([w.wps for w in welds])
     today = on or timezone.localdate()
     return {w.pk: wps_check(w, w.wps, job, w.welded_on or today) for w in welds}
 
@@ -156,7 +156,7 @@ def check_assembly(assembly, welds=None, statuses=None) -> dict[int, WeldChain]:
         for repair in (WeldRepair.objects.filter(weld_id__in=ids).select_related("wps", "ncr")
                        .prefetch_related("welders").order_by("welded_on", "pk")):
             repairs.setdefault(repair.weld_id, []).append(repair)
-    _prime_successors([w.wps for w in welds] + [r.wps for rs in repairs.values() for r in rs])
+    prime_successors([w.wps for w in welds] + [r.wps for rs in repairs.values() for r in rs])
     today = timezone.localdate()
     works = [eligibility.Work(("weld", w.pk), w, tuple(w.welders.all()), w.welded_on or today) for w in welds]
     by_weld = {w.pk: w for w in welds}
@@ -226,6 +226,11 @@ def _blockers(chain: WeldChain) -> list[Blocker]:
                              "for the day it was welded.", edit))
         if chain.wps.wps is None:
             found.append(Blocker(f"{subject}: no WPS is named.", edit))
+        if not chain.welders.checks:
+            found.append(Blocker(f"{subject}: no welder is recorded.", edit))
+    elif chain.wps.wps is None:
+        # Without a WPS the welders cannot be judged (the process and electrode are the WPS's): one blocker.
+        found.append(Blocker(f"{subject}: no WPS is named.", edit))
         if not chain.welders.checks:
             found.append(Blocker(f"{subject}: no welder is recorded.", edit))
     else:

@@ -240,8 +240,16 @@ def _check_context(assembly, weld, wps=None, welders=None, on=None):
     on = on or weld.welded_on or timezone.localdate()
     weld.wps = wps
     checks = [steps.check_welder(w, weld, on=on) for w in welders] if wps is not None else []
-    return {"wps": wps, "wps_approved": bool(wps and wps.state == WPSState.APPROVED), "checks": checks,
-            "welders": welders, "on": on}
+    wps_errors = []
+    if wps is not None:
+        complete = all(getattr(weld, name) is not None
+                       for name in ("joint_type", "position", "thickness1", "thickness2", "size"))
+        if complete:
+            wps_errors = chain.wps_check(weld, wps, assembly.job, on).errors
+        elif reason := wps.in_force_on(on):
+            wps_errors = [reason]
+    return {"wps": wps, "wps_approved": bool(wps and wps.state == WPSState.APPROVED), "wps_errors": wps_errors,
+            "checks": checks, "welders": welders, "on": on}
 
 
 @require_safe

@@ -61,8 +61,9 @@ class QualificationForm(forms.ModelForm):
 
     class Meta:
         model = Qualification
-        fields = ["code", "process", "joint", "test_position", "unit_system", "test_thickness", "electrode", "wps",
-                  "test_date", "result", "examiner", "report", "iso_revalidation"]
+        fields = ["code", "process", "transfer", "joint", "test_position", "progression", "backing", "unit_system",
+                  "test_thickness", "electrode", "wps", "test_date", "result", "examiner", "report",
+                  "iso_revalidation"]
         widgets = {"test_date": DateInput()}
         labels = {"joint": "Test weld", "report": "Test report (PDF or photo)"}
         help_texts = {
@@ -84,8 +85,9 @@ class QualificationForm(forms.ModelForm):
         self.helper = FormHelper()
         self.helper.form_tag = False
         self.helper.layout = Layout(
-            Fieldset("The test", Row(Column("code"), Column("process"), Column("joint")),
+            Fieldset("The test", Row(Column("code"), Column("process"), Column("transfer"), Column("joint")),
                      Row(Column("test_position"), Column("unit_system"), Column("test_thickness")),
+                     Row(Column("progression"), Column("backing")),
                      Row(Column("electrode"), Column("wps"))),
             Fieldset("The result", Row(Column(Field("test_date")), Column("result"), Column("examiner")),
                      Row(Column("report"), Column("iso_revalidation"))),
@@ -144,6 +146,10 @@ class QualificationForm(forms.ModelForm):
             self.add_error("wps", f"{wps} is a {wps.process} procedure; this test is {process}.")
         if code != QualificationCode.ISO:
             data["iso_revalidation"] = ""
+        if process and process != "GMAW":
+            data["transfer"] = ""  # a metal transfer mode is GMAW's (GMAW-S: GMAW, short-circuiting)
+        if data.get("backing") and joint != "groove":
+            data["backing"] = ""  # backing is recorded for groove (butt) tests
         if not self.errors:
             self._check_facts(data)
         return data
@@ -180,6 +186,8 @@ class QualificationForm(forms.ModelForm):
                 test_thickness=data["test_thickness"], test_date=data["test_date"],
                 passed=data["result"] == Qualification.Result.PASS, electrode=data["electrode"], code=data["code"],
                 iso_revalidation=data.get("iso_revalidation") or None, unit_system=data.get("unit_system") or None,
+                progression=data.get("progression") or None, backing=data.get("backing") or None,
+                transfer=data.get("transfer") or None,
             )
         except (KeyError, ValueError) as exc:
             raise ValidationError(str(exc), code="engine") from None

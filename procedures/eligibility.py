@@ -246,10 +246,18 @@ def _inactive_reason(welder: Welder, on: date) -> str | None:
     return f"Welder {welder.stamp} was made inactive on {since.isoformat()}{why}."
 
 
-def _check(welder: Welder, records: _Records, demands, on: date) -> engine.Eligibility:
-    """Combine the engine's answers for each demand (each part joined) into one answer."""
+def _check(welder: Welder, records: _Records, demands, on: date, memo: dict | None = None) -> engine.Eligibility:
+    """Combine the engine's answers for each demand (each part joined) into one answer.
+
+    memo: {(welder pk, day): facts} shared across many checks, so a welder's records are read into facts once per
+    day rather than once per weld (the continuity chain is walked per record)."""
     inactive = _inactive_reason(welder, on)
-    good, bad = _facts_for(welder, records, on)
+    if memo is None:
+        good, bad = _facts_for(welder, records, on)
+    else:
+        if (welder.pk, on) not in memo:
+            memo[(welder.pk, on)] = _facts_for(welder, records, on)
+        good, bad = memo[(welder.pk, on)]
     answers = [engine.check_welder([f for _, f in good], demand, on) for demand in demands]
     reasons = []
     if inactive:
@@ -368,10 +376,10 @@ def check_work(works) -> dict[object, WeldCheck]:
     test records and continuity whatever the number of works (none when those are prefetched)."""
     works = list(works)
     records = _load([welder for work in works for welder in work.welders])
-    result = {}
+    result, memo = {}, {}
     for work in works:
         demands, refusal = _demands_or_refusal(work.weld)
-        checks = tuple(WelderCheck(welder, refusal or _check(welder, records[welder.pk], demands, work.on))
+        checks = tuple(WelderCheck(welder, refusal or _check(welder, records[welder.pk], demands, work.on, memo))
                        for welder in sorted(work.welders, key=lambda w: w.stamp))
         result[work.key] = WeldCheck(work.weld, checks, work.on)
     return result

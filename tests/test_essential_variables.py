@@ -127,3 +127,14 @@ def test_the_wps_form_records_progression_for_vertical_and_backing_for_groove_we
                                                    "joint_types": ["groove"], "progression": "up",
                                                    "backing": "with"})
     assert WPS.objects.filter(number="BSW-502").values_list("progression", "backing").get() == ("", "with")
+
+
+@pytest.mark.django_db
+def test_the_could_this_welder_weld_it_form_asks_the_essential_variables_too():
+    from procedures.forms.welders import WeldCheckForm
+
+    form = WeldCheckForm({"code": "AWS D1.1:2020", "process": "GMAW", "joint": "fillet", "position": "V",
+                          "thickness": "1/2", "transfer": "short_circuit", "progression": "down", "backing": "with"})
+    assert form.is_valid(), form.errors
+    demand = form.cleaned_data["demand"]
+    assert (demand.transfer, demand.progression, demand.backing) == ("short_circuit", "down", None)

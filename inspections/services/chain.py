@@ -198,11 +198,9 @@ def _url(name, pk):
 def _wps_blockers(subject, check: WpsCheck, edit_url) -> list[Blocker]:
     if check.wps is None:
         return [Blocker(f"{subject}: no WPS is named.", edit_url)]
-    found = []
-    for error in check.errors:
-        found.append(Blocker(f"{subject}: WPS {check.wps.number} rev {check.wps.revision} does not hold: {error}",
-                             check.wps.get_absolute_url()))
-    return found
+    # The engine's messages name the weld ("Weld W1 part 2 is ..."), WPS.in_force_on's the WPS: say each once.
+    return [Blocker(error if error.startswith("Weld ") else f"{subject}: {error}", check.wps.get_absolute_url())
+            for error in check.errors]
 
 
 def _welder_blockers(subject, check: eligibility.WeldCheck, day, edit_url) -> list[Blocker]:

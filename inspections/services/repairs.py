@@ -93,7 +93,7 @@ def record_repair(ncr, user, *, wps, welders, welded_on, notes=""):
             said += " Differs from the disposition: " + "; ".join(differs) + "."
         reason = f"{said} {notes}".strip()
         history.record(repair, user, history.CREATED, reason=reason)
-        history.record(locked, user, REPAIRED, from_state=locked.state, to_state=locked.state, reason=reason)
+        history.record(locked, user, REPAIRED, reason=reason)  # no state change: "Repair welded: ..."
         eligibility.record_repair(repair)
     ncr.refresh_from_db()
     return repair

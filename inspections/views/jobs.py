@@ -134,6 +134,7 @@ def _assembly_page(request, assembly, release_errors=None, status=200):
     open_ncrs = [n for row in rows for n in row.status.open_ncrs]
     context = {
         "assembly": assembly, "job": assembly.job, "rows": rows, "blockers": blockers,
+        "blocker_count": len(blockers),
         "release_errors": release_errors, "open_ncrs": open_ncrs, "step_form": StepForm(),
         "history": list(history_of(assembly).reverse()[:20]),
         "can_submit": assembly.state == "in_fabrication" and can(request.user, "assembly.submit"),

@@ -15,11 +15,11 @@ from django.utils import timezone
 
 from core import units
 from core.fields import LengthFormField, set_unit_system
-from core.vocabulary import JointType, Position, Process, UnitSystem
+from core.vocabulary import Backing, JointType, Position, Process, Progression, UnitSystem
 from procedures import qualification as engine
 from procedures.electrodes import decode
 from procedures.models.welders import Qualification, QualificationCode, Welder
-from procedures.models.wps import WPS
+from procedures.models.wps import WPS, Transfer
 
 REPORT_MAX_BYTES = settings.LEGWORK_REPORT_MAX_BYTES
 REPORT_KINDS = {".pdf": "PDF", ".png": "PNG", ".jpg": "JPEG", ".jpeg": "JPEG"}
@@ -266,6 +266,12 @@ class WeldCheckForm(forms.Form):
     ], initial=Position.F)
     thickness = LengthFormField(label="Base metal thickness", help_text="e.g. 1/2, 12 mm")
     electrode = forms.CharField(max_length=40, required=False)
+    transfer = forms.ChoiceField(choices=[("", "Not stated"), *Transfer.choices], required=False,
+                                 label="GMAW transfer")
+    progression = forms.ChoiceField(choices=[("", "Not stated"), *Progression.choices], required=False,
+                                    label="Vertical progression")
+    backing = forms.ChoiceField(choices=[("", "Not stated"), *Backing.choices], required=False,
+                                label="Backing (groove)")
     on = forms.DateField(widget=DateInput(), label="On", required=False, help_text="Blank: today")
 
     def __init__(self, *args, **kwargs):
@@ -278,6 +284,8 @@ class WeldCheckForm(forms.Form):
             Row(Column("joint", css_class="col-6"), Column("position", css_class="col-6")),
             Row(Column("thickness", css_class="col-sm-4"), Column("electrode", css_class="col-sm-4"),
                 Column("on", css_class="col-sm-4")),
+            Row(Column("transfer", css_class="col-sm-4"), Column("progression", css_class="col-sm-4"),
+                Column("backing", css_class="col-sm-4")),
         )
 
     def clean(self):
@@ -287,7 +295,10 @@ class WeldCheckForm(forms.Form):
         try:
             data["demand"] = engine.WeldDemand(
                 process=data["process"], joint=data["joint"], position=data["position"],
-                thickness=data["thickness"], electrode=data.get("electrode") or None, code=data["code"])
+                thickness=data["thickness"], electrode=data.get("electrode") or None, code=data["code"],
+                transfer=(data.get("transfer") or None) if data["process"] == "GMAW" else None,
+                progression=data.get("progression") or None,
+                backing=(data.get("backing") or None) if data["joint"] == "groove" else None)
         except ValueError as exc:
             raise ValidationError(str(exc), code="engine") from None
         data["on"] = data.get("on") or timezone.localdate()

@@ -143,3 +143,11 @@ def test_an_undated_or_nasty_post_saves_nothing(client_as, ncr):
     for data in [{}, {"wps": "x", "welders": ["-1"], "welded_on": "soon"}, {"wps": 999999, "welded_on": "2026-1-1"}]:
         assert client.post(reverse("inspections:ncr_repair", args=[ncr.pk]), data).status_code == 400
     assert not WeldRepair.objects.exists()
+
+
+def test_the_disposition_names_a_wps_that_covers_the_weld(make, users):
+    ncr = make.make_ncr(make.make_inspection(make.make_sound_weld(position="OH"), accepted=False))
+    flat = make.make_wps(state=WPSState.APPROVED, positions="F, H")
+    with pytest.raises(Refused) as refused:
+        disposition_repair(ncr, users["qa_lead"], flat, make.make_qualified_welder())
+    assert "position OH" in refused.value.message_dict["repair_wps"][0]

@@ -21,7 +21,7 @@ from core.transitions import transition
 from inspections.models import NCR, InspectionStage
 from inspections.models.ncr import Disposition, NCRState
 from inspections.services import assemblies as assembly_steps
-from inspections.services import capacity
+from inspections.services import capacity, chain
 from inspections.services.numbering import next_in_job
 from procedures.models.wps import WPSState
 
@@ -76,6 +76,10 @@ def repair_problems(ncr, wps, welder, on=None) -> dict[str, list[str]]:
         problems["repair_wps"] = ["Name the WPS the repair is welded to."]
     elif wps.state != WPSState.APPROVED:
         problems["repair_wps"] = [f"{wps} is {wps.get_state_display().lower()}: a repair is welded to an approved WPS."]
+    else:  # it must cover the weld too (the same check as the weld map's: inspections.services.chain)
+        errors = chain.wps_check(ncr.weld, wps, ncr.weld.assembly.job, on or timezone.localdate()).errors
+        if errors:
+            problems["repair_wps"] = errors
     if welder is None:
         problems["repair_welder"] = ["Name the welder who makes the repair."]
     else:

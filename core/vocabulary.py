@@ -38,6 +38,26 @@ class Current(models.TextChoices):
     DCEN = "DCEN", "DCEN (straight)"
 
 
+class Progression(models.TextChoices):
+    """Vertical progression (AWS D1.1:2020 Table 6.12 for welders, Table 6.5 for procedures, from memory)."""
+
+    UP = "up", "Vertical up"
+    DOWN = "down", "Vertical down"
+
+
+class Backing(models.TextChoices):
+    """Backing of a groove weld (ISO 9606-1 welding details: ss nb, ss mb, bs)."""
+
+    WITHOUT = "without", "Without backing (open root, ss nb)"
+    WITH = "with", "With backing (ss mb)"
+    BOTH_SIDES = "both_sides", "Welded from both sides (bs)"
+
+
+# A weld map may name the process; GMAW-S (short-circuiting transfer) is a process of its own for welders and
+# procedures alike. Blank on the weld: the WPS's process.
+WELD_PROCESS_CHOICES = [*Process.choices, ("GMAW-S", "GMAW-S (short-circuiting)")]
+
+
 class JointType(models.TextChoices):
     FILLET = "fillet", "Fillet"
     GROOVE = "groove", "Groove"

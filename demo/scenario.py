@@ -4,6 +4,10 @@ Brannock Steelworks fabricates for three jobs: a parking-garage frame (US custom
 statically loaded), crane-runway girders (US customary, AWS D1.1 cyclically loaded) and a ferry-terminal
 canopy (SI, ISO 5817 quality level C). Records go through the same functions the pages use, so the
 demo shows verdicts, findings and states exactly as the app computes them.
+
+The proof chain, three ways: on the garage job, BR3 is released (every link holds), S7 waits on a draft WPS
+(BSW-103 was never approved) and P2 on a welder whose SMAW continuity lapsed (B-23). The procedures are approved
+when the demo loads, so its welds are dated the day it loads: a WPS must be approved on the day a weld is made.
 """
 
 from datetime import date, timedelta
@@ -74,7 +78,8 @@ def _pqrs():
         ),
         "gmaw_si": PQR.objects.create(
             number="WPQR-BSW-M07", code="ISO 15609-1:2019", unit_system="SI", test_date=date(2025, 2, 3),
-            process="GMAW", electrode="ER70S-6", electrode_diameter=L("1.2 mm"), current="DCEP", amperage=270,
+            process="GMAW", transfer="spray", electrode="ER70S-6", electrode_diameter=L("1.2 mm"), current="DCEP",
+            amperage=270,
             voltage="28", travel_speed=parse_speed("380 mm/min"), position="PB", base_metal="EN 10025-2 S355J2",
             thickness=L("12 mm"), shielding_gas="M21 (Ar + 18% CO2)", preheat=parse_temperature("15 C"),
             visual="pass", macroetch="pass", fillet_break="pass", laboratory="Keystone Materials Lab",
@@ -139,11 +144,11 @@ def _procedures(users, pqrs):
     records["gmaw_si"] = WPS.objects.create(
         number="BSW-M201", revision=0, title="GMAW spray fillet welds, S355, PA and PB",
         code="ISO 15609-1:2019", unit_system="SI", basis="test", process="GMAW", transfer="spray",
-        electrode="ER70S-6", electrode_diameter=L("1.2 mm"), current="DCEP", amperage_min=240, amperage_max=300,
-        voltage_min=26, voltage_max=30, travel_speed_min=parse_speed("300 mm/min"),
-        travel_speed_max=parse_speed("450 mm/min"), ctwd_min=L("15 mm"), ctwd_max=L("20 mm"),
+        electrode="ER70S-6", electrode_diameter=L("1.2 mm"), current="DCEP", amperage_min=255, amperage_max=285,
+        voltage_min=27, voltage_max=29, travel_speed_min=parse_speed("350 mm/min"),
+        travel_speed_max=parse_speed("420 mm/min"), ctwd_min=L("15 mm"), ctwd_max=L("20 mm"),
         shielding_gas="M21 (Ar + 18% CO2)", positions="F, H", joint_types="fillet",
-        base_metals="EN 10025-2 S355J2", thickness_min=L("6 mm"), thickness_max=L("24 mm"),
+        base_metals="EN 10025-2 S355J2", thickness_min=L("6 mm"), thickness_max=L("14 mm"),
         fillet_size_min=L("4 mm"), fillet_size_max=L("10 mm"), single_pass_size_max=L("8 mm"),
         preheat_min=parse_temperature("15 C"), interpass_max=parse_temperature("250 C"),
         created_by=users[Role.WELDING_ENGINEER],
@@ -173,6 +178,8 @@ def _welders(users, today):
                       electrode="F7A2-EM12K", test_date=date(2024, 8, 1))),
         ("B-12", dict(process="FCAW", joint="fillet", test_position="2F", test_thickness=L("1/2 in"),
                       electrode="E71T-1C", test_date=date(2025, 6, 4))),
+        ("B-12", dict(process="GMAW", transfer="short_circuit", joint="fillet", test_position="3F",
+                      progression="up", test_thickness=L("3/8 in"), electrode="ER70S-6", test_date=date(2025, 9, 9))),
         ("B-19", dict(process="FCAW", joint="fillet", test_position="3F", test_thickness=L("1/2 in"),
                       electrode="E71T-1C", test_date=date(2025, 11, 10))),
         ("B-23", dict(process="SMAW", joint="groove", test_position="4G", test_thickness=L("3/8 in"),
@@ -190,7 +197,7 @@ def _welders(users, today):
     # Continuity before Legwork: the shop's old logbook, about every two months since each test, entered by the
     # QA lead; the last entry sets the story (B-19 lapses within weeks, B-23 has lapsed).
     last_use = {("B-07", "FCAW"): 40, ("B-07", "SMAW"): 75, ("B-07", "SAW"): 120, ("B-12", "FCAW"): 30,
-                ("B-19", "FCAW"): 165, ("B-23", "SMAW"): 275, ("N-31", "GMAW"): 20}
+                ("B-12", "GMAW"): 25, ("B-19", "FCAW"): 165, ("B-23", "SMAW"): 275, ("N-31", "GMAW"): 20}
     for stamp, fields in tests:
         last = today - timedelta(days=last_use[(stamp, fields["process"])])
         day = fields["test_date"] + timedelta(days=60)
@@ -249,7 +256,7 @@ def _jobs(users, procedures, welders, today):
                                 criteria_key="aws-d1.1-2020-static")
     runway = Job.objects.create(number="J-2422", name="Crane runway girders, bay 3",
                                 customer="Ostrander Mill Services", unit_system="US",
-                                criteria_key="aws-d1.1-2020-cyclic")
+                                criteria_key="aws-d1.1-2020-cyclic", fit_up_hold_point=True)
     canopy = Job.objects.create(number="J-2431", name="Ferry terminal canopy, Nordvik quay",
                                 customer="Nordvik Havn (invented)", unit_system="SI",
                                 criteria_key="iso-5817-2014-C")
@@ -281,7 +288,7 @@ def _garage(job, users, procedures, welders, today):
 
     fcaw, smaw = procedures["fcaw"], procedures["smaw"]
     dana, luis = welders["B-07"], welders["B-12"]  # B-19 welds nothing here: her FCAW lapses within weeks
-    day = today - timedelta(days=6)
+    day = today  # the procedures were approved today: a weld made before that would not be to an approved WPS
 
     beam = Assembly.objects.create(job=job, piece_mark="B12", drawing="E-204", drawing_revision="2", quantity=4,
                                    description="W18x35 beam, shear tabs both ends")
@@ -318,6 +325,18 @@ def _garage(job, users, procedures, welders, today):
     _inspect(b1, users, min_size=L("3/16 in"), convexity=L("1/32 in"), face_width=L("5/16 in"))
     release(brace, users[Role.QA_LEAD], reason="All welds accepted at final visual")
 
+    # Two assemblies whose chain does not hold, whatever their final visual says: release lists why.
+    stair = Assembly.objects.create(job=job, piece_mark="S7", drawing="E-512", drawing_revision="0", quantity=2,
+                                    description="Stair stringer clips, 1/4 in plate")
+    s1 = _weld(stair, "W1", procedures["gmaw_s"], [luis], day, size=L("3/16 in"), length=L("3 in"), count=4,
+               thickness1=L("1/4 in"), thickness2=L("1/4 in"), position="F", process="GMAW-S")
+    _inspect(s1, users, min_size=L("3/16 in"))  # accepted, but BSW-103 is still a draft
+    embed = Assembly.objects.create(job=job, piece_mark="P2", drawing="E-520", drawing_revision="1", quantity=6,
+                                    description="Embed plate with anchor bars")
+    p1 = _weld(embed, "W1", smaw, [welders["B-23"]], day, size=L("1/4 in"), length=L("5 in"), count=2,
+               thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="F")
+    _inspect(p1, users, min_size=L("1/4 in"))  # accepted, but B-23's SMAW continuity has lapsed
+
     Assembly.objects.create(job=job, piece_mark="B13", drawing="E-205", drawing_revision="1", quantity=3,
                             description="W16x26 beam, not yet welded")
 
@@ -325,10 +344,11 @@ def _garage(job, users, procedures, welders, today):
 def _runway(job, users, procedures, welders, today):
     from inspections.models import Assembly
     from inspections.services.ncr import disposition_repair
+    from inspections.services.repairs import record_repair
 
     saw, fcaw = procedures["saw"], procedures["fcaw"]
     dana, luis = welders["B-07"], welders["B-12"]
-    day = today - timedelta(days=3)
+    day = today
     girder = Assembly.objects.create(job=job, piece_mark="G1", drawing="R-101", drawing_revision="3", quantity=1,
                                      description="Plate girder, 30 ft, 1-1/4 in flanges")
     g1 = _weld(girder, "W1", fcaw, [dana], day, size=L("5/16 in"), length=L("360 in"), count=2, sides="both",
@@ -336,10 +356,14 @@ def _runway(job, users, procedures, welders, today):
     g2 = _weld(girder, "W2", fcaw, [luis], day, size=L("1/4 in"), length=L("30 in"), count=12, sides="both",
                thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="H", primary_member=True,
                transverse_to_tension=True)
+    for weld in (g1, g2):  # this job holds the fit-up of every weld as a hold point
+        _inspect(weld, users, stage="fit_up", fit_up_ok=True)
     _inspect(g1, users, min_size=L("5/16 in"), undercut_depth=L("1/32 in"))
     rejected = _inspect(g2, users, min_size=L("1/4 in"), undercut_depth=L("1/32 in"))
     ncr = rejected.ncrs.get()
     disposition_repair(ncr, users[Role.QA_LEAD], fcaw, dana, notes="Grind and blend, re-weld toe, re-inspect.")
+    record_repair(ncr, users[Role.INSPECTOR], wps=fcaw, welders=[dana], welded_on=day,
+                  notes="Toe ground and re-welded over 30 in")
     _inspect(g2, users, min_size=L("1/4 in"), undercut_depth=L("0.005 in"))
     del saw
 
@@ -349,11 +373,11 @@ def _canopy(job, users, procedures, welders, today):
 
     gmaw = procedures["gmaw_si"]
     ingrid = welders["N-31"]
-    day = today - timedelta(days=2)
+    day = today
     truss = Assembly.objects.create(job=job, piece_mark="K-07", drawing="NV-C-210", drawing_revision="B",
                                     quantity=8, description="Canopy truss node, S355 plates")
     k1 = _weld(truss, "N1", gmaw, [ingrid], day, size=L("6 mm"), length=L("220 mm"), count=2, sides="both",
-               thickness1=L("10 mm"), thickness2=L("15 mm"), position="PB")
+               thickness1=L("10 mm"), thickness2=L("12 mm"), position="PB")
     k2 = _weld(truss, "N2", gmaw, [ingrid], day, size=L("5 mm"), length=L("140 mm"), count=4,
                thickness1=L("8 mm"), thickness2=L("10 mm"), position="PA")
     _inspect(k1, users, throat=L("4.3 mm"), undercut_depth=L("0.3 mm"))

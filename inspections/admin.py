@@ -3,7 +3,7 @@
 from django.contrib import admin
 
 from core.admin import ReadOnlyAdmin
-from inspections.models import NCR, Assembly, ClientCriteriaSet, Inspection, Job, Photo, Weld
+from inspections.models import NCR, Assembly, ClientCriteriaSet, Inspection, Job, Photo, Weld, WeldRepair
 from inspections.models.traveler import JobPacket, Traveler
 
 
@@ -25,7 +25,7 @@ class WeldAdmin(admin.ModelAdmin):
     list_select_related = ["assembly", "wps"]
 
 
-for model in (Inspection, Photo, ClientCriteriaSet, Traveler, JobPacket):
+for model in (Inspection, Photo, ClientCriteriaSet, Traveler, JobPacket, WeldRepair):
     admin.site.register(model, ReadOnlyAdmin)
 
 

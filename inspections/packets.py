@@ -156,7 +156,7 @@ def _build(packet: JobPacket, directory: Path):
         parts.append(Part(f"Traveler {mark} ({traveler.document_number})", path, traveler.pages, "traveler"))
         rows.append({"piece_mark": mark, "document_number": traveler.document_number, "sha256": traveler.sha256,
                      "state": snapshot["assembly"]["state"], "welds": len(snapshot["welds"]),
-                     "open": len(snapshot["open_items"])})
+                     "open": len(snapshot["open_items"]), "released": snapshot["assembly"]["released"]})
         for wps in snapshot["wps_used"]:
             wps_pks[wps["pk"]] = wps
         for welder in snapshot["welders_used"]:
@@ -179,8 +179,10 @@ def _build(packet: JobPacket, directory: Path):
                           travelers.page_count(content), "welder"))
     advance(packet, len(pks) + 2, "Welder qualification summaries")
 
+    released = [r for r in rows if r["released"]]
     context = {"packet": packet, "job": packet.job, "rows": rows, "open_items": open_items,
-               "requested_by": travelers._person(user)}
+               "requested_by": travelers._person(user), "released": len(released),
+               "not_released": [r["piece_mark"] for r in rows if not r["released"]]}
     rendered = render_pdf(COVER_TEMPLATE, {**context, "part": "open_items"}, "open-items.pdf")
     parts.append(Part("Open items", _spool(directory, "open-items.pdf", rendered.content),
                       travelers.page_count(rendered.content), "open_items"))

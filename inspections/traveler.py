@@ -34,9 +34,10 @@ from core.units import Length, format_force, format_length
 from inspections import weld_symbols
 from inspections.models import Assembly, Inspection, InspectionStage, Photo, Weld
 from inspections.models.traveler import Traveler
+from inspections.services import chain as proof
 from inspections.services.assemblies import weld_statuses
 
-GENERATOR = "legwork-traveler 2"  # bump when the layout or the gathered data changes meaning
+GENERATOR = "legwork-traveler 3"  # bump when the layout or the gathered data changes meaning
 TEMPLATE = "pdf/traveler.html"
 PHOTO_MAX_PX = 360  # thumbnails are 320 px (inspections.photos); anything larger is shrunk before embedding
 PHOTOS_MAX = 24  # more than this many photos: the newest are embedded, the rest listed by caption
@@ -160,9 +161,10 @@ def _photo_rows(photos, weld_marks) -> list[dict]:
 
 
 def gather(assembly_pk: int) -> dict:
-    """Everything one assembly's traveler prints, in words, in a fixed number of queries (see the tests)."""
-    from procedures import eligibility
+    """Everything one assembly's traveler prints, in words, in a fixed number of queries (see the tests).
 
+    The open items are the release blockers (inspections.services.chain, the same list release waits for), so a
+    released traveler has none and one printed before release says what is still open."""
     assembly = (Assembly.objects.select_related("job__client_criteria", "released_by").get(pk=assembly_pk))
     job = assembly.job
     system = job.unit_system
@@ -171,38 +173,48 @@ def gather(assembly_pk: int) -> dict:
     weld_ids = [w.pk for w in welds]
     marks = {w.pk: w.mark for w in welds}
     statuses = weld_statuses(weld_ids)  # the release rules live there (services.assemblies)
+    chains = proof.check_assembly(assembly, welds, statuses)  # WPS, welders (original and repairs), hold point
     fit_ups = {}
     for inspection in (Inspection.objects.current().filter(weld_id__in=weld_ids, stage=InspectionStage.FIT_UP)
                        .select_related("inspector").order_by("weld_id", "-inspected_at", "-pk")):
         fit_ups.setdefault(inspection.weld_id, inspection)
     photos = list(Photo.objects.filter(inspection__weld_id__in=weld_ids)
                   .select_related("inspection").order_by("-uploaded_at", "-pk")[:PHOTOS_MAX + 1])
-    # Welder checks on the day each weld was welded (procedures.eligibility decides). Undated welds are not
-    # judged on "today": that answer would change by itself from one day to the next.
-    dated = [w for w in welds if w.welded_on is not None]
-    checks = eligibility.check_welds(dated) if dated else {}
 
-    rows, capacity, open_items, wps_used, welders_used = [], [], [], {}, {}
+    rows, capacity, wps_used, welders_used = [], [], {}, {}
     for weld in welds:
         status = statuses[weld.pk]
-        check = checks.get(weld.pk)
+        link = chains[weld.pk]
         welders = []
-        for welder in sorted(weld.welders.all(), key=lambda w: w.stamp):
+        for one in link.welders.checks:
+            welder = one.welder
             welders_used[welder.pk] = {"pk": welder.pk, "stamp": welder.stamp, "name": welder.name}
-            if check is None:
+            if weld.welded_on is None:
+                # Undated welds are not judged on "today": that answer would change by itself from one day to
+                # the next.
                 welders.append({"stamp": welder.stamp, "name": welder.name, "allowed": None,
                                 "reasons": ["No weld date recorded: qualification not judged."]})
                 continue
-            one = next((c for c in check.checks if c.welder.pk == welder.pk), None)
-            welders.append({"stamp": welder.stamp, "name": welder.name, "allowed": bool(one and one.allowed),
-                            "reasons": list(one.reasons) if one else []})
+            welders.append({"stamp": welder.stamp, "name": welder.name, "allowed": bool(one.allowed),
+                            "reasons": list(one.reasons)})
         wps = weld.wps
-        if wps is not None:
-            wps_used[wps.pk] = {"pk": wps.pk, "number": wps.number, "revision": wps.revision,
-                                "state": wps.get_state_display(), "title": wps.title}
+        for used in [wps] + [item.repair.wps for item in link.repairs]:
+            if used is not None:
+                wps_used[used.pk] = {"pk": used.pk, "number": used.number, "revision": used.revision,
+                                     "state": used.get_state_display(), "title": used.title}
         final = status.final
         ncrs = [{"number": n.number, "state": n.get_state_display(), "open": n.is_open,
                  "disposition": n.get_disposition_display() if n.disposition else ""} for n in status.ncrs]
+        repairs = []
+        for item in link.repairs:
+            repair = item.repair
+            for one in item.welders.checks:
+                welders_used[one.welder.pk] = {"pk": one.welder.pk, "stamp": one.welder.stamp,
+                                               "name": one.welder.name}
+            repairs.append({"ncr": repair.ncr.number, "date": _day(repair.welded_on),
+                            "wps": f"{repair.wps.number} rev {repair.wps.revision}", "wps_ok": item.wps.ok,
+                            "welders": [{"stamp": c.welder.stamp, "allowed": bool(c.allowed)}
+                                        for c in item.welders.checks]})
         result = "Not inspected"
         if final is not None:
             result = "Accepted" if final.accepted else ("Use as is (NCR)" if status.accepted_as_is else "Rejected")
@@ -217,36 +229,56 @@ def gather(assembly_pk: int) -> dict:
                        "field_weld": weld.field_weld, "joint": weld.joint_type,
                        "tail": f"{wps.number}" if wps else ""},
             "wps": f"{wps.number} rev {wps.revision}" if wps else "", "wps_state": wps.state if wps else "",
+            "wps_ok": bool(weld.welded_on is not None and link.wps.ok),
             "welded_on": _day(weld.welded_on), "welders": welders,
             "qualified": bool(welders) and all(w["allowed"] for w in welders),
             "fit_up": _inspection(fit_ups.get(weld.pk), system), "final": _inspection(final, system),
-            "result": result, "released_ok": status.released_ok, "ncrs": ncrs,
+            "result": result, "released_ok": status.released_ok, "ncrs": ncrs, "repairs": repairs,
+            "chain_ok": link.ok,
         }
         rows.append(row)
         cap = _capacity(weld, final, system)
         if cap is not None:
             capacity.append(cap)
-        open_items += _open_items(row, wps)
-    if not welds:
-        open_items.append("The weld map is empty.")
-    if assembly.state not in ("released", "scrapped"):
+
+    released = assembly.state == "released"
+    blockers = [str(b) for b in proof.blockers_of(chains)]
+    open_items, found_after_release = [], []
+    if released:
+        found_after_release = blockers  # release refused while any was listed: records changed since
+    else:
+        open_items = list(blockers)
+        if not welds:
+            open_items.append("The weld map is empty.")
         open_items.append(f"The assembly is not released ({assembly.get_state_display().lower()}).")
 
     fitted = [r for r in rows if r["fit_up"]]
+    fit_ok = [r for r in fitted if r["fit_up"]["accepted"]]
     finals_ok = [r for r in rows if r["released_ok"]]
+    chain_ok = [r for r in rows if r["chain_ok"]]
     hold_points = [
-        {"name": "Fit-up", "status": f"{len(fitted)} of {len(rows)} welds signed",
-         "by": _last_signers(r["fit_up"] for r in fitted), "done": bool(rows) and len(fitted) == len(rows)},
+        {"name": "Fit-up", "status": (f"{len(fit_ok)} of {len(rows)} welds accepted; a hold point on this job"
+                                      if job.fit_up_hold_point else
+                                      f"{len(fitted)} of {len(rows)} welds signed; not a hold point on this job"),
+         "by": _last_signers(r["fit_up"] for r in fitted),
+         "done": (bool(rows) and len(fit_ok) == len(rows)) if job.fit_up_hold_point else True},
         {"name": "Final visual", "status": f"{len(finals_ok)} of {len(rows)} welds accepted",
          "by": _last_signers(r["final"] for r in rows if r["final"]),
          "done": bool(rows) and len(finals_ok) == len(rows)},
+        {"name": "Proof chain", "status": f"{len(chain_ok)} of {len(rows)} welds: WPS, welders, inspection hold",
+         "by": "", "done": bool(rows) and len(chain_ok) == len(rows)},
         {"name": "Release", "status": assembly.get_state_display(),
          "by": (f"{_person(assembly.released_by)}, {_day(assembly.released_at)}" if assembly.released_by else ""),
-         "done": assembly.state == "released"},
+         "done": released},
     ]
     cautions = []
-    if assembly.state != "released":
-        cautions.append("NOT RELEASED: this traveler records work in progress; it is not a release document.")
+    if not released:
+        count = len(open_items)
+        cautions.append(f"NOT RELEASED: {count} open item{'s' if count != 1 else ''} listed on this traveler "
+                        "must be closed before release; it records work in progress and is not a release "
+                        "document.")
+    if found_after_release:
+        cautions.append("Released, but the records now show: " + " ".join(found_after_release))
     if any(r["final"] and not r["final"]["accepted"] for r in rows):
         cautions.append("A weld's current final inspection rejected it: see the NCR column.")
     if capacity:
@@ -254,10 +286,12 @@ def gather(assembly_pk: int) -> dict:
                         "record to review; they do not approve a weld.")
     return {
         "job": {"pk": job.pk, "number": job.number, "name": job.name, "customer": job.customer,
-                "unit_system": job.get_unit_system_display(), "system": system},
+                "unit_system": job.get_unit_system_display(), "system": system,
+                "fit_up_hold_point": job.fit_up_hold_point},
         "assembly": {"pk": assembly.pk, "piece_mark": assembly.piece_mark, "drawing": assembly.drawing,
                      "drawing_revision": assembly.drawing_revision, "quantity": assembly.quantity,
-                     "description": assembly.description, "state": assembly.get_state_display()},
+                     "description": assembly.description, "state": assembly.get_state_display(),
+                     "released": released},
         "criteria": _criteria(job),
         "convention": weld_symbols.AWS if system == "US" else weld_symbols.ISO,
         "url": assembly_url(assembly.pk),
@@ -275,29 +309,6 @@ def _last_signers(inspections) -> str:
         return ""
     names = list(dict.fromkeys(name for _, name in people))
     return f"{', '.join(names[:3])}{' and others' if len(names) > 3 else ''}; last {people[0][0]}"
-
-
-def _open_items(row, wps) -> list[str]:
-    mark = row["mark"]
-    items = []
-    if wps is None:
-        items.append(f"Weld {mark}: no WPS named.")
-    elif row["wps_state"] != "approved":
-        items.append(f"Weld {mark}: WPS {row['wps']} is not approved ({wps.get_state_display().lower()}).")
-    if not row["welders"]:
-        items.append(f"Weld {mark}: no welder recorded.")
-    elif not row["welded_on"]:
-        items.append(f"Weld {mark}: no weld date recorded.")
-    for welder in row["welders"]:
-        if welder["allowed"] is False:
-            items.append(f"Weld {mark}: welder {welder['stamp']} not qualified on {row['welded_on']}: "
-                         + "; ".join(welder["reasons"][:2]))
-    if row["final"] is None:
-        items.append(f"Weld {mark}: no final visual inspection.")
-    for ncr in row["ncrs"]:
-        if ncr["open"]:
-            items.append(f"Weld {mark}: NCR {ncr['number']} open ({ncr['state'].lower()}).")
-    return items
 
 
 def fingerprint(snapshot: dict) -> str:

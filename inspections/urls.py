@@ -31,6 +31,7 @@ urlpatterns = [
     path("ncrs/", ncr_views.ncr_list, name="ncr_list"),
     path("ncrs/<int:pk>/", ncr_views.ncr_detail, name="ncr_detail"),
     path("ncrs/<int:pk>/disposition/<slug:kind>/", ncr_views.ncr_disposition, name="ncr_disposition"),
+    path("ncrs/<int:pk>/repair/", ncr_views.ncr_repair, name="ncr_repair"),
     path("criteria/", criteria_views.criteria_list, name="criteria_list"),
     path("criteria/derive/", criteria_views.criteria_derive, name="criteria_derive"),
     path("criteria/client/<int:pk>/", criteria_views.criteria_client_detail, name="criteria_client_detail"),

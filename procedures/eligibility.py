@@ -8,7 +8,9 @@ queries whatever the number of welders and welds, and hands back the engine's El
 - check_welds(welds, on): every welder of every weld (weld map, travelers): four queries at most.
 - eligible_welders(weld, welders, on): which of these welders may make this weld.
 - welder_status(welder, on) / welder_statuses(welders, on): qualified, lapsing, lapsed, inactive or untested.
+- check_work(works): welders of any welding (original welds and repairs) on their own days, fixed queries.
 - record_production(weld): the continuity a production weld gives its welders (idempotent).
+- record_repair(repair): the continuity a repair weld gives its welders.
 - describe(qualification): the ranges of one test record in plain words, for pages and PDFs.
 """
 
@@ -177,6 +179,9 @@ def facts(qualification: Qualification, uses: list[date] | None = None, on: date
         welder=qualification.welder.stamp if _welder_cached(qualification) else "",
         iso_revalidation=qualification.iso_revalidation or None,
         unit_system=qualification.unit_system or None,
+        progression=qualification.progression or None,
+        backing=qualification.backing or None,
+        transfer=(qualification.transfer or None) if qualification.process == "GMAW" else None,
     )
 
 
@@ -204,6 +209,8 @@ def weld_demand(weld) -> list[engine.WeldDemand]:
     weld does not say enough).
 
     One demand per part joined when the parts differ in thickness: both parts must lie in the qualified range.
+    The essential variables the weld map does not hold come from the WPS it is welded to: GMAW transfer, vertical
+    progression (an ISO 6947 PF or PG on the weld map says it itself) and, for groove welds, backing.
     """
     wps = weld.wps
     if wps is None:
@@ -213,9 +220,16 @@ def weld_demand(weld) -> list[engine.WeldDemand]:
     thicknesses = sorted({weld.thickness1, weld.thickness2} - {None}, key=lambda t: t.mm)
     if not thicknesses:
         raise ValueError(f"Weld {weld.mark} gives no thickness of the parts joined.")
+    progression = _ISO_PROGRESSION.get(weld.position) or getattr(wps, "progression", "") or None
+    backing = (getattr(wps, "backing", "") or None) if weld.joint_type == "groove" else None
+    transfer = (wps.transfer or None) if wps.process == "GMAW" else None
     return [engine.WeldDemand(process=wps.process, joint=weld.joint_type, position=weld.position, thickness=t,
-                              electrode=wps.electrode or None, code=code)
+                              electrode=wps.electrode or None, code=code, progression=progression,
+                              backing=backing, transfer=transfer)
             for t in thicknesses]
+
+
+_ISO_PROGRESSION = {"PF": "up", "PG": "down"}  # ISO 6947 (published)
 
 
 def _refused(*reasons) -> engine.Eligibility:
@@ -232,10 +246,18 @@ def _inactive_reason(welder: Welder, on: date) -> str | None:
     return f"Welder {welder.stamp} was made inactive on {since.isoformat()}{why}."
 
 
-def _check(welder: Welder, records: _Records, demands, on: date) -> engine.Eligibility:
-    """Combine the engine's answers for each demand (each part joined) into one answer."""
+def _check(welder: Welder, records: _Records, demands, on: date, memo: dict | None = None) -> engine.Eligibility:
+    """Combine the engine's answers for each demand (each part joined) into one answer.
+
+    memo: {(welder pk, day): facts} shared across many checks, so a welder's records are read into facts once per
+    day rather than once per weld (the continuity chain is walked per record)."""
     inactive = _inactive_reason(welder, on)
-    good, bad = _facts_for(welder, records, on)
+    if memo is None:
+        good, bad = _facts_for(welder, records, on)
+    else:
+        if (welder.pk, on) not in memo:
+            memo[(welder.pk, on)] = _facts_for(welder, records, on)
+        good, bad = memo[(welder.pk, on)]
     answers = [engine.check_welder([f for _, f in good], demand, on) for demand in demands]
     reasons = []
     if inactive:
@@ -338,6 +360,31 @@ def check_welds(welds, on: date | None = None) -> dict[int, WeldCheck]:
     return result
 
 
+@dataclass(frozen=True)
+class Work:
+    """Welding to check: a weld (or a weld-like record: a repair's weld with the repair's WPS), its welders and the
+    day it was welded. key names it in the answer."""
+
+    key: object
+    weld: object
+    welders: tuple
+    on: date
+
+
+def check_work(works) -> dict[object, WeldCheck]:
+    """Every welder of every piece of work on its own day: {work.key: WeldCheck}, two queries for the welders'
+    test records and continuity whatever the number of works (none when those are prefetched)."""
+    works = list(works)
+    records = _load([welder for work in works for welder in work.welders])
+    result, memo = {}, {}
+    for work in works:
+        demands, refusal = _demands_or_refusal(work.weld)
+        checks = tuple(WelderCheck(welder, refusal or _check(welder, records[welder.pk], demands, work.on, memo))
+                       for welder in sorted(work.welders, key=lambda w: w.stamp))
+        result[work.key] = WeldCheck(work.weld, checks, work.on)
+    return result
+
+
 def _m2m_cached(weld) -> bool:
     return "welders" in getattr(weld, "_prefetched_objects_cache", {})
 
@@ -425,6 +472,23 @@ def record_production(weld) -> list[ContinuityEntry]:
             except IntegrityError:
                 pass
         return list(ContinuityEntry.objects.filter(weld=weld).order_by("welder__stamp"))
+
+
+def record_repair(repair) -> list[ContinuityEntry]:
+    """The continuity a recorded repair gives its welders: one entry each (source repair) for the repair WPS's
+    process on the repair date. Made once with the repair (a repair record is never edited); calling it again
+    changes nothing."""
+    with transaction.atomic():
+        process = repair.wps.process
+        for welder_id in sorted(repair.welders.values_list("pk", flat=True)):
+            try:
+                with transaction.atomic():
+                    ContinuityEntry.objects.get_or_create(
+                        welder_id=welder_id, repair=repair, process=process,
+                        defaults={"date": repair.welded_on, "source": ContinuityEntry.Source.REPAIR})
+            except IntegrityError:
+                pass
+        return list(ContinuityEntry.objects.filter(repair=repair).order_by("welder__stamp"))
 
 
 # --- ranges in plain words ------------------------------------------------------------------------------------

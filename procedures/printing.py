@@ -113,7 +113,9 @@ def wps_context(wps):
     """What the WPS page and the printed WPS show, gathered in a fixed number of queries."""
     findings = wps.findings()
     decoded, decode_error = _electrode(wps)
+    envelope, envelope_error = wps.support_envelope()
     return {
+        "envelope": envelope, "envelope_error": envelope_error,
         "wps": wps,
         "findings": findings,
         "errors": [f for f in findings if f.severity == "error"],

@@ -177,13 +177,19 @@ _GAS_NAMES = {"ARGON": "AR", "HELIUM": "HE", "CARBONDIOXIDE": "CO2", "OXYGEN": "
 
 
 def parse_gas(text) -> tuple | None:
-    """A shielding gas as a sorted tuple of (gas, percent); None for no gas. '90Ar/10CO2' == '10% CO2 + 90% Ar'."""
+    """A shielding gas as a sorted tuple of (gas, percent); None for no gas. '90Ar/10CO2' == '10% CO2 + 90% Ar';
+    'M21 (Ar + 18% CO2)' is read as its designation M21 (the bracketed words describe it)."""
     if text is None:
         return None
     if not isinstance(text, str):
         raise ValueError(f"shielding gas must be text such as 90Ar/10CO2 (or None for no gas), not "
                          f"{type(text).__name__}.")
-    compact = unicodedata.normalize("NFKC", text).upper().replace("%", "").replace(" ", "")
+    normal = unicodedata.normalize("NFKC", text).strip()
+    # "M21 (Ar + 18% CO2)": a designation followed by its description in brackets is read by the designation.
+    bracketed = re.fullmatch(r"(.+?)\s*\(.*\)", normal)
+    if bracketed:
+        normal = bracketed[1]
+    compact = normal.upper().replace("%", "").replace(" ", "")
     if compact in ("", "NONE", "NOGAS"):
         return None
     if len(compact) > 40:

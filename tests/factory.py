@@ -80,6 +80,19 @@ class Factory:
         fields.update(kwargs)
         return PQR.objects.create(**fields)
 
+    # A WPS inside what make_pqr's coupon supports (procedures.support, AWS D1.1:2020 clause 6 Part B): a 3F
+    # fillet test qualifies V fillets; 200 A +/- 10 %, 25 V +/- 7 %, 10 in/min +/- 25 %; 50 F preheat.
+    SUPPORTED_BY_DEFAULT_PQR = dict(positions="V", progression="up", amperage_min=180, amperage_max=220,
+                                    voltage_min="23.25", voltage_max="26.75", travel_speed_min=parse_speed("8 in/min"),
+                                    travel_speed_max=parse_speed("12.5 in/min"))
+
+    def make_tested_wps(self, state=WPSState.DRAFT, pqr=None, **kwargs):
+        """A WPS qualified by test on one PQR (make_pqr) that supports every value of it; taken to `state`."""
+        pqr = pqr or self.make_pqr()
+        wps = self.make_wps(basis="test", **{**self.SUPPORTED_BY_DEFAULT_PQR, **kwargs})
+        wps.pqrs.add(pqr)
+        return self.move_wps(wps, state)
+
     def make_welder(self, **kwargs):
         n = next(_counter)
         fields = dict(name=f"Welder {n}", stamp=f"B-{n:02d}", employer="Brannock Steelworks")
@@ -123,6 +136,37 @@ class Factory:
                       thickness2=L("1/2 in"), position="F")
         fields.update(kwargs)
         return Weld.objects.create(**fields)
+
+    def make_qualified_welder(self, process="FCAW", **kwargs):
+        """A welder with a passed all-position groove test on 1 in plate 30 days ago (in continuity today)."""
+        from datetime import timedelta
+
+        from django.utils import timezone
+
+        welder = self.make_welder(**kwargs)
+        self.make_qualification(welder=welder, process=process,
+                                electrode={"SMAW": "E7018", "GMAW": "ER70S-6"}.get(process, "E71T-1C"),
+                                test_date=timezone.localdate() - timedelta(days=30))
+        return welder
+
+    def approved_wps(self):
+        """One approved FCAW fillet WPS (the default make_wps) shared by this factory's sound welds."""
+        if getattr(self, "_approved_wps", None) is None:
+            self._approved_wps = self.make_wps(state=WPSState.APPROVED)
+        return self._approved_wps
+
+    def make_sound_weld(self, assembly=None, *, wps=None, welders=None, welded_on=None, **kwargs):
+        """A weld whose chain holds up to inspection: an approved WPS that covers it (approved today), a welder
+        qualified and in continuity, welded today, its continuity recorded. Inspect it to complete the chain."""
+        from django.utils import timezone
+
+        from inspections.services.assemblies import record_production
+
+        weld = self.make_weld(assembly, wps=wps or self.approved_wps(), welded_on=welded_on or timezone.localdate(),
+                              **kwargs)
+        weld.welders.set(welders if welders is not None else [self.make_qualified_welder()])
+        record_production(weld)
+        return weld
 
     def make_inspection(self, weld=None, *, accepted=None, stage="final", user=None, supersedes=None, reason="",
                         **observed):

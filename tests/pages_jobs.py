@@ -55,6 +55,7 @@ NOT_PAGES = {
     "inspections:assembly_submit": _assembly,
     "inspections:assembly_release": _assembly,
     "inspections:ncr_disposition": lambda make: {"pk": make.make_ncr().pk, "kind": "scrap"},
+    "inspections:ncr_repair": lambda make: {"pk": make.make_ncr().pk},
 }
 
 

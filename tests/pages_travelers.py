@@ -1,6 +1,6 @@
 """Role-matrix rows for the traveler and packet pages, and the builders the traveler tests share."""
 
-from datetime import date
+from django.utils import timezone
 
 from core.units import parse_force, parse_length
 from inspections import packets
@@ -20,14 +20,13 @@ def build_assembly(make, welds=3, photos=0, *, job=None, required_every=5, inspe
     wps = getattr(make, "_traveler_wps", None)
     if wps is None:
         wps = make._traveler_wps = make.make_wps(state=WPSState.APPROVED, number=f"BSW-T{job.pk}")
-        welder = make._traveler_welder = make.make_welder(name="Dana Kessler")
-        make.make_qualification(welder=welder)
+        welder = make._traveler_welder = make.make_qualified_welder(name="Dana Kessler")
         make._traveler_inspector = make.make_user("inspector", first_name="Ruth", last_name="Okafor")
     welder, inspector = make._traveler_welder, make._traveler_inspector
     made = []
     for n in range(welds):
         weld = make.make_weld(
-            assembly=assembly, mark=f"W{n + 1:02d}", wps=wps, welded_on=date(2026, 4, 2),
+            assembly=assembly, mark=f"W{n + 1:02d}", wps=wps, welded_on=timezone.localdate(),  # WPS approved today
             sides=["arrow", "other", "both"][n % 3], all_around=(n % 4 == 3), field_weld=(n % 5 == 4),
             pitch=parse_length("12 in") if n % 6 == 5 else None,
             length=parse_length("4 in") if n % 6 == 5 else parse_length("12 in"),

@@ -34,3 +34,19 @@ def test_the_demo_has_a_welder_in_each_continuity_state(db):
     call_command("load_demo", verbosity=0)
     states = {status.state for status in welder_statuses(Welder.objects.all()).values()}
     assert {"qualified", "lapsing", "lapsed"} <= states
+
+
+def test_the_demo_shows_the_proof_chain_three_ways(db):
+    from inspections.services.assemblies import release_blockers
+
+    call_command("load_demo", verbosity=0)
+    garage = {a.piece_mark: a for a in Assembly.objects.filter(job__number=demo.MARKER_JOB)}
+    assert garage["BR3"].state == "released"  # every link held
+    stair = release_blockers(garage["S7"])
+    assert len(stair) == 1 and "BSW-103 rev 0 is draft: it was never approved" in stair[0]
+    embed = release_blockers(garage["P2"])
+    assert len(embed) == 1 and "welder B-23" in embed[0] and "continuity lapsed" in embed[0]
+    girder = Assembly.objects.get(job__number="J-2422", piece_mark="G1")  # fit-up held, repair recorded, closed
+    assert release_blockers(girder) == []
+    canopy = Assembly.objects.get(job__number="J-2431", piece_mark="K-07")  # ISO: WPS supported by its WPQR
+    assert not any("WPS" in b for b in release_blockers(canopy))

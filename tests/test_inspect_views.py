@@ -70,10 +70,10 @@ def test_the_assembly_page_uses_the_same_queries_for_2_or_20_welds(make, client_
     small, large = page(2), page(20)
     client = client_as("inspector")
     client.get(small)  # warm the session
-    # session + user, assembly with job, welds with WPS, current inspections, NCRs
-    with django_assert_num_queries(6):
+    # session + user, assembly with job, welds with WPS, current inspections, NCRs, the WPSs' next revisions
+    with django_assert_num_queries(7):
         assert client.get(small).status_code == 200
-    with django_assert_num_queries(6):
+    with django_assert_num_queries(7):
         response = client.get(large)
     assert response.content.decode().count("lw-weld-card ") == 20
 

@@ -18,7 +18,7 @@ def assembly(make):
 
 def test_it_releases_an_assembly_whose_welds_all_have_an_accepted_final_inspection(make, users, assembly):
     for mark in ("W1", "W2"):
-        make.make_inspection(weld=make.make_weld(assembly=assembly, mark=mark), accepted=True)
+        make.make_inspection(weld=make.make_sound_weld(assembly=assembly, mark=mark), accepted=True)
     release(assembly, users["qa_lead"], "Ready to ship")
     assembly.refresh_from_db()
     assert assembly.state == AssemblyState.RELEASED and assembly.released_by == users["qa_lead"]
@@ -27,8 +27,8 @@ def test_it_releases_an_assembly_whose_welds_all_have_an_accepted_final_inspecti
 
 
 def test_it_refuses_release_with_an_uninspected_weld(make, users, assembly):
-    make.make_inspection(weld=make.make_weld(assembly=assembly, mark="W1"), accepted=True)
-    make.make_weld(assembly=assembly, mark="W2")
+    make.make_inspection(weld=make.make_sound_weld(assembly=assembly, mark="W1"), accepted=True)
+    make.make_sound_weld(assembly=assembly, mark="W2")
     before = (Assembly.objects.get(pk=assembly.pk).state, history_of(assembly).count())
     with pytest.raises(Refused) as refused:
         release(assembly, users["qa_lead"])
@@ -38,7 +38,7 @@ def test_it_refuses_release_with_an_uninspected_weld(make, users, assembly):
 
 
 def test_an_in_process_inspection_is_not_a_final_one(make, users, assembly):
-    make.make_inspection(weld=make.make_weld(assembly=assembly, mark="W1"), accepted=True, stage="in_process")
+    make.make_inspection(weld=make.make_sound_weld(assembly=assembly, mark="W1"), accepted=True, stage="in_process")
     assert release_blockers(assembly) == ["Weld W1 has no final visual inspection."]
 
 
@@ -51,7 +51,7 @@ def test_it_refuses_release_with_an_open_ncr(make, users, assembly):
 
 
 def test_a_superseded_acceptance_does_not_count(make, users, assembly):
-    weld = make.make_weld(assembly=assembly, mark="W1")
+    weld = make.make_sound_weld(assembly=assembly, mark="W1")
     first = make.make_inspection(weld=weld, accepted=True)
     rejection = make.make_inspection(weld=weld, accepted=False, supersedes=first, reason="Misread the gauge")
     ncr = rejection.ncrs.get()
@@ -61,14 +61,14 @@ def test_a_superseded_acceptance_does_not_count(make, users, assembly):
 def test_it_refuses_an_empty_weld_map_and_a_second_release(make, users, assembly):
     with pytest.raises(Refused):
         release(assembly, users["qa_lead"])
-    make.make_inspection(weld=make.make_weld(assembly=assembly), accepted=True)
+    make.make_inspection(weld=make.make_sound_weld(assembly=assembly), accepted=True)
     release(assembly, users["qa_lead"])
     with pytest.raises(Refused, match="already released"):
         release(assembly, users["qa_lead"])
 
 
 def test_only_the_qa_lead_releases(make, users, assembly):
-    make.make_inspection(weld=make.make_weld(assembly=assembly), accepted=True)
+    make.make_inspection(weld=make.make_sound_weld(assembly=assembly), accepted=True)
     for role in ("welding_engineer", "inspector", "viewer"):
         with pytest.raises(PermissionDenied):
             release(assembly, users[role])
@@ -98,7 +98,7 @@ def test_refresh_rejects_and_comes_back_when_the_ncr_closes(make, users, assembl
 
 
 def test_a_released_assembly_takes_no_more_inspections(make, users, assembly):
-    weld = make.make_weld(assembly=assembly)
+    weld = make.make_sound_weld(assembly=assembly)
     accepted = make.make_inspection(weld=weld, accepted=True)
     release(assembly, users["qa_lead"])
     with pytest.raises(Refused, match="released"):
@@ -109,7 +109,7 @@ def test_a_released_assembly_takes_no_more_inspections(make, users, assembly):
 # --- the buttons ------------------------------------------------------------------------------------------
 
 def test_the_release_button_shows_why_it_was_refused(client_as, make, assembly):
-    make.make_weld(assembly=assembly, mark="W7")
+    make.make_sound_weld(assembly=assembly, mark="W7")
     response = client_as("qa_lead").post(reverse("inspections:assembly_release", args=[assembly.pk]))
     assert response.status_code == 409
     assert "Weld W7 has no final visual inspection." in response.text
@@ -117,7 +117,7 @@ def test_the_release_button_shows_why_it_was_refused(client_as, make, assembly):
 
 
 def test_the_release_button_releases(client_as, make, assembly):
-    make.make_inspection(weld=make.make_weld(assembly=assembly), accepted=True)
+    make.make_inspection(weld=make.make_sound_weld(assembly=assembly), accepted=True)
     response = client_as("qa_lead").post(reverse("inspections:assembly_release", args=[assembly.pk]),
                                          {"reason": "x" * 5000})
     assert response.status_code == 302
@@ -126,7 +126,7 @@ def test_the_release_button_releases(client_as, make, assembly):
 
 @pytest.mark.parametrize("role", ["welding_engineer", "inspector", "viewer"])
 def test_the_release_button_is_the_qa_leads(client_as, make, assembly, role):
-    make.make_inspection(weld=make.make_weld(assembly=assembly), accepted=True)
+    make.make_inspection(weld=make.make_sound_weld(assembly=assembly), accepted=True)
     assert client_as(role).post(reverse("inspections:assembly_release", args=[assembly.pk])).status_code == 403
     assert Assembly.objects.get(pk=assembly.pk).state == AssemblyState.AWAITING_INSPECTION
 

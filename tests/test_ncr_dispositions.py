@@ -18,6 +18,7 @@ from inspections.services.ncr import (
     disposition_use_as_is,
     open_ncr,
 )
+from inspections.services.repairs import record_repair
 from procedures.models.wps import WPSState
 from tests.factory import L, parse_force
 from tests.test_jobs_pages import qualified_welder
@@ -96,7 +97,11 @@ def test_a_repair_is_refused_for_a_welder_not_qualified_for_the_position(make, u
 
 
 def test_an_accepted_final_reinspection_closes_the_repair(make, users, ncr):
-    disposition_repair(ncr, users["qa_lead"], make.make_wps(state=WPSState.APPROVED), qualified_welder(make))
+    wps, welder = make.make_wps(state=WPSState.APPROVED), qualified_welder(make)
+    disposition_repair(ncr, users["qa_lead"], wps, welder)
+    too_soon = make.make_inspection(weld=ncr.weld, accepted=True)  # before the repair is recorded as welded
+    assert NCR.objects.get(pk=ncr.pk).state == NCRState.DISPOSITIONED and close_ncrs_for(too_soon) == []
+    record_repair(ncr, users["inspector"], wps=wps, welders=[welder], welded_on=timezone.localdate())
     in_process = make.make_inspection(weld=ncr.weld, accepted=True, stage="in_process")
     assert close_ncrs_for(in_process) == []
     final = make.make_inspection(weld=ncr.weld, accepted=True)  # signing closes the repaired NCR
@@ -135,9 +140,11 @@ def test_use_as_is_attaches_the_as_inspected_capacity_and_closes(make, users, nc
     assert ncr.weld.assembly.state != AssemblyState.REJECTED
 
 
-def test_a_use_as_is_weld_counts_as_inspected_for_release(make, users, ncr):
+def test_a_use_as_is_weld_counts_as_inspected_for_release(make, users):
     from inspections.services.assemblies import release_blockers
 
+    ncr = make.make_ncr(inspection=make.make_inspection(weld=make.make_sound_weld(), accepted=False))
+    assert release_blockers(ncr.weld.assembly) == [f"Weld {ncr.weld.mark}: {ncr} is open (awaiting disposition)."]
     disposition_use_as_is(ncr, users["qa_lead"], "M. Ferreira, PE", timezone.localdate())
     assert release_blockers(ncr.weld.assembly) == []
 

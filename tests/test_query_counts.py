@@ -10,6 +10,7 @@ from django.utils import timezone
 
 from inspections.services.inspect import sign_inspection
 from inspections.services.ncr import disposition_repair, disposition_scrap, disposition_use_as_is, open_ncr
+from inspections.services.repairs import record_repair
 from procedures.models.wps import WPSState
 from tests.factory import L
 from tests.test_jobs_pages import qualified_welder
@@ -73,7 +74,9 @@ def test_dispositioning_a_repair(make, weld, users, django_assert_num_queries):
 
 def test_closing_a_repair_by_an_accepted_reinspection(make, weld, users, django_assert_num_queries):
     ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))
-    disposition_repair(ncr, users["qa_lead"], make.make_wps(state=WPSState.APPROVED), qualified_welder(make))
+    wps, welder = make.make_wps(state=WPSState.APPROVED), qualified_welder(make)
+    disposition_repair(ncr, users["qa_lead"], wps, welder)
+    record_repair(ncr, users["inspector"], wps=wps, welders=[welder], welded_on=timezone.localdate())
     fresh = _weld(weld)
     with django_assert_num_queries(SIGN_CLOSING_REPAIR):
         sign_inspection(fresh, {"min_size": L("1/4 in")}, "final", users["inspector"])
@@ -94,7 +97,7 @@ def test_scrap(make, weld, users, django_assert_num_queries):
 # Savepoints count as queries on both databases (each transition is its own atomic block inside the signing).
 SIGN_ACCEPTED = 11  # lock weld, read state, insert, point the weld at it, refresh (state, facts) and savepoints
 SIGN_REJECTED = 22  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
-REPAIR = 12  # the NCR with its weld, job and inspection; the welder's records; the transition; refresh
+REPAIR = 13  # the NCR with its weld, job, inspection; the WPS's next revision; welder records; transition; refresh
 SIGN_CLOSING_REPAIR = 21  # an accepted signing + the waiting NCR closed (transition) + the assembly's move back
 USE_AS_IS = 15  # the NCR with its records; the capacity reads the weld's WPS; the transition; refresh and move
 SCRAP = 13  # the NCR with its records, its transition, and the assembly's transition to scrapped

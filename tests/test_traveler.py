@@ -183,8 +183,9 @@ def test_capacity_is_summarised_where_a_required_strength_is_given(make, users):
 def test_open_items_and_cautions_are_listed(make, users):
     assembly = build_assembly(make, welds=2, inspect=False)
     snapshot = gather(assembly.pk)
-    assert "Weld W01: no final visual inspection." in snapshot["open_items"]
-    assert any(c.startswith("NOT RELEASED") for c in snapshot["cautions"])
+    assert snapshot["open_items"] == ["Weld W01 has no final visual inspection.", "Weld W02 has no final visual "
+                                      "inspection.", "The assembly is not released (in fabrication)."]
+    assert snapshot["cautions"][0].startswith("NOT RELEASED: 3 open items listed on this traveler must be closed")
     text, _ = pdf_text(issue(assembly, users["qa_lead"])[0].file.read())
     assert "no final visual inspection" in text
 

@@ -21,7 +21,7 @@ def job(make):
     job = make.make_job(number="J-8800")
     make.make_assembly(job=job, piece_mark="B1")
     make.make_assembly(job=job, piece_mark="C2")
-    make.make_wps(number="BSW-501", state=WPSState.APPROVED)
+    make.make_wps(number="BSW-501", state=WPSState.APPROVED, joint_types="fillet, groove")
     return job
 
 

@@ -4,7 +4,9 @@ from django import forms
 from django.utils import timezone
 
 from core.fields import LengthFormField, set_unit_system
+from core.vocabulary import WELD_PROCESS_CHOICES
 from inspections.models import Assembly, ClientCriteriaSet, Job, Weld
+from inspections.services import chain
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
@@ -29,7 +31,7 @@ class JobForm(forms.ModelForm):
 
     class Meta:
         model = Job
-        fields = ["number", "name", "customer", "unit_system"]
+        fields = ["number", "name", "customer", "unit_system", "fit_up_hold_point"]
         labels = {"number": "Job number", "name": "Job name", "unit_system": "Units"}
 
     def __init__(self, *args, **kwargs):
@@ -84,7 +86,7 @@ SPEC_FIELDS = ["mark", "joint_type", "size", "size2", "length", "count", "sides"
                "position"]
 EXTRA_SPEC_FIELDS = ["all_around", "field_weld", "pitch", "primary_member", "transverse_to_tension",
                      "required_strength", "load_angle"]
-PRODUCTION_FIELDS = ["wps", "welders", "welded_on"]
+PRODUCTION_FIELDS = ["process", "wps", "welders", "welded_on"]
 
 
 class WeldSpecForm(forms.ModelForm):
@@ -144,8 +146,13 @@ class WeldForm(WeldSpecForm):
 
     def __init__(self, *args, spec_locked=False, **kwargs):
         super().__init__(*args, **kwargs)
-        self.fields["wps"].queryset = WPS.objects.exclude(state=WPSState.WITHDRAWN).order_by("number", "-revision")
-        self.fields["wps"].label_from_instance = lambda w: f"{w.number} rev {w.revision} · {w.get_state_display()}"
+        self.fields["wps"].queryset = WPS.objects.order_by("number", "-revision")
+        self.fields["wps"].choices = wps_choices(self.instance, self.assembly.job,
+                                                 self.instance.welded_on or timezone.localdate())
+        self.fields["wps"].help_text = ("Approved procedures that cover this weld come first; another is refused "
+                                        "with the reason.")
+        self.fields["process"].choices = [("", "As the WPS"), *WELD_PROCESS_CHOICES]
+        self.fields["process"].help_text = "When the drawing or weld map names the process"
         self.fields["welders"].queryset = Welder.objects.filter(active=True).order_by("stamp")
         self.fields["load_angle"].min_value = 0
         self.fields["load_angle"].max_value = 90
@@ -169,7 +176,44 @@ class WeldForm(WeldSpecForm):
         data = super().clean()
         if data.get("welders") and not data.get("welded_on"):
             self.add_error("welded_on", "Give the date welded with the welders (it counts toward their continuity).")
+        wps = data.get("wps")
+        if wps is not None and "welded_on" not in self.errors:
+            weld = self._as_entered(data)
+            day = data.get("welded_on") or timezone.localdate()
+            check = chain.wps_check(weld, wps, self.assembly.job, day) if weld is not None else \
+                chain.WpsCheck(wps, [reason] if (reason := wps.in_force_on(day)) else [])
+            for error in check.errors:
+                self.add_error("wps", error)
         return data
+
+    def _as_entered(self, data):
+        """The weld as the form holds it, to judge the WPS against; None while its drawing data is not valid."""
+        needed = ("joint_type", "position", "thickness1", "thickness2", "size")
+        if any(self.has_error(name) or data.get(name) is None for name in needed):
+            return None
+        values = {name: data.get(name) for name in (*needed, "size2", "process")}
+        return Weld(assembly=self.assembly, mark=data.get("mark") or self.instance.mark or "",
+                    **{k: (v if v is not None else getattr(self.instance, k)) for k, v in values.items()})
+
+
+def wps_choices(weld, job, day):
+    """The WPS menu of a weld: the approved procedures that cover it on `day` first, then the rest with what stands
+    in the way (a withdrawn WPS is left out). A weld without its drawing data yet is judged on approval alone."""
+    candidates = list(WPS.objects.exclude(state=WPSState.WITHDRAWN).order_by("number", "-revision"))
+    chain.prime_successors(candidates)
+    complete = all(getattr(weld, name, None) is not None
+                   for name in ("joint_type", "position", "thickness1", "thickness2", "size"))
+    usable, other = [], []
+    for wps in candidates:
+        label = f"{wps.number} rev {wps.revision} · {wps.get_state_display()}"
+        if wps.in_force_on(day):
+            other.append((wps.pk, f"{label} · not approved on {day:%Y-%m-%d}"))
+        elif complete and chain.wps_check(weld, wps, job, day).errors:
+            other.append((wps.pk, f"{label} · does not cover this weld"))
+        else:
+            usable.append((wps.pk, label))
+    heading = "Approved, covering this weld" if complete else "Approved"
+    return [("", "---------"), (heading, usable), ("Refused for this weld", other)]
 
 
 class PieceMarkSearchForm(forms.Form):
@@ -197,6 +241,26 @@ class RepairForm(forms.Form):
         super().__init__(*args, **kwargs)
         self.fields["repair_wps"].queryset = WPS.objects.approved().order_by("number", "-revision")
         self.fields["repair_welder"].queryset = Welder.objects.filter(active=True).order_by("stamp")
+
+
+class RepairRecordForm(forms.Form):
+    """The repair as welded: who, to which WPS, when (inspections.services.repairs.record_repair checks it)."""
+
+    wps = forms.ModelChoiceField(label="Welded to WPS", queryset=WPS.objects.none())
+    welders = forms.ModelMultipleChoiceField(label="Welded by", queryset=Welder.objects.none(),
+                                             widget=forms.CheckboxSelectMultiple)
+    welded_on = forms.DateField(label="Date repaired", widget=forms.DateInput(attrs={"type": "date"}))
+    notes = forms.CharField(label="What was done", widget=forms.Textarea(attrs={"rows": 2}), max_length=2000,
+                            required=False)
+
+    def __init__(self, *args, ncr=None, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["wps"].queryset = WPS.objects.exclude(state__in=[WPSState.DRAFT, WPSState.SUBMITTED]).order_by(
+            "number", "-revision")
+        self.fields["welders"].queryset = Welder.objects.filter(active=True).order_by("stamp")
+        if ncr is not None and not self.is_bound:
+            self.initial.update(wps=ncr.repair_wps_id, welders=[ncr.repair_welder_id] if ncr.repair_welder_id else [],
+                                welded_on=timezone.localdate())
 
 
 class UseAsIsForm(forms.Form):

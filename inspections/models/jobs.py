@@ -6,7 +6,7 @@ from django.urls import reverse
 from django.utils import timezone
 
 from core.fields import ForceField, LengthField
-from core.vocabulary import WELD_POSITION_CHOICES, JointType, Position, UnitSystem
+from core.vocabulary import WELD_POSITION_CHOICES, WELD_PROCESS_CHOICES, JointType, Position, UnitSystem
 
 
 class Job(models.Model):
@@ -20,6 +20,10 @@ class Job(models.Model):
     )
     client_criteria = models.ForeignKey("inspections.ClientCriteriaSet", null=True, blank=True,
                                         on_delete=models.PROTECT, related_name="jobs")
+    fit_up_hold_point = models.BooleanField(
+        "fit-up hold point required", default=False,
+        help_text="Every weld needs an accepted fit-up inspection before the assembly is released",
+    )
     created_at = models.DateTimeField(default=timezone.now, editable=False)
 
     class Meta:
@@ -44,6 +48,25 @@ class Job(models.Model):
         from inspections.criteria import get_criteria
 
         return self.criteria_key, get_criteria(self.criteria_key).version
+
+    @property
+    def code_family(self) -> str:
+        """'AWS' or 'ISO': the family of the standard the job's criteria set judges by (read client_criteria with
+        select_related on lists). A WPS written to the other family does not apply on this job."""
+        if self.client_criteria_id:
+            standard = str(self.client_criteria.definition.get("standard", ""))
+        else:
+            from inspections.criteria import get_criteria
+
+            try:
+                standard = get_criteria(self.criteria_key).standard
+            except ValueError:
+                standard = self.criteria_key
+        return "ISO" if standard.strip().upper().startswith("ISO") else "AWS"
+
+    def applicability_input(self) -> dict:
+        """The job as procedures.applicability.review() reads it."""
+        return {"label": f"job {self.number}", "code_family": self.code_family, "unit_system": self.unit_system}
 
     @property
     def criteria_label(self) -> str:
@@ -113,6 +136,8 @@ class Weld(models.Model):
     thickness1 = LengthField("thickness of part 1")
     thickness2 = LengthField("thickness of part 2")
     position = models.CharField(max_length=2, choices=WELD_POSITION_CHOICES, default=Position.F)
+    process = models.CharField(max_length=8, choices=WELD_PROCESS_CHOICES, blank=True,
+                               help_text="When the drawing or weld map names one; blank: the WPS's process")
     wps = models.ForeignKey("procedures.WPS", null=True, blank=True, on_delete=models.PROTECT, related_name="welds",
                             verbose_name="WPS")
     welders = models.ManyToManyField("procedures.Welder", blank=True, related_name="welds")
@@ -137,6 +162,12 @@ class Weld(models.Model):
 
     def get_absolute_url(self):
         return reverse("inspections:weld_detail", args=[self.pk])
+
+    def applicability_input(self, label=None) -> dict:
+        """The weld as procedures.applicability.review() reads it."""
+        return {"label": label or f"Weld {self.mark}", "joint": self.joint_type, "position": self.position,
+                "thicknesses": [t for t in (self.thickness1, self.thickness2) if t is not None],
+                "size": self.size, "size2": self.size2, "process": self.process or None}
 
     @property
     def thinner_part(self):

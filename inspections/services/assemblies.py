@@ -90,27 +90,23 @@ def weld_statuses(weld_ids) -> dict[int, WeldStatus]:
     return statuses
 
 
-def release_blockers(assembly, statuses=None, welds=None) -> list[str]:
-    """Every reason the assembly cannot be released now, in words; empty means it may be released."""
+def release_blockers(assembly, statuses=None, welds=None, chains=None) -> list[str]:
+    """Every reason the assembly cannot be released now, weld by weld, each with the page where it is put right
+    (inspections.services.chain: WPS, welders, inspection and NCRs, hold point; original welds and repairs). Empty
+    means it may be released. There is no override: an NCR is the one way to accept a deviation. Pass the page's
+    welds, statuses or chains (chain.check_assembly) to share what it already read."""
+    from inspections.services import chain
+
     if assembly.state in CLOSED_STATES:
         return [f"The assembly is already {assembly.get_state_display().lower()}."]
-    welds = list(welds if welds is not None else assembly.welds.order_by("mark"))
+    welds = list(welds) if welds is not None else None
+    if welds is None:
+        welds = chain.assembly_welds(assembly)
     if not welds:
         return ["The weld map is empty: add the welds before release."]
-    statuses = statuses if statuses is not None else weld_statuses(w.pk for w in welds)
-    reasons = []
-    for weld in welds:
-        status = statuses[weld.pk]
-        for ncr in status.open_ncrs:
-            step = "awaiting disposition" if ncr.state == NCRState.OPEN else "repair awaiting re-inspection"
-            reasons.append(f"Weld {weld.mark}: {ncr} is open ({step}).")
-        if status.open_ncrs:
-            continue
-        if status.final is None:
-            reasons.append(f"Weld {weld.mark} has no final visual inspection.")
-        elif not status.released_ok:
-            reasons.append(f"Weld {weld.mark}: its current final inspection rejected it.")
-    return reasons
+    if chains is None:
+        chains = chain.check_assembly(assembly, welds=welds, statuses=statuses)
+    return chain.blockers_of(chains)
 
 
 def submit_for_inspection(assembly, user, reason=""):

@@ -1,7 +1,8 @@
 """NCR steps: opened from a rejected inspection, dispositioned by the QA lead, closed.
 
 open -> dispositioned (repair: to an approved WPS, by a welder qualified for the weld)
-dispositioned -> closed (an accepted final re-inspection of the weld: close_ncrs_for)
+dispositioned: the repair is recorded as welded (inspections.services.repairs.record_repair: who, which WPS, when)
+dispositioned -> closed (an accepted final re-inspection of the weld after the repair: close_ncrs_for)
 open -> closed (use-as-is: an engineer's name and date, with the as-inspected capacity attached; or scrap)
 Every step goes through core.transitions.transition (lock, check, save, history) and recomputes the assembly's
 state.
@@ -20,7 +21,7 @@ from core.transitions import transition
 from inspections.models import NCR, InspectionStage
 from inspections.models.ncr import Disposition, NCRState
 from inspections.services import assemblies as assembly_steps
-from inspections.services import capacity
+from inspections.services import capacity, chain
 from inspections.services.numbering import next_in_job
 from procedures.models.wps import WPSState
 
@@ -75,6 +76,10 @@ def repair_problems(ncr, wps, welder, on=None) -> dict[str, list[str]]:
         problems["repair_wps"] = ["Name the WPS the repair is welded to."]
     elif wps.state != WPSState.APPROVED:
         problems["repair_wps"] = [f"{wps} is {wps.get_state_display().lower()}: a repair is welded to an approved WPS."]
+    else:  # it must cover the weld too (the same check as the weld map's: inspections.services.chain)
+        errors = chain.wps_check(ncr.weld, wps, ncr.weld.assembly.job, on or timezone.localdate()).errors
+        if errors:
+            problems["repair_wps"] = errors
     if welder is None:
         problems["repair_welder"] = ["Name the welder who makes the repair."]
     else:
@@ -161,15 +166,19 @@ def disposition_scrap(ncr, user, notes):
 
 
 def close_ncrs_for(inspection) -> list:
-    """After an accepted final inspection: close the weld's NCRs dispositioned for repair. Returns those closed.
+    """After an accepted final inspection: close the weld's NCRs dispositioned for repair whose repair is recorded
+    as welded on or before the day of this inspection (inspections.services.repairs.record_repair). Returns those
+    closed.
 
-    Called by the inspection flow once the inspection is saved; an NCR still awaiting disposition stays open.
+    Called by the inspection flow once the inspection is saved; an NCR still awaiting disposition, or whose repair
+    is not recorded yet, stays open: an inspection before the repair is not an inspection of the repair.
     """
     if not inspection.accepted or inspection.stage != InspectionStage.FINAL:
         return []
     waiting = list(NCR.objects.filter(weld_id=inspection.weld_id, state=NCRState.DISPOSITIONED,
                                       disposition=Disposition.REPAIR,
-                                      inspection__inspected_at__lte=inspection.inspected_at)
+                                      inspection__inspected_at__lte=inspection.inspected_at,
+                                      repair__welded_on__lte=timezone.localdate(inspection.inspected_at))
                    .exclude(inspection=inspection))
     closed = [transition(ncr, user=inspection.inspector, allowed_from={NCRState.DISPOSITIONED}, to=NCRState.CLOSED,
                          reason=f"Repair accepted by re-inspection #{inspection.pk}",

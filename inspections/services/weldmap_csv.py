@@ -1,6 +1,7 @@
 """Weld maps in and out as CSV, in the shape a detailer exports.
 
-Import is two steps: read_weld_map() gives a preview with one error per bad row and changes nothing;
+Import is two steps: read_weld_map() gives a preview with one error per bad row and changes nothing (a row whose
+WPS is not approved today or does not cover the weld is a bad row: inspections.services.chain.wps_check);
 import_weld_map() writes every row or none, in one transaction, after reading the file again. Each row is
 checked by the same form as the weld page (WeldSpecForm), so a rule lives once. Export writes the same columns,
 lengths in the job's system as text that reads back exactly, and defuses cells a spreadsheet would run as a
@@ -12,22 +13,26 @@ import io
 from dataclasses import dataclass, field
 
 from django.db import IntegrityError, transaction
+from django.utils import timezone
 
 from core.errors import Refused
 from core.fields import LengthFormField
+from core.vocabulary import WELD_PROCESS_CHOICES
 from inspections.forms.jobs import WeldSpecForm
 from inspections.models import Assembly, Weld
+from inspections.services import chain
 from procedures.models import WPS
 from procedures.models.wps import WPSState
 
 COLUMNS = ["piece_mark", "weld_mark", "joint", "size", "size2", "length", "count", "sides", "thickness1",
-           "thickness2", "position", "wps_number"]
+           "thickness2", "position", "wps_number", "process"]
 REQUIRED = {"piece_mark", "weld_mark", "size", "length", "thickness1", "thickness2"}
 # CSV column -> WeldSpecForm field
 FORM_FIELD = {"weld_mark": "mark", "joint": "joint_type", "size": "size", "size2": "size2", "length": "length",
               "count": "count", "sides": "sides", "thickness1": "thickness1", "thickness2": "thickness2",
               "position": "position"}
 DEFAULTS = {"joint": "fillet", "count": "1", "sides": "arrow", "position": "F"}
+PROCESSES = {value.upper(): value for value, _ in WELD_PROCESS_CHOICES}
 MAX_BYTES = 1024 * 1024
 MAX_ROWS = 5000
 MAX_CELL = 200
@@ -42,6 +47,7 @@ class Row:
     assembly: Assembly | None = None
     wps: WPS | None = None
     cleaned: dict | None = None
+    process: str = ""
 
 
 @dataclass
@@ -175,11 +181,21 @@ def read_weld_map(data: bytes, job) -> Preview:
             row.wps = _resolve_wps(values["wps_number"], wps_cache)
             if row.wps is None:
                 row.errors.append(f"wps_number: no WPS {values['wps_number']} in use.")
+        if values["process"]:
+            row.process = PROCESSES.get(values["process"].strip().upper(), "")
+            if not row.process:
+                row.errors.append(f"process: {values['process']} is not one of {', '.join(PROCESSES.values())} "
+                                  "(leave it blank for the WPS's process).")
         form = WeldSpecForm(data={FORM_FIELD[k]: values[k] for k in FORM_FIELD}, assembly=row.assembly)
         # The form's own uniqueness check would ask the database per row; the sets above answered it.
         form.clean_mark = lambda form=form: form.cleaned_data["mark"].strip()
         if form.is_valid():
             row.cleaned = form.cleaned_data
+            if row.wps is not None:
+                # The same check as the weld form: approved now (the file has no weld dates) and covering the weld.
+                weld = Weld(assembly=row.assembly, process=row.process, **row.cleaned)
+                row.errors += [f"wps_number: {error}" for error in
+                               chain.wps_check(weld, row.wps, job, timezone.localdate()).errors]
         else:
             reverse = {v: k for k, v in FORM_FIELD.items()}
             for name, errors in form.errors.items():
@@ -194,7 +210,7 @@ def import_weld_map(data: bytes, job) -> list:
         if not preview.ok:
             problems = preview.file_errors + [f"Line {r.line}: {'; '.join(r.errors)}" for r in preview.bad_rows]
             raise Refused(problems or ["Nothing to import."], code="invalid")
-        welds = [Weld(assembly=row.assembly, wps=row.wps, **row.cleaned) for row in preview.rows]
+        welds = [Weld(assembly=row.assembly, wps=row.wps, process=row.process, **row.cleaned) for row in preview.rows]
         try:
             Weld.objects.bulk_create(welds)
         except IntegrityError:  # someone added the same mark meanwhile
@@ -221,5 +237,5 @@ def export_weld_map(job) -> str:
             weld.assembly.piece_mark, weld.mark, weld.joint_type, length.prepare_value(weld.size),
             length.prepare_value(weld.size2) if weld.size2 else "", length.prepare_value(weld.length), weld.count,
             weld.sides, length.prepare_value(weld.thickness1), length.prepare_value(weld.thickness2), weld.position,
-            weld.wps.number if weld.wps else "")])
+            weld.wps.number if weld.wps else "", weld.process)])
     return out.getvalue()

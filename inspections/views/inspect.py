@@ -20,6 +20,7 @@ from inspections.models import Assembly, Inspection, Photo, Weld
 from inspections.models.inspection import FLAG_OBSERVATIONS
 from inspections.services.assemblies import weld_statuses
 from inspections.services.capacity import capacity_cards
+from inspections.services.chain import wps_checks
 from inspections.services.inspect import judge, sign_inspection
 
 SEARCH_LIMIT = 30
@@ -48,11 +49,15 @@ def inspect_home(request):
 
 @require_safe
 def inspect_assembly(request, pk):
-    """One assembly's welds as cards (the URL a traveler's QR code carries). Four queries, whatever the welds."""
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    """One assembly's welds as cards (the URL a traveler's QR code carries). Five queries, whatever the welds.
+
+    A weld whose WPS was not approved on the weld date, or does not cover the weld, shows as blocked with why
+    (inspections.services.chain.wps_checks)."""
+    assembly = get_object_or_404(Assembly.objects.select_related("job__client_criteria"), pk=pk)
     welds = list(Weld.objects.filter(assembly=assembly).select_related("wps").order_by("mark"))
     statuses = weld_statuses([w.pk for w in welds])
-    cards = [(weld, statuses[weld.pk]) for weld in welds]
+    wps = wps_checks(welds, assembly.job)
+    cards = [(weld, statuses[weld.pk], wps[weld.pk].errors if weld.wps_id else []) for weld in welds]
     return render(request, "inspections/inspect_assembly.html", {
         "assembly": assembly, "job": assembly.job, "cards": cards, "system": assembly.job.unit_system,
         "may_record": can(request.user, "inspection.record"),

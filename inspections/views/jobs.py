@@ -27,7 +27,7 @@ from inspections.forms.jobs import (
 from inspections.models import Assembly, Job, Weld
 from inspections.models.ncr import NCRState
 from inspections.services import assemblies as steps
-from inspections.services import weldmap_csv
+from inspections.services import chain, weldmap_csv
 from inspections.services.capacity import capacity_cards
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
@@ -103,35 +103,38 @@ class WeldRow:
     thickness: str
     status: object
     welders: list
-    wps_approved: bool
+    wps_approved: bool  # the WPS was in force on the weld date and covers the weld (the chain's WPS link)
+    chain: object = None  # inspections.services.chain.WeldChain
 
 
 def _length(value, system):
     return format_length(value, system) if value is not None else ""
 
 
-def weld_rows(assembly, welds):
-    """The weld map as the page shows it: every weld with its status and welder checks, fixed queries."""
+def weld_rows(assembly, welds, chains=None):
+    """The weld map as the page shows it: every weld with its chain (status, WPS, welders), fixed queries."""
     system = assembly.job.unit_system
-    statuses = steps.weld_statuses([w.pk for w in welds])
-    checks = steps.welder_checks(welds)
+    chains = chains if chains is not None else chain.check_assembly(assembly, welds)
     rows = []
     for weld in welds:
+        link = chains[weld.pk]
         size = _length(weld.size, system) + (f" x {_length(weld.size2, system)}" if weld.size2 else "")
         thickness = f"{_length(weld.thickness1, system)} / {_length(weld.thickness2, system)}"
-        rows.append(WeldRow(weld, size, _length(weld.length, system), thickness, statuses[weld.pk],
-                            checks.get(weld.pk, []), bool(weld.wps and weld.wps.state == WPSState.APPROVED)))
+        welders = [steps.WelderCheck(c.welder, bool(c.allowed), tuple(c.reasons)) for c in link.welders.checks]
+        rows.append(WeldRow(weld, size, _length(weld.length, system), thickness, link.status, welders,
+                            link.wps.ok, link))
     return rows
 
 
 def _assembly_page(request, assembly, release_errors=None, status=200):
     welds = list(assembly.welds.select_related("wps").prefetch_related("welders").order_by("mark"))
-    rows = weld_rows(assembly, welds)
-    statuses = {row.weld.pk: row.status for row in rows}
-    blockers = steps.release_blockers(assembly, statuses=statuses, welds=welds)
+    chains = chain.check_assembly(assembly, welds)
+    rows = weld_rows(assembly, welds, chains)
+    blockers = steps.release_blockers(assembly, welds=welds, chains=chains)
     open_ncrs = [n for row in rows for n in row.status.open_ncrs]
     context = {
         "assembly": assembly, "job": assembly.job, "rows": rows, "blockers": blockers,
+        "blocker_count": len(blockers),
         "release_errors": release_errors, "open_ncrs": open_ncrs, "step_form": StepForm(),
         "history": list(history_of(assembly).reverse()[:20]),
         "can_submit": assembly.state == "in_fabrication" and can(request.user, "assembly.submit"),
@@ -238,8 +241,16 @@ def _check_context(assembly, weld, wps=None, welders=None, on=None):
     on = on or weld.welded_on or timezone.localdate()
     weld.wps = wps
     checks = [steps.check_welder(w, weld, on=on) for w in welders] if wps is not None else []
-    return {"wps": wps, "wps_approved": bool(wps and wps.state == WPSState.APPROVED), "checks": checks,
-            "welders": welders, "on": on}
+    wps_errors = []
+    if wps is not None:
+        complete = all(getattr(weld, name) is not None
+                       for name in ("joint_type", "position", "thickness1", "thickness2", "size"))
+        if complete:
+            wps_errors = chain.wps_check(weld, wps, assembly.job, on).errors
+        elif reason := wps.in_force_on(on):
+            wps_errors = [reason]
+    return {"wps": wps, "wps_approved": bool(wps and wps.state == WPSState.APPROVED), "wps_errors": wps_errors,
+            "checks": checks, "welders": welders, "on": on}
 
 
 @require_safe

@@ -10,10 +10,11 @@ from core.errors import Refused
 from core.history import history_of
 from core.roles import role_required
 from core.vocabulary import JointType
-from inspections.forms.jobs import RepairForm, ScrapForm, UseAsIsForm, add_step_errors
-from inspections.models import NCR
-from inspections.models.ncr import NCRState
+from inspections.forms.jobs import RepairForm, RepairRecordForm, ScrapForm, UseAsIsForm, add_step_errors
+from inspections.models import NCR, WeldRepair
+from inspections.models.ncr import Disposition, NCRState
 from inspections.services import ncr as ncr_steps
+from inspections.services import repairs as repair_steps
 from inspections.services.capacity import capacity_cards
 
 FORMS = {"repair": RepairForm, "use_as_is": UseAsIsForm, "scrap": ScrapForm}
@@ -31,9 +32,16 @@ def ncr_list(request):
     return render(request, "inspections/ncr_list.html", {"ncrs": ncrs, "show": show})
 
 
-def _ncr_page(request, ncr, forms=None, status=200):
+def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
     forms = forms or {}
+    repair = WeldRepair.objects.filter(ncr=ncr).select_related("wps", "recorded_by").prefetch_related(
+        "welders").first()
+    awaiting_repair = (ncr.state == NCRState.DISPOSITIONED and ncr.disposition == Disposition.REPAIR
+                       and repair is None)
     context = {
+        "repair": repair, "awaiting_repair": awaiting_repair,
+        "may_record_repair": repair_steps.may_record(request.user),
+        "repair_form": repair_form or (RepairRecordForm(ncr=ncr) if awaiting_repair else None),
         "ncr": ncr, "weld": ncr.weld, "assembly": ncr.weld.assembly, "job": ncr.weld.assembly.job,
         "history": list(history_of(ncr)),
         "capacities": capacity_cards(ncr=ncr) if ncr.weld.joint_type == JointType.FILLET else [],
@@ -52,6 +60,25 @@ def _get(pk):
 @require_safe
 def ncr_detail(request, pk):
     return _ncr_page(request, _get(pk))
+
+
+@role_required("weld.record", "job.manage")
+@require_POST
+def ncr_repair(request, pk):
+    """Record the NCR's repair as welded: who, to which WPS, when (checked like the original weld)."""
+    ncr = _get(pk)
+    form = RepairRecordForm(request.POST, ncr=ncr)
+    if form.is_valid():
+        data = form.cleaned_data
+        try:
+            repair_steps.record_repair(ncr, request.user, wps=data["wps"], welders=list(data["welders"]),
+                                       welded_on=data["welded_on"], notes=data["notes"])
+        except Refused as exc:
+            add_step_errors(form, exc)
+        else:
+            messages.success(request, f"{ncr}: repair recorded. A final re-inspection of the weld closes the NCR.")
+            return redirect(ncr)
+    return _ncr_page(request, _get(pk), status=400, repair_form=form)
 
 
 @role_required("ncr.disposition")

@@ -15,11 +15,11 @@ from django.utils import timezone
 
 from core import units
 from core.fields import LengthFormField, set_unit_system
-from core.vocabulary import JointType, Position, Process, UnitSystem
+from core.vocabulary import Backing, JointType, Position, Process, Progression, UnitSystem
 from procedures import qualification as engine
 from procedures.electrodes import decode
 from procedures.models.welders import Qualification, QualificationCode, Welder
-from procedures.models.wps import WPS
+from procedures.models.wps import WPS, Transfer
 
 REPORT_MAX_BYTES = settings.LEGWORK_REPORT_MAX_BYTES
 REPORT_KINDS = {".pdf": "PDF", ".png": "PNG", ".jpg": "JPEG", ".jpeg": "JPEG"}
@@ -61,8 +61,9 @@ class QualificationForm(forms.ModelForm):
 
     class Meta:
         model = Qualification
-        fields = ["code", "process", "joint", "test_position", "unit_system", "test_thickness", "electrode", "wps",
-                  "test_date", "result", "examiner", "report", "iso_revalidation"]
+        fields = ["code", "process", "transfer", "joint", "test_position", "progression", "backing", "unit_system",
+                  "test_thickness", "electrode", "wps", "test_date", "result", "examiner", "report",
+                  "iso_revalidation"]
         widgets = {"test_date": DateInput()}
         labels = {"joint": "Test weld", "report": "Test report (PDF or photo)"}
         help_texts = {
@@ -84,8 +85,9 @@ class QualificationForm(forms.ModelForm):
         self.helper = FormHelper()
         self.helper.form_tag = False
         self.helper.layout = Layout(
-            Fieldset("The test", Row(Column("code"), Column("process"), Column("joint")),
+            Fieldset("The test", Row(Column("code"), Column("process"), Column("transfer"), Column("joint")),
                      Row(Column("test_position"), Column("unit_system"), Column("test_thickness")),
+                     Row(Column("progression"), Column("backing")),
                      Row(Column("electrode"), Column("wps"))),
             Fieldset("The result", Row(Column(Field("test_date")), Column("result"), Column("examiner")),
                      Row(Column("report"), Column("iso_revalidation"))),
@@ -144,6 +146,10 @@ class QualificationForm(forms.ModelForm):
             self.add_error("wps", f"{wps} is a {wps.process} procedure; this test is {process}.")
         if code != QualificationCode.ISO:
             data["iso_revalidation"] = ""
+        if process and process != "GMAW":
+            data["transfer"] = ""  # a metal transfer mode is GMAW's (GMAW-S: GMAW, short-circuiting)
+        if data.get("backing") and joint != "groove":
+            data["backing"] = ""  # backing is recorded for groove (butt) tests
         if not self.errors:
             self._check_facts(data)
         return data
@@ -180,6 +186,8 @@ class QualificationForm(forms.ModelForm):
                 test_thickness=data["test_thickness"], test_date=data["test_date"],
                 passed=data["result"] == Qualification.Result.PASS, electrode=data["electrode"], code=data["code"],
                 iso_revalidation=data.get("iso_revalidation") or None, unit_system=data.get("unit_system") or None,
+                progression=data.get("progression") or None, backing=data.get("backing") or None,
+                transfer=data.get("transfer") or None,
             )
         except (KeyError, ValueError) as exc:
             raise ValidationError(str(exc), code="engine") from None
@@ -258,6 +266,12 @@ class WeldCheckForm(forms.Form):
     ], initial=Position.F)
     thickness = LengthFormField(label="Base metal thickness", help_text="e.g. 1/2, 12 mm")
     electrode = forms.CharField(max_length=40, required=False)
+    transfer = forms.ChoiceField(choices=[("", "Not stated"), *Transfer.choices], required=False,
+                                 label="GMAW transfer")
+    progression = forms.ChoiceField(choices=[("", "Not stated"), *Progression.choices], required=False,
+                                    label="Vertical progression")
+    backing = forms.ChoiceField(choices=[("", "Not stated"), *Backing.choices], required=False,
+                                label="Backing (groove)")
     on = forms.DateField(widget=DateInput(), label="On", required=False, help_text="Blank: today")
 
     def __init__(self, *args, **kwargs):
@@ -270,6 +284,8 @@ class WeldCheckForm(forms.Form):
             Row(Column("joint", css_class="col-6"), Column("position", css_class="col-6")),
             Row(Column("thickness", css_class="col-sm-4"), Column("electrode", css_class="col-sm-4"),
                 Column("on", css_class="col-sm-4")),
+            Row(Column("transfer", css_class="col-sm-4"), Column("progression", css_class="col-sm-4"),
+                Column("backing", css_class="col-sm-4")),
         )
 
     def clean(self):
@@ -279,7 +295,10 @@ class WeldCheckForm(forms.Form):
         try:
             data["demand"] = engine.WeldDemand(
                 process=data["process"], joint=data["joint"], position=data["position"],
-                thickness=data["thickness"], electrode=data.get("electrode") or None, code=data["code"])
+                thickness=data["thickness"], electrode=data.get("electrode") or None, code=data["code"],
+                transfer=(data.get("transfer") or None) if data["process"] == "GMAW" else None,
+                progression=data.get("progression") or None,
+                backing=(data.get("backing") or None) if data["joint"] == "groove" else None)
         except ValueError as exc:
             raise ValidationError(str(exc), code="engine") from None
         data["on"] = data.get("on") or timezone.localdate()

@@ -82,7 +82,7 @@ class WPSForm(forms.ModelForm):
             "amperage_min", "amperage_max", "voltage_min", "voltage_max", "wire_feed_min", "wire_feed_max",
             "travel_speed_min", "travel_speed_max", "ctwd_min", "ctwd_max", "work_angle", "travel_angle",
             "technique", "passes", "interpass_cleaning", "shielding_gas", "gas_flow_min", "gas_flow_max",
-            "positions", "joint_types", "base_metals", "thickness_min", "thickness_max",
+            "positions", "progression", "joint_types", "backing", "base_metals", "thickness_min", "thickness_max",
             "fillet_size_min", "fillet_size_max", "single_pass_size_max", "preheat_min", "interpass_max", "notes",
         ]
         widgets = {"notes": forms.Textarea(attrs={"rows": 3})}
@@ -139,6 +139,10 @@ class WPSForm(forms.ModelForm):
             self.add_error("transfer", ValidationError("Choose the transfer mode for GMAW.", code="required"))
         elif cleaned.get("process") and cleaned.get("process") != Process.GMAW:
             cleaned["transfer"] = ""
+        if cleaned.get("progression") and "V" not in (cleaned.get("positions") or ""):
+            cleaned["progression"] = ""  # a progression means something for vertical welds only
+        if cleaned.get("backing") and "groove" not in (cleaned.get("joint_types") or ""):
+            cleaned["backing"] = ""  # backing is a groove weld's
         return cleaned
 
 
@@ -162,7 +166,8 @@ def _wps_layout():
         Fieldset("Shielding", Row(Column("shielding_gas", css_class="col-md-6"),
                                   Column("gas_flow_min", css_class="col-md-3"),
                                   Column("gas_flow_max", css_class="col-md-3"))),
-        Fieldset("Joints and base metal", pair("positions", "joint_types"), "base_metals",
+        Fieldset("Joints and base metal", pair("positions", "joint_types"), pair("progression", "backing"),
+                 "base_metals",
                  pair("thickness_min", "thickness_max"),
                  pair("fillet_size_min", "fillet_size_max", "single_pass_size_max", size=4)),
         Fieldset("Temperatures", pair("preheat_min", "interpass_max")),
@@ -175,8 +180,9 @@ class PQRForm(forms.ModelForm):
     class Meta:
         model = PQR
         fields = [
-            "number", "code", "unit_system", "test_date", "process", "electrode", "electrode_diameter", "current",
-            "amperage", "voltage", "travel_speed", "position", "base_metal", "thickness", "shielding_gas",
+            "number", "code", "unit_system", "test_date", "process", "transfer", "electrode", "electrode_diameter",
+            "current", "amperage", "voltage", "travel_speed", "position", "joint", "base_metal", "thickness",
+            "shielding_gas",
             "preheat", "visual", "macroetch", "bends", "tensiles", "fillet_break", "laboratory", "notes",
         ]
         widgets = {"test_date": forms.DateInput(attrs={"type": "date"}), "notes": forms.Textarea(attrs={"rows": 3})}
@@ -196,8 +202,9 @@ class PQRForm(forms.ModelForm):
 
         helper.layout = Layout(
             Fieldset("Record", row("number", "code", "unit_system", "test_date")),
-            Fieldset("As welded on the coupon", row("process", "electrode", "electrode_diameter", "current"),
-                     row("amperage", "voltage", "travel_speed"), row("position", "base_metal", "thickness"),
+            Fieldset("As welded on the coupon", row("process", "transfer", "electrode", "electrode_diameter",
+                                                    "current"),
+                     row("amperage", "voltage", "travel_speed"), row("position", "joint", "base_metal", "thickness"),
                      row("shielding_gas", "preheat")),
             Fieldset("Test results", row("visual", "macroetch", "bends", "tensiles", "fillet_break"),
                      "laboratory", "notes"),
@@ -215,6 +222,15 @@ class PQRForm(forms.ModelForm):
 
     def clean_position(self):
         return self.cleaned_data["position"].strip().upper()
+
+    def clean(self):
+        cleaned = super().clean()
+        if cleaned.get("process") == Process.GMAW and not cleaned.get("transfer"):
+            self.add_error("transfer", ValidationError("Choose the transfer mode the coupon was welded with: a GMAW "
+                                                       "PQR qualifies only its own transfer.", code="required"))
+        elif cleaned.get("process") and cleaned.get("process") != Process.GMAW:
+            cleaned["transfer"] = ""
+        return cleaned
 
 
 class ReasonForm(forms.Form):

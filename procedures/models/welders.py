@@ -10,7 +10,8 @@ from django.urls import reverse
 from django.utils import timezone
 
 from core.fields import LengthField
-from core.vocabulary import JointType, Process, UnitSystem
+from core.vocabulary import Backing, JointType, Process, Progression, UnitSystem
+from procedures.models.wps import Transfer
 
 
 class Welder(models.Model):
@@ -54,6 +55,14 @@ class Qualification(models.Model):
         help_text="AWS D1.1M SI figures apply to a test recorded in millimetres",
     )
     electrode = models.CharField("electrode classification", max_length=40)
+    # Essential variables beyond position and thickness (AWS D1.1:2020 Table 6.12, ISO 9606-1; from memory).
+    # Blank: not recorded on the test record, so not checked (and the check says so).
+    transfer = models.CharField("transfer mode (GMAW)", max_length=16, choices=Transfer.choices, blank=True,
+                                help_text="GMAW only: short-circuiting (GMAW-S) qualifies apart from the others")
+    progression = models.CharField("vertical progression", max_length=4, choices=Progression.choices, blank=True,
+                                   help_text="For a test in a vertical position (3G, 3F, PF, PG)")
+    backing = models.CharField("backing", max_length=12, choices=Backing.choices, blank=True,
+                               help_text="For a groove (butt) test")
     wps = models.ForeignKey("procedures.WPS", null=True, blank=True, on_delete=models.PROTECT, related_name="+",
                             verbose_name="WPS used")
     test_date = models.DateField()
@@ -81,6 +90,7 @@ class ContinuityEntry(models.Model):
 
     class Source(models.TextChoices):
         PRODUCTION = "production", "Production weld in Legwork"
+        REPAIR = "repair", "Repair weld in Legwork"
         MANUAL = "manual", "Entered by hand"
 
     welder = models.ForeignKey(Welder, on_delete=models.PROTECT, related_name="continuity")
@@ -89,6 +99,8 @@ class ContinuityEntry(models.Model):
     source = models.CharField(max_length=12, choices=Source.choices)
     weld = models.ForeignKey("inspections.Weld", null=True, blank=True, on_delete=models.PROTECT,
                              related_name="continuity_entries")
+    repair = models.ForeignKey("inspections.WeldRepair", null=True, blank=True, on_delete=models.PROTECT,
+                               related_name="continuity_entries")
     note = models.CharField(max_length=200, blank=True)
     entered_by = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, blank=True, on_delete=models.PROTECT,
                                    related_name="+")
@@ -100,8 +112,11 @@ class ContinuityEntry(models.Model):
         constraints = [
             models.UniqueConstraint(fields=["welder", "weld", "process"], condition=models.Q(weld__isnull=False),
                                     name="one_continuity_entry_per_weld_and_process"),
-            models.CheckConstraint(condition=models.Q(source="production", weld__isnull=False)
-                                   | models.Q(source="manual", weld__isnull=True),
+            models.UniqueConstraint(fields=["welder", "repair", "process"], condition=models.Q(repair__isnull=False),
+                                    name="one_continuity_entry_per_repair_and_process"),
+            models.CheckConstraint(condition=models.Q(source="production", weld__isnull=False, repair__isnull=True)
+                                   | models.Q(source="repair", weld__isnull=True, repair__isnull=False)
+                                   | models.Q(source="manual", weld__isnull=True, repair__isnull=True),
                                    name="continuity_source_matches_weld"),
         ]
 

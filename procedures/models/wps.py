@@ -13,9 +13,9 @@ from django.utils import timezone
 from core import units
 from core.errors import RecordLocked
 from core.fields import FlowField, LengthField, SpeedField, TemperatureField
-from core.vocabulary import Current, Process, UnitSystem, split_codes
+from core.vocabulary import Backing, Current, JointType, Process, Progression, UnitSystem, split_codes
 from procedures import heat_input as heat_input_engine
-from procedures import prequalified
+from procedures import prequalified, support
 
 
 class Transfer(models.TextChoices):
@@ -67,6 +67,7 @@ class PQR(models.Model):
     unit_system = models.CharField(max_length=2, choices=UnitSystem.choices, default=UnitSystem.US)
     test_date = models.DateField()
     process = models.CharField(max_length=8, choices=Process.choices)
+    transfer = models.CharField("transfer mode (GMAW)", max_length=16, choices=Transfer.choices, blank=True)
     electrode = models.CharField("electrode classification", max_length=40)
     electrode_diameter = LengthField(null=True, blank=True)
     current = models.CharField(max_length=4, choices=Current.choices)
@@ -80,6 +81,8 @@ class PQR(models.Model):
         help_text="Computed from voltage, current and travel speed",
     )
     position = models.CharField("test position", max_length=10)
+    joint = models.CharField("test weld", max_length=8, choices=JointType.choices, blank=True,
+                             help_text="Blank: read from the test position (1F-4F, PB, PD fillet; the rest groove)")
     base_metal = models.CharField(max_length=80)
     thickness = LengthField("coupon thickness")
     shielding_gas = models.CharField(max_length=60, blank=True)
@@ -134,6 +137,34 @@ class PQR(models.Model):
         except ValueError:
             return None  # the form refuses such readings beside their fields; a stray one shows no figure
 
+    @property
+    def test_joint(self) -> str:
+        """The test weld: as recorded, else read from the position (1F-4F, PB and PD are fillet tests)."""
+        if self.joint:
+            return self.joint
+        parts = [p for p in (self.position or "").upper().replace(" ", "").split("+") if p]
+        return "fillet" if parts and all(p.endswith("F") or p in ("PB", "PD") for p in parts) else "groove"
+
+    def support_input(self) -> dict:
+        """The dict procedures.support reads for this PQR; a value not recorded is None, and the engine names it."""
+        system = self.unit_system
+        return {
+            "number": self.number,
+            "process": self.process or None,
+            "transfer": (self.transfer or None) if self.process == Process.GMAW else None,
+            "electrode": self.electrode or None,
+            "current": self.current or None,
+            "position": self.position or None,
+            "joint": self.test_joint,
+            "test_thickness": _length_text(self.thickness, system),
+            "amperage": self.amperage,
+            "voltage": self.voltage,
+            "travel_speed": _speed_text(self.travel_speed, system),
+            "shielding_gas": self.shielding_gas or None,
+            "preheat": _temperature_text(self.preheat, system),
+            "base_metals": split_codes(self.base_metal) or None,
+        }
+
     def save(self, *args, **kwargs):
         # Never typed: always the engine's figure from what was recorded, so it cannot disagree with them.
         computed = self.compute_heat_input()
@@ -185,6 +216,9 @@ class WPS(models.Model):
     gas_flow_min = FlowField(null=True, blank=True)
     gas_flow_max = FlowField(null=True, blank=True)
     positions = models.CharField(max_length=20, help_text="Comma-separated: F, H, V, OH")
+    progression = models.CharField("vertical progression", max_length=4, choices=Progression.choices, blank=True,
+                                   help_text="For vertical welds; blank when the WPS has no vertical position")
+    backing = models.CharField("backing (groove welds)", max_length=12, choices=Backing.choices, blank=True)
     joint_types = models.CharField(max_length=20, default="fillet", help_text="Comma-separated: fillet, groove")
     base_metals = models.CharField(max_length=200, help_text="Comma-separated, e.g. ASTM A992, ASTM A572 Gr 50")
     thickness_min = LengthField("base metal thickness min")
@@ -211,6 +245,7 @@ class WPS(models.Model):
         settings.AUTH_USER_MODEL, null=True, blank=True, on_delete=models.PROTECT, related_name="+", editable=False
     )
     approved_at = models.DateTimeField(null=True, blank=True, editable=False)
+    withdrawn_at = models.DateTimeField(null=True, blank=True, editable=False)
 
     objects = WPSQuerySet.as_manager()
 
@@ -263,9 +298,7 @@ class WPS(models.Model):
     # --- review: the engines judge, the record only maps itself to their input ------------------------
 
     def _temperature_text(self, temp):
-        if temp is None:
-            return None
-        return f"{units._plain(temp.f)} F" if self.unit_system == UnitSystem.US else f"{units._plain(temp.c)} C"
+        return _temperature_text(temp, self.unit_system)
 
     def review_input(self, joint=None):
         """The dict procedures.prequalified.review() reads; a value the WPS does not give is left out.
@@ -351,7 +384,94 @@ class WPS(models.Model):
                     system=self.unit_system))
             except ValueError as exc:
                 found.append(prequalified.Finding("unreadable", "error", str(exc), "Legwork review", "heat_input"))
+        found.extend(self.support_findings(pqrs))
         return found
+
+    def support_input(self, joint=None):
+        """The dict procedures.support.review() reads: the review dict with (low, high) pairs and the gas."""
+        values = self.review_input(joint)
+        for key in ("wire_feed_speed_min", "wire_feed_speed_max"):
+            values.pop(key, None)
+        for key in ("amperage", "voltage", "travel_speed"):
+            low, high = values.pop(f"{key}_min", None), values.pop(f"{key}_max", None)
+            if low is not None and high is not None:
+                values[key] = (low, high)
+        if "travel_speed" in values:
+            values["travel_speed"] = tuple(_speed_text(v, self.unit_system) for v in values["travel_speed"])
+        values["shielding_gas"] = self.shielding_gas or None
+        return values
+
+    def support_code(self):
+        """The procedures.support code for this WPS's standard (None: the engine has no rules for it)."""
+        return SUPPORT_CODES.get(self.code)
+
+    def _support_rows(self, pqrs, answer):
+        """answer(wps dict, pqr dicts, code) per joint type; (results, error message or '')."""
+        code = self.support_code()
+        if code is None:
+            return [], f"Legwork holds no PQR support rules for {self.code}: check the PQRs against that standard."
+        pqr_input = [pqr.support_input() for pqr in pqrs]
+        results = []
+        try:
+            for joint in self.joint_type_list or [None]:
+                results.append((joint, answer(self.support_input(joint), pqr_input, code)))
+        except ValueError as exc:
+            return [], str(exc)
+        return results, ""
+
+    def support_findings(self, pqrs):
+        """procedures.support.review of this WPS against these PQRs (each joint type), as findings."""
+        results, error = self._support_rows(pqrs, support.review)
+        if error:
+            severity = "error" if self.support_code() else "warning"
+            return [prequalified.Finding("support_unreadable", severity, f"PQR support cannot be checked: {error}",
+                                         support.SOURCE_NO_PQR, "pqrs")]
+        return [finding for _, found in results for finding in found]
+
+    def support_envelope(self, pqrs=None):
+        """(rows per joint type as [(joint, [EnvelopeRow])], error text) for the page's envelope table."""
+        if self.basis != Basis.QUALIFIED_BY_TEST:
+            return [], ""
+        pqrs = list(self.pqrs.all()) if pqrs is None else pqrs
+        if not pqrs:
+            return [], "No supporting PQR is linked."
+        return self._support_rows(pqrs, support.envelope)
+
+    def in_force_on(self, day):
+        """None when this revision was approved on `day` (approved that day or before) and was neither withdrawn nor
+        superseded before it; otherwise why not, in words. Reads superseded_by: select_related it on lists."""
+        if self.approved_at is None or self.state in (WPSState.DRAFT, WPSState.SUBMITTED):
+            return f"{self} is {self.get_state_display().lower()}: it was never approved."
+        approved = timezone.localdate(self.approved_at)
+        if approved > day:
+            return f"{self} was approved on {approved.isoformat()}, after the weld date {day.isoformat()}."
+        if self.state == WPSState.WITHDRAWN:
+            if self.withdrawn_at is None:
+                return f"{self} is withdrawn (the date is not recorded)."
+            withdrawn = timezone.localdate(self.withdrawn_at)
+            if withdrawn < day:
+                return f"{self} was withdrawn on {withdrawn.isoformat()}, before the weld date {day.isoformat()}."
+        try:
+            successor = self.superseded_by
+        except WPS.DoesNotExist:
+            successor = None
+        if successor is not None and successor.approved_at is not None:
+            superseded = timezone.localdate(successor.approved_at)
+            if superseded < day:
+                return (f"{self} was superseded by revision {successor.revision} on {superseded.isoformat()}, before "
+                        f"the weld date {day.isoformat()}.")
+        return None
+
+    def applicability_input(self):
+        """The dict procedures.applicability.review() reads for this WPS."""
+        return {
+            "label": str(self), "code": self.code, "unit_system": self.unit_system, "process": self.process,
+            "transfer": (self.transfer or None) if self.process == Process.GMAW else None,
+            "positions": self.position_list, "progression": self.progression or None,
+            "joint_types": self.joint_type_list, "thickness_min": self.thickness_min,
+            "thickness_max": self.thickness_max, "fillet_size_min": self.fillet_size_min,
+            "fillet_size_max": self.fillet_size_max,
+        }
 
     def approval_blockers(self, findings=None):
         """Why this WPS cannot be approved as it stands (empty: it can, state and role aside)."""
@@ -364,6 +484,23 @@ class WPS(models.Model):
 
 
 SOURCE_QUALIFIED_BY_TEST = "AWS D1.1/D1.1M:2020 clause 6: a WPS that is not prequalified is qualified by a PQR test"
+# The procedure standard a WPS names -> the code procedures.support judges its PQRs by.
+SUPPORT_CODES = {"AWS D1.1:2020": support.AWS, "ISO 15609-1:2019": support.ISO}
+
+
+def _temperature_text(temp, system):
+    """A temperature as text the engines read back, in the record's system ('50 F', '10 C')."""
+    if temp is None:
+        return None
+    return f"{units._plain(temp.f)} F" if system == UnitSystem.US else f"{units._plain(temp.c)} C"
+
+
+def _speed_text(speed, system):
+    """A travel speed for procedures.support: exact mm/min text on an SI record (so its messages speak mm/min),
+    the Speed itself on a US record (in/min is not exact in text; the engine speaks in/min by default)."""
+    if speed is None or system != UnitSystem.SI:
+        return speed
+    return f"{units._plain(speed.mm_per_min)} mm/min"
 
 
 def _length_text(length, system):

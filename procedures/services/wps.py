@@ -64,7 +64,7 @@ def withdraw(wps, user, reason):
     """Approved -> withdrawn, with a reason: no longer to be used, and no revision replaces it."""
     reason = required_reason(reason, "withdrawing it")
     return transition(wps, user=user, permission="procedure.withdraw", allowed_from={WPSState.APPROVED},
-                      to=WPSState.WITHDRAWN, reason=reason)
+                      to=WPSState.WITHDRAWN, reason=reason, withdrawn_at=timezone.now())
 
 
 def new_revision(wps, user, reason=""):
@@ -87,7 +87,7 @@ def new_revision(wps, user, reason=""):
         copy.supersedes = locked
         copy.created_by = user
         copy.created_at = timezone.now()
-        copy.approved_by = copy.approved_at = None
+        copy.approved_by = copy.approved_at = copy.withdrawn_at = None
         copy.save()
         copy.pqrs.set(locked.pqrs.all())
         drafted(copy, user, reason or f"Revision {copy.revision}, from revision {locked.revision}")

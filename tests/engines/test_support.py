@@ -303,6 +303,11 @@ def test_gas_spellings():
     assert parse_gas(None) is None and parse_gas("  ") is None
 
 
+def test_a_designation_with_its_description_in_brackets_is_read_by_the_designation():
+    assert parse_gas("M21 (Ar + 18% CO2)") == parse_gas("M21") != parse_gas("M20 (Ar + 10% CO2)")
+    assert parse_gas("90Ar/10CO2 (C10)") == parse_gas("90Ar/10CO2")
+
+
 @pytest.mark.parametrize("bad", ["90Ar/??", "/", 90, ["Ar"]])
 def test_gas_that_cannot_be_read_is_refused(bad):
     with pytest.raises(ValueError, match="shielding gas"):

@@ -1,0 +1,278 @@
+"""Each weld's proof chain, link by link: the one place release, the assembly page and the traveler ask.
+
+For every weld of an assembly (and each recorded repair of it), on the day it was welded:
+1. WPS: named; approved on that day and neither withdrawn nor superseded before it (WPS.in_force_on); covering the
+   weld (procedures.applicability: the job's code and units, process, joint, position and progression, thickness
+   of both parts, fillet size).
+2. Welders: recorded; each qualified and in continuity on that day for the weld made to that WPS
+   (procedures.eligibility, which asks procedures.qualification).
+3. Inspection: an accepted current final visual (or an NCR closed as use-as-is), no NCR open
+   (services.assemblies.weld_statuses); an NCR for repair closes only on a re-inspection after the repair.
+4. Hold point: where the job requires it, an accepted current fit-up inspection.
+
+check_assembly() answers all of it in a fixed number of queries whatever the number of welds, repairs and welders
+(tests/test_chain_queries.py pins it). Each problem is a Blocker: the words, and the page where it is put right.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from datetime import date
+
+from django.urls import reverse
+from django.utils import timezone
+
+from inspections.models import Inspection, InspectionStage, Job, Weld, WeldRepair
+from inspections.models.ncr import NCRState
+from inspections.services.assemblies import WeldStatus, weld_statuses
+from procedures import applicability, eligibility
+from procedures.models.wps import WPS
+
+
+class Blocker(str):
+    """One reason release waits, in words (it is a str), with the page where it is put right (`url`, or '')."""
+
+    url: str
+
+    def __new__(cls, text: str, url: str = ""):
+        blocker = super().__new__(cls, text)
+        blocker.url = url
+        return blocker
+
+
+@dataclass
+class WpsCheck:
+    """The WPS link of one weld (or repair) on its day: errors mean it does not hold; notes are for reading."""
+
+    wps: WPS | None
+    errors: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return self.wps is not None and not self.errors
+
+
+@dataclass
+class RepairChain:
+    repair: WeldRepair
+    wps: WpsCheck
+    welders: eligibility.WeldCheck
+
+
+@dataclass
+class WeldChain:
+    weld: Weld
+    day: date | None  # the weld date; None when not recorded
+    wps: WpsCheck
+    welders: eligibility.WeldCheck  # judged on the weld date (today for an undated weld, shown but not relied on)
+    status: WeldStatus
+    repairs: list[RepairChain] = field(default_factory=list)
+    fit_up: Inspection | None = None
+    fit_up_required: bool = False
+    blockers: list[Blocker] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return not self.blockers
+
+
+# --- the WPS link -----------------------------------------------------------------------------------------------
+
+def prime_successors(wps_list) -> None:
+    """Load the next revision of every WPS (WPS.superseded_by) in one query, unless already cached."""
+    wanted = [w for w in wps_list if w is not None and not WPS.superseded_by.is_cached(w)]
+    if not wanted:
+        return
+    found = {s.supersedes_id: s for s in WPS.objects.filter(supersedes_id__in={w.pk for w in wanted})
+             .only("pk", "number", "revision", "state", "approved_at", "supersedes_id")}
+    for wps in wanted:  # each weld row has its own WPS instance, even for the same WPS
+        WPS.superseded_by.related.set_cached_value(wps, found.get(wps.pk))
+
+
+def wps_check(weld, wps, job, day, label=None) -> WpsCheck:
+    """Is `wps` in force on `day` and does it cover the weld on this job? (No query when the WPS's next revision is
+    loaded: _prime_successors.)"""
+    if wps is None:
+        return WpsCheck(None, ["no WPS is named"])
+    check = WpsCheck(wps)
+    reason = wps.in_force_on(day)
+    if reason:
+        check.errors.append(reason)
+    try:
+        findings = applicability.review(wps.applicability_input(), weld.applicability_input(label),
+                                        job.applicability_input())
+    except ValueError as exc:
+        check.errors.append(f"{wps} cannot be compared with the weld: {exc}")
+        return check
+    for finding in findings:
+        (check.errors if finding.severity == "error" else check.notes).append(f"{finding.message} ({finding.source})")
+    return check
+
+
+def wps_checks(welds, job, on=None) -> dict[int, WpsCheck]:
+    """The WPS link of each weld (the tablet's cards): on the weld date, else `on`, else today. One query at most."""
+    welds = list(welds)
+    prime_successors([w.wps for w in welds])
+    today = on or timezone.localdate()
+    return {w.pk: wps_check(w, w.wps, job, w.welded_on or today) for w in welds}
+
+
+# --- the whole chain --------------------------------------------------------------------------------------------
+
+def _job(assembly) -> Job:
+    if type(assembly).job.is_cached(assembly):
+        job = assembly.job
+        if not job.client_criteria_id or Job.client_criteria.is_cached(job):
+            return job
+    job = Job.objects.select_related("client_criteria").get(pk=assembly.job_id)
+    assembly.job = job
+    return job
+
+
+def assembly_welds(assembly):
+    """The weld map as the chain reads it: WPS joined, welders prefetched, by mark (two queries)."""
+    return list(Weld.objects.filter(assembly_id=assembly.pk).select_related("wps").prefetch_related("welders")
+                .order_by("mark"))
+
+
+def repaired_weld(weld, wps, welded_on):
+    """The weld as a repair made it: the same joint, to the repair's WPS, on the repair's day (never saved)."""
+    return Weld(pk=weld.pk, assembly_id=weld.assembly_id, mark=weld.mark, joint_type=weld.joint_type,
+                size=weld.size, size2=weld.size2, length=weld.length, thickness1=weld.thickness1,
+                thickness2=weld.thickness2, position=weld.position, process=weld.process, wps=wps,
+                welded_on=welded_on)
+
+
+def check_assembly(assembly, welds=None, statuses=None) -> dict[int, WeldChain]:
+    """Every weld's chain, {weld.pk: WeldChain} in weld mark order. Pass the page's welds (select_related('wps'),
+    prefetch_related('welders')) and statuses to share them; the query count stays fixed either way."""
+    job = _job(assembly)
+    welds = assembly_welds(assembly) if welds is None else list(welds)
+    ids = [w.pk for w in welds]
+    statuses = statuses if statuses is not None else weld_statuses(ids)
+    repairs = {}
+    if ids:
+        for repair in (WeldRepair.objects.filter(weld_id__in=ids).select_related("wps", "ncr")
+                       .prefetch_related("welders").order_by("welded_on", "pk")):
+            repairs.setdefault(repair.weld_id, []).append(repair)
+    prime_successors([w.wps for w in welds] + [r.wps for rs in repairs.values() for r in rs])
+    today = timezone.localdate()
+    works = [eligibility.Work(("weld", w.pk), w, tuple(w.welders.all()), w.welded_on or today) for w in welds]
+    by_weld = {w.pk: w for w in welds}
+    for weld_id, items in repairs.items():
+        works += [eligibility.Work(("repair", r.pk), repaired_weld(by_weld[weld_id], r.wps, r.welded_on),
+                                   tuple(r.welders.all()), r.welded_on) for r in items]
+    checks = eligibility.check_work(works) if works else {}
+    fit_ups = _fit_ups(ids) if job.fit_up_hold_point and ids else {}
+
+    chains = {}
+    for weld in welds:
+        day = weld.welded_on
+        chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
+                          statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point)
+        for repair in repairs.get(weld.pk, []):
+            label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
+            chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
+                                             checks[("repair", repair.pk)]))
+        chain.blockers = _blockers(chain)
+        chains[weld.pk] = chain
+    return chains
+
+
+def _fit_ups(ids) -> dict[int, Inspection]:
+    """The latest current fit-up inspection of each weld (one query)."""
+    latest = {}
+    for inspection in (Inspection.objects.current().filter(weld_id__in=ids, stage=InspectionStage.FIT_UP)
+                       .select_related("inspector").order_by("weld_id", "-inspected_at", "-pk")):
+        latest.setdefault(inspection.weld_id, inspection)
+    return latest
+
+
+# --- the blockers, in words with their pages ---------------------------------------------------------------------
+
+def _url(name, pk):
+    return reverse(name, args=[pk])
+
+
+def _wps_blockers(subject, check: WpsCheck, edit_url) -> list[Blocker]:
+    if check.wps is None:
+        return [Blocker(f"{subject}: no WPS is named.", edit_url)]
+    # The engine's messages name the weld ("Weld W1 part 2 is ..."), WPS.in_force_on's the WPS: say each once.
+    return [Blocker(error if error.startswith("Weld ") else f"{subject}: {error}", check.wps.get_absolute_url())
+            for error in check.errors]
+
+
+def _welder_blockers(subject, check: eligibility.WeldCheck, day, edit_url) -> list[Blocker]:
+    if not check.checks:
+        return [Blocker(f"{subject}: no welder is recorded.", edit_url)]
+    found = []
+    for one in check.checks:
+        if not one.allowed:
+            found.append(Blocker(f"{subject}: welder {one.welder.stamp} is not qualified and in continuity on "
+                                 f"{day.isoformat()}: {' '.join(one.reasons)}", one.welder.get_absolute_url()))
+    return found
+
+
+def _blockers(chain: WeldChain) -> list[Blocker]:
+    weld = chain.weld
+    subject = f"Weld {weld.mark}"
+    edit = _url("inspections:weld_edit", weld.pk)
+    found = []
+    if chain.day is None:
+        found.append(Blocker(f"{subject}: no weld date is recorded, so the WPS and the welders cannot be checked "
+                             "for the day it was welded.", edit))
+        if chain.wps.wps is None:
+            found.append(Blocker(f"{subject}: no WPS is named.", edit))
+        if not chain.welders.checks:
+            found.append(Blocker(f"{subject}: no welder is recorded.", edit))
+    elif chain.wps.wps is None:
+        # Without a WPS the welders cannot be judged (the process and electrode are the WPS's): one blocker.
+        found.append(Blocker(f"{subject}: no WPS is named.", edit))
+        if not chain.welders.checks:
+            found.append(Blocker(f"{subject}: no welder is recorded.", edit))
+    else:
+        found += _wps_blockers(subject, chain.wps, edit)
+        found += _welder_blockers(subject, chain.welders, chain.day, edit)
+    for item in chain.repairs:
+        repair = item.repair
+        about = f"{subject}, repair for {repair.ncr.number} ({repair.welded_on.isoformat()})"
+        found += _wps_blockers(about, item.wps, repair.ncr.get_absolute_url())
+        found += _welder_blockers(about, item.welders, repair.welded_on, repair.ncr.get_absolute_url())
+    found += _inspection_blockers(subject, chain)
+    if chain.fit_up_required:
+        fit_up = chain.fit_up
+        if fit_up is None:
+            found.append(Blocker(f"{subject}: the fit-up hold point is not signed (this job requires an accepted "
+                                 "fit-up inspection before welding).", _url("inspections:inspect_weld", weld.pk)))
+        elif not fit_up.accepted:
+            found.append(Blocker(f"{subject}: its current fit-up inspection rejected the fit-up.",
+                                 fit_up.get_absolute_url()))
+    return found
+
+
+def _inspection_blockers(subject, chain: WeldChain) -> list[Blocker]:
+    status = chain.status
+    found = []
+    repaired = {item.repair.ncr_id for item in chain.repairs}
+    for ncr in status.open_ncrs:
+        if ncr.state == NCRState.OPEN:
+            step = "awaiting disposition"
+        elif ncr.pk not in repaired:
+            step = "repair not recorded as welded yet"
+        else:
+            step = "repair awaiting re-inspection"
+        found.append(Blocker(f"{subject}: {ncr} is open ({step}).", ncr.get_absolute_url()))
+    if status.open_ncrs:
+        return found
+    inspect = _url("inspections:inspect_weld", chain.weld.pk)
+    if status.final is None:
+        found.append(Blocker(f"{subject} has no final visual inspection.", inspect))
+    elif not status.released_ok:
+        found.append(Blocker(f"{subject}: its current final inspection rejected it.", status.final.get_absolute_url()))
+    return found
+
+
+def blockers_of(chains) -> list[Blocker]:
+    """Every blocker of these chains, weld by weld in mark order."""
+    return [b for chain in chains.values() for b in chain.blockers]

@@ -1,0 +1,153 @@
+"""A repair is a weld too: recorded as welded (who, which WPS, when), checked like the original, on the history."""
+
+from datetime import timedelta
+
+import pytest
+from django.core.exceptions import PermissionDenied
+from django.urls import reverse
+from django.utils import timezone
+
+from core.errors import RecordLocked, Refused
+from core.history import history_of
+from inspections.models import NCR, WeldRepair
+from inspections.models.ncr import NCRState
+from inspections.services.ncr import disposition_repair, disposition_use_as_is
+from inspections.services.repairs import REPAIRED, record_repair
+from procedures.models import ContinuityEntry
+from procedures.models.wps import WPSState
+
+TODAY = timezone.localdate()
+
+
+@pytest.fixture
+def ncr(make, users):
+    """An NCR dispositioned for repair on a sound weld (approved WPS, qualified welder, welded today)."""
+    weld = make.make_sound_weld()
+    ncr = make.make_inspection(weld, accepted=False).ncrs.get()
+    disposition_repair(ncr, users["qa_lead"], weld.wps, weld.welders.get(), "Grind out and re-weld")
+    return NCR.objects.get(pk=ncr.pk)
+
+
+def test_the_repair_is_recorded_with_its_history_and_continuity(make, users, ncr):
+    welder = ncr.repair_welder
+    repair = record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[welder], welded_on=TODAY,
+                           notes="Ground 4 in and re-welded")
+    assert (repair.weld, repair.ncr, repair.wps, list(repair.welders.all()), repair.welded_on) == (
+        ncr.weld, ncr, ncr.repair_wps, [welder], TODAY)
+    assert history_of(repair).get().reason.startswith(f"Repair welded on {TODAY.isoformat()} by {welder.stamp}")
+    event = history_of(ncr).get(action=REPAIRED)
+    assert event.user == users["inspector"] and "Ground 4 in" in event.reason
+    entry = ContinuityEntry.objects.get(repair=repair)
+    assert (entry.welder, entry.process, entry.date, entry.source) == (welder, "FCAW", TODAY, "repair")
+    assert NCR.objects.get(pk=ncr.pk).state == NCRState.DISPOSITIONED  # a re-inspection closes it
+
+
+def test_another_qualified_welder_may_weld_it_and_the_history_says_so(make, users, ncr):
+    other = make.make_qualified_welder(stamp="B-77")
+    record_repair(ncr, users["welding_engineer"], wps=ncr.repair_wps, welders=[other], welded_on=TODAY)
+    assert f"the disposition named welder {ncr.repair_welder.stamp}" in history_of(ncr).get(action=REPAIRED).reason
+
+
+def test_the_repair_welder_is_checked_like_the_original(make, users, ncr):
+    untested = make.make_welder(stamp="B-78")
+    with pytest.raises(Refused) as refused:
+        record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[untested], welded_on=TODAY)
+    assert list(refused.value.message_dict) == ["welders"] and "B-78" in refused.value.message_dict["welders"][0]
+    assert not WeldRepair.objects.exists()
+
+
+def test_the_repair_wps_must_be_approved_on_the_repair_date_and_cover_the_weld(make, users, ncr):
+    for wps, words in [(make.make_wps(), "never approved"),
+                       (make.make_wps(state=WPSState.APPROVED, positions="OH"), "covers OH")]:
+        with pytest.raises(Refused) as refused:
+            record_repair(ncr, users["inspector"], wps=wps, welders=[ncr.repair_welder], welded_on=TODAY)
+        assert words in " ".join(refused.value.message_dict["wps"])
+    yesterday = TODAY - timedelta(days=1)
+    # the NCR was raised today: a repair cannot be older
+    with pytest.raises(Refused) as refused:
+        record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[ncr.repair_welder], welded_on=yesterday)
+    assert "cannot be welded before it" in refused.value.message_dict["welded_on"][0]
+    assert not WeldRepair.objects.exists()
+
+
+def test_a_repair_date_in_the_future_or_missing_is_refused(users, ncr):
+    for day, words in [(TODAY + timedelta(days=1), "future"), (None, "Give the date")]:
+        with pytest.raises(Refused) as refused:
+            record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[ncr.repair_welder], welded_on=day)
+        assert words in refused.value.message_dict["welded_on"][0]
+
+
+def test_only_an_ncr_dispositioned_for_repair_takes_a_repair_and_only_once(make, users, ncr):
+    record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[ncr.repair_welder], welded_on=TODAY)
+    with pytest.raises(Refused, match="already has its repair recorded"):
+        record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[ncr.repair_welder], welded_on=TODAY)
+    open_one = make.make_ncr()
+    with pytest.raises(Refused, match="dispositioned for repair"):
+        record_repair(open_one, users["inspector"], wps=ncr.repair_wps, welders=[ncr.repair_welder],
+                      welded_on=TODAY)
+    disposition_use_as_is(open_one, users["qa_lead"], "M. Ferreira, PE", TODAY)
+    with pytest.raises(Refused, match="dispositioned for repair"):
+        record_repair(open_one, users["inspector"], wps=ncr.repair_wps, welders=[ncr.repair_welder],
+                      welded_on=TODAY)
+
+
+def test_a_recorded_repair_is_never_edited(users, ncr):
+    repair = record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[ncr.repair_welder],
+                           welded_on=TODAY)
+    repair.notes = "changed"
+    with pytest.raises(RecordLocked):
+        repair.save()
+    with pytest.raises(RecordLocked):
+        repair.delete()
+
+
+@pytest.mark.parametrize("role", ["viewer", "qa_lead"])
+def test_roles_that_do_not_record_welding_may_not_record_a_repair(users, ncr, role):
+    if role == "qa_lead":  # the QA lead manages weld maps (job.manage), so may
+        record_repair(ncr, users[role], wps=ncr.repair_wps, welders=[ncr.repair_welder], welded_on=TODAY)
+        return
+    with pytest.raises(PermissionDenied):
+        record_repair(ncr, users[role], wps=ncr.repair_wps, welders=[ncr.repair_welder], welded_on=TODAY)
+
+
+# --- the page ---------------------------------------------------------------------------------------------------
+
+def test_the_ncr_page_records_the_repair_and_shows_it(client_as, ncr):
+    client = client_as("inspector")
+    page = client.get(ncr.get_absolute_url())
+    assert "Record the repair" in page.text
+    response = client.post(reverse("inspections:ncr_repair", args=[ncr.pk]), {
+        "wps": ncr.repair_wps_id, "welders": [ncr.repair_welder_id], "welded_on": TODAY.isoformat(),
+        "notes": "Re-welded the toe"})
+    assert response.status_code == 302
+    page = client.get(ncr.get_absolute_url())
+    assert "Repair as welded" in page.text and "Record the repair" not in page.text and "Re-welded the toe" in page.text
+    weld_page = client.get(ncr.weld.get_absolute_url())
+    assert ncr.number in weld_page.text and "Repairs" in weld_page.text
+
+
+def test_the_ncr_page_shows_a_refusal_beside_the_field(client_as, make, ncr):
+    untested = make.make_welder(stamp="B-79")
+    response = client_as("inspector").post(reverse("inspections:ncr_repair", args=[ncr.pk]), {
+        "wps": ncr.repair_wps_id, "welders": [untested.pk], "welded_on": TODAY.isoformat()})
+    assert response.status_code == 400 and "B-79" in " ".join(response.context["repair_form"].errors["welders"])
+    assert not WeldRepair.objects.exists()
+
+
+def test_a_viewer_sees_no_repair_form(client_as, ncr):
+    assert "Record the repair" not in client_as("viewer").get(ncr.get_absolute_url()).text
+
+
+def test_an_undated_or_nasty_post_saves_nothing(client_as, ncr):
+    client = client_as("inspector")
+    for data in [{}, {"wps": "x", "welders": ["-1"], "welded_on": "soon"}, {"wps": 999999, "welded_on": "2026-1-1"}]:
+        assert client.post(reverse("inspections:ncr_repair", args=[ncr.pk]), data).status_code == 400
+    assert not WeldRepair.objects.exists()
+
+
+def test_the_disposition_names_a_wps_that_covers_the_weld(make, users):
+    ncr = make.make_ncr(make.make_inspection(make.make_sound_weld(position="OH"), accepted=False))
+    flat = make.make_wps(state=WPSState.APPROVED, positions="F, H")
+    with pytest.raises(Refused) as refused:
+        disposition_repair(ncr, users["qa_lead"], flat, make.make_qualified_welder())
+    assert "position OH" in refused.value.message_dict["repair_wps"][0]

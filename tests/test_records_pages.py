@@ -4,6 +4,7 @@ import hashlib
 import io
 import json
 import zipfile
+from pathlib import Path
 
 import pytest
 from django.core.files.uploadedfile import SimpleUploadedFile
@@ -30,8 +31,6 @@ def _check(client, content, name="copy.pdf"):
 
 
 def _media_files(settings):
-    from pathlib import Path
-
     return sorted(p for p in Path(settings.MEDIA_ROOT).rglob("*") if p.is_file())
 
 
@@ -163,6 +162,16 @@ def test_a_job_export_holds_every_record_and_file_exactly(shop, client_as):
         record = next(r for r in table if r["id"] == content["id"])
         assert {k: record[k] for k in content["fields"]} == content["fields"]
     assert {e["subject_type"] for e in rows["core.event"]} >= {"inspections.ncr", "inspections.assembly"}
+    # The recipe in docs/export-format.md checks every seal from the export alone.
+    doc = (Path(__file__).resolve().parent.parent / "docs" / "export-format.md").read_text()
+    recipe = {}
+    exec(doc.split("```python\n")[1].split("```")[0], recipe)  # noqa: S102 - the documented code, as written
+    by_table = {name: {r["id"]: r for r in table} for name, table in rows.items()}
+    assert all(recipe["check"](seal, by_table) == {} for seal in exported_seals)
+    tamper_row = dict(row, min_size="1.0000000")
+    by_table["inspections.inspection"][inspection.pk] = tamper_row
+    seal = next(s for s in exported_seals if s["kind"] == "inspection.signed" and s["record_id"] == inspection.pk)
+    assert recipe["check"](seal, by_table) == {"min_size": (row["min_size"], "1.0000000")}
 
 
 def test_export_job_command_writes_the_zip_once(shop, tmp_path, capsys):
@@ -178,6 +187,7 @@ def test_export_job_command_writes_the_zip_once(shop, tmp_path, capsys):
 
 
 def test_only_the_qa_lead_sees_the_export_button(make, client_as):
+    """The job page's "Export all (zip)": the job's whole record."""
     job = make.make_job()
     url = reverse("inspections:job_export", args=[job.pk])
     assert url in client_as("qa_lead").get(job.get_absolute_url()).text

@@ -176,6 +176,20 @@ def test_a_record_is_sealed_once_per_signing_and_only_as_its_own_kind(make, shop
     assert seals.verify().ok
 
 
+def test_the_demo_shop_verifies(db, capsys):
+    call_command("load_demo")
+    report = seals.verify()
+    assert report.ok and report.seals > 10, [str(p) for p in report.problems]
+
+
+def test_the_admin_shows_seals_and_changes_none(make, shop, client):
+    client.force_login(make.make_user("qa_lead", is_staff=True, is_superuser=True))
+    seal = Seal.objects.first()
+    assert client.get("/admin/core/seal/").status_code == 200
+    assert client.post(f"/admin/core/seal/{seal.pk}/change/", {"kind": "x"}).status_code == 403
+    assert client.post(f"/admin/core/seal/{seal.pk}/delete/", {"post": "yes"}).status_code == 403
+
+
 def test_unsealed_fields_are_real_fields():
     from django.apps import apps
 

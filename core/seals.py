@@ -353,19 +353,29 @@ def verify(anchors: Iterable[tuple[int, str]] = (), chunk: int = 1000) -> Report
     report = Report()
     files = FileHashes()
     previous = None  # (sequence, chain hash) of the seal before
-    for batch in _batches(Seal.objects.order_by("sequence"), chunk):
+    # The head first: seals appended while this runs (the app is live) lie beyond it and are checked next time.
+    stored_head = SealHead.objects.filter(pk=1).values_list("sequence", "chain_sha256").first()
+    chain = Seal.objects.order_by("sequence")
+    if stored_head is not None:
+        chain = chain.filter(sequence__lte=max(stored_head[0], 0))
+    for batch in _batches(chain, chunk):
         fresh = _fresh_contents(batch, files)
         for seal in batch:
             report.seals += 1
             report.problems += _check_one(seal, previous, fresh.get(seal.pk))
             previous = (seal.sequence, seal.chain_sha256)
     report.head = previous
-    stored_head = SealHead.objects.filter(pk=1).values_list("sequence", "chain_sha256").first()
     last = previous or (0, GENESIS)
     if stored_head is not None and tuple(stored_head) != last:
         report.problems.append(Problem("chain head", "the chain head row",
                                        f"says #{stored_head[0]} {stored_head[1][:16]}…, the last seal is #{last[0]} "
                                        f"{last[1][:16]}… (seals removed from the end?)"))
+    head_now = SealHead.objects.filter(pk=1).values_list("sequence", flat=True).first()
+    stray = Seal.objects.filter(sequence__gt=head_now or 0).order_by("sequence").first()
+    if stray is not None:
+        report.problems.append(Problem("chain broken", describe(stray.kind, stray.record_id),
+                                       "a seal lies beyond the chain head (added around the chain lock)",
+                                       stray.sequence))
     report.problems += list(_unsealed())
     report.problems += list(_file_columns(files))
     for sequence, digest in anchors:

@@ -160,6 +160,13 @@ def test_seals_removed_from_the_end_leave_records_unsealed(shop):
     assert {p.reason for p in report.problems} == {"chain head", "not sealed"}
 
 
+def test_a_seal_added_beyond_the_head_is_named(shop):
+    last = seals.head()
+    tamper("UPDATE core_sealhead SET sequence = %s", [last.sequence - 1])
+    report = seals.verify()
+    assert any(p.reason == "chain broken" and p.sequence == last.sequence for p in report.problems)
+
+
 def test_a_record_signed_around_the_steps_is_reported_unsealed(make, shop):
     weld = shop["held"].welds.get(mark="W02")
     stray = Inspection.objects.create(weld=weld, inspector=make.make_user("inspector"), accepted=True, findings=[],

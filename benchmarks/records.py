@@ -5,12 +5,14 @@
 
 In a throwaway database (SQLite in a temporary folder, or a new PostgreSQL database that is dropped at the end)
 and media folder, it signs --inspections final inspections through sign_inspection (each sealed), half of them
-timed with sealing switched off for comparison, attaches --photos photos (sealed, each about 60 KB), then times
+timed with sealing switched off for comparison, attaches --photos photos (sealed; JPEG noise, a few hundred KB
+each with its thumbnail), then times
 `verify_records`, `backup`, `restore --check` and a restore into a second fresh target, with peak Python memory
 of the verification. Loopback only; everything it creates is removed.
 """
 
 import argparse
+import io
 import os
 import secrets
 import shutil
@@ -75,7 +77,7 @@ def run(args, folder: Path, database_url: str | None, restore_url: str | None):
     from core import seals
     from core.models import Seal
     from inspections.services.inspect import sign_inspection
-    from tests.factory import Factory, png_bytes
+    from tests.factory import Factory
 
     make = Factory()
     inspector = make.make_user("inspector")
@@ -92,12 +94,16 @@ def run(args, folder: Path, database_url: str | None, restore_url: str | None):
         sign_inspection(weld, observed, "final", inspector)
         timings[sealing].append(time.perf_counter() - started)
         seals.seal, seals.lock_chain = real_seal, real_lock
-    photo_bytes = png_bytes(size=(640, 480), color=(90, 120, 150), fmt="JPEG", quality=95)
     inspections = list(assembly.welds.values_list("latest_final", flat=True)[: args.photos])
+    from PIL import Image
+
     from inspections.models import Inspection
 
-    for pk in inspections:
-        make.make_photo(Inspection.objects.get(pk=pk), content=photo_bytes + secrets.token_bytes(60_000))
+    for pk in inspections:  # noise: it compresses as badly as a photo of a weld
+        noise = Image.frombytes("RGB", (480, 360), secrets.token_bytes(480 * 360 * 3))
+        content = io.BytesIO()
+        noise.save(content, "JPEG", quality=90)
+        make.make_photo(Inspection.objects.get(pk=pk), content=content.getvalue())
     # The unsealed half would be reported as not sealed: seal them now, as a backfill would.
     from django.db import transaction
 
@@ -108,8 +114,9 @@ def run(args, folder: Path, database_url: str | None, restore_url: str | None):
             seals.seal(inspection, "inspection.signed")
     count = Seal.objects.count()
 
+    media = sum(p.stat().st_size for p in (folder / "media").rglob("*") if p.is_file())
     print(f"database: {'PostgreSQL' if database_url else 'SQLite (WAL)'}; {args.inspections} inspections, "
-          f"{args.photos} photos, {count} seals")
+          f"{args.photos} photos, {count} seals, media {_mb(media)}")
     print(f"sign_inspection with its seal:    {_ms(timings[True])}")
     print(f"sign_inspection, chain switched off: {_ms(timings[False])}")
 

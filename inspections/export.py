@@ -107,7 +107,7 @@ def write_zip(job: Job, handle, exported_by=None) -> dict:
         tables.append(_write_table(archive, f"{root}/records/core.seal.json", "core.seal", sealed, files, user_ids))
         tables.append(_write_table(archive, f"{root}/records/core.user.json", "core.user",
                                    User.objects.filter(pk__in=user_ids), files, user_ids))
-        for name in sorted(n for n, digest in files.items()):
+        for name in sorted(files):
             if files[name] is None:
                 missing.append(name)
                 continue

@@ -10,6 +10,8 @@ cd "$(dirname "$0")"
 # Debian's headless Chromium through chromedriver.
 RUN_PACKAGES=(python3 python3-venv libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b fonts-dejavu-core)
 TEST_PACKAGES=(chromium chromium-driver)
+# On PostgreSQL, `manage.py backup` and `restore` run pg_dump and pg_restore (same major version as the server).
+POSTGRES_PACKAGES=(postgresql-client)
 
 say() { printf '\033[1m[legwork]\033[0m %s\n' "$*"; }
 
@@ -43,6 +45,7 @@ pick_python() {
 
 setup() {
   need_packages "${RUN_PACKAGES[@]}"
+  case "${DATABASE_URL:-}" in postgres*) need_packages "${POSTGRES_PACKAGES[@]}" ;; esac
   local python; python=$(pick_python)
   if [ ! -x .venv/bin/python ]; then
     say "Creating the virtualenv in .venv"

@@ -1,7 +1,7 @@
 from django.contrib import admin
 from django.contrib.auth.admin import UserAdmin
 
-from core.models import Event, User
+from core.models import Event, Seal, User
 
 
 @admin.register(User)
@@ -29,3 +29,12 @@ class EventAdmin(ReadOnlyAdmin):
     list_display = ["at", "subject_type", "subject_id", "action", "from_state", "to_state", "user"]
     list_filter = ["subject_type", "action"]
     list_select_related = ["subject_type", "user"]
+
+
+@admin.register(Seal)
+class SealAdmin(ReadOnlyAdmin):
+    """The record chain, read-only: `manage.py verify_records` checks it."""
+
+    list_display = ["sequence", "kind", "record_type", "record_id", "sealed_at", "chain_sha256"]
+    list_filter = ["kind"]
+    search_fields = ["chain_sha256", "content_sha256"]

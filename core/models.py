@@ -86,3 +86,61 @@ class Event(models.Model):
     @property
     def to_label(self):
         return self._label(self.to_state) if self.to_state else ""
+
+
+class SealQuerySet(models.QuerySet):
+    """The chain only grows: no bulk change or delete."""
+
+    def update(self, **kwargs):
+        raise RecordLocked("A seal is never changed; the chain only grows.")
+
+    def delete(self):
+        raise RecordLocked("A seal is never deleted; the chain only grows.")
+
+
+class Seal(models.Model):
+    """One signed record's fingerprint, linked to the seal before it: the record chain (core.seals).
+
+    `content` is the record's canonical JSON as it was signed (the exact text hashed into content_sha256);
+    chain_sha256 covers the sequence, kind, record, content hash, the previous seal's chain hash and the time,
+    so a change to any signed record, or to any seal, breaks the chain from there on. Never changed or deleted.
+    """
+
+    sequence = models.PositiveBigIntegerField(unique=True)
+    kind = models.CharField(max_length=40, help_text="What was signed, e.g. inspection.signed")
+    record_type = models.CharField(max_length=60, help_text="app_label.model of the record sealed")
+    record_id = models.PositiveBigIntegerField()
+    content = models.TextField(help_text="Canonical JSON of the record as signed (the text hashed)")
+    content_sha256 = models.CharField(max_length=64)
+    previous_sha256 = models.CharField(max_length=64, help_text="chain_sha256 of the seal before (zeros: first)")
+    chain_sha256 = models.CharField(max_length=64, unique=True)
+    sealed_at = models.DateTimeField()
+
+    objects = SealQuerySet.as_manager()
+
+    class Meta:
+        ordering = ["sequence"]
+        constraints = [models.UniqueConstraint(fields=["kind", "record_type", "record_id"],
+                                               name="one_seal_per_signing")]
+        indexes = [models.Index(fields=["record_type", "record_id"], name="seal_record")]
+
+    def __str__(self):
+        return f"seal #{self.sequence} {self.kind} {self.record_type} {self.record_id}"
+
+    def save(self, *args, **kwargs):
+        if self.pk is not None and not self._state.adding:
+            raise RecordLocked("A seal is never changed; the chain only grows.")
+        super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise RecordLocked("A seal is never deleted; the chain only grows.")
+
+
+class SealHead(models.Model):
+    """The chain's last sequence and hash, in one row: locking it serialises appends (core.seals.lock_chain)."""
+
+    sequence = models.PositiveBigIntegerField()
+    chain_sha256 = models.CharField(max_length=64)
+
+    def __str__(self):
+        return f"chain head #{self.sequence}"

@@ -35,6 +35,8 @@ ACTIONS = {
     "assembly.release": "Release an assembly",
     "criteria.derive": "Derive a client's criteria set",
     "traveler.issue": "Issue travelers and job packets",
+    "records.verify": "Check a document or a printed chain head against the sealed records",
+    "records.export": "Export a job's whole record (JSON and files)",
 }
 
 _ALLOWED = {
@@ -44,8 +46,10 @@ _ALLOWED = {
     Role.QA_LEAD: {
         "procedure.approve", "procedure.withdraw", "continuity.log", "ncr.raise", "ncr.disposition",
         "assembly.release", "criteria.derive", "traveler.issue", "job.manage", "assembly.submit",
+        "records.verify", "records.export",
     },
-    Role.VIEWER: set(),
+    # A viewer (a customer's or a third-party inspector's account) changes nothing, but may check a copy it holds.
+    Role.VIEWER: {"records.verify"},
 }
 assert all(action in ACTIONS for allowed in _ALLOWED.values() for action in allowed)
 

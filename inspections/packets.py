@@ -25,6 +25,7 @@ from django.db import transaction
 from django.utils import timezone
 from django_tasks import task
 
+from core import seals
 from core.errors import Refused
 from core.pdf import render_pdf
 from core.roles import require
@@ -81,10 +82,16 @@ def advance(packet, done: int, step: str):
 
 
 def finish(packet, file, sha256: str, pages: int, index: list):
-    """running -> done: the file is stored once and never replaced."""
-    return transition(packet, allowed_from={PacketState.RUNNING}, to=PacketState.DONE, reason="Built",
-                      file=file, sha256=sha256, pages=pages, index=index, progress_done=packet.progress_total,
-                      step="Done", finished_at=timezone.now())
+    """running -> done: the file is stored once and never replaced, and sealed in the same transaction.
+
+    The packet row is locked before the chain: no step that seals first locks a packet, so the order is safe,
+    and the file (which can be large) is hashed before the chain lock is taken (core.seals)."""
+    with transaction.atomic():
+        built = transition(packet, allowed_from={PacketState.RUNNING}, to=PacketState.DONE, reason="Built",
+                           file=file, sha256=sha256, pages=pages, index=index, progress_done=packet.progress_total,
+                           step="Done", finished_at=timezone.now())
+        seals.seal(built, "packet.built")
+    return built
 
 
 def fail(packet, message: str):
@@ -179,10 +186,12 @@ def _build(packet: JobPacket, directory: Path):
                           travelers.page_count(content), "welder"))
     advance(packet, len(pks) + 2, "Welder qualification summaries")
 
+    # The record chain's head as the packet is built: a customer holding the packet holds this anchor, so a
+    # later rewrite of the chain before it shows (`manage.py verify_records --anchor SEQUENCE:HASH`).
     released = [r for r in rows if r["released"]]
     context = {"packet": packet, "job": packet.job, "rows": rows, "open_items": open_items,
                "requested_by": travelers._person(user), "released": len(released),
-               "not_released": [r["piece_mark"] for r in rows if not r["released"]]}
+               "not_released": [r["piece_mark"] for r in rows if not r["released"]], "chain_head": seals.head()}
     rendered = render_pdf(COVER_TEMPLATE, {**context, "part": "open_items"}, "open-items.pdf")
     parts.append(Part("Open items", _spool(directory, "open-items.pdf", rendered.content),
                       travelers.page_count(rendered.content), "open_items"))

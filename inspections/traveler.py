@@ -24,10 +24,10 @@ import json
 from django.conf import settings
 from django.core.files.base import ContentFile
 from django.core.files.storage import default_storage
-from django.db import transaction
 from django.urls import reverse
 from django.utils import timezone
 
+from core import seals
 from core.pdf import RenderedPDF, render_pdf
 from core.roles import require
 from core.units import Length, format_force, format_length
@@ -418,7 +418,7 @@ def issue(assembly, user, *, snapshot: dict | None = None) -> tuple[Traveler, bo
         issued_at = timezone.now()
         rendered = render(snapshot, document_number=number, revision=revision, issued_at=issued_at,
                           issued_by=_person(user))
-        with transaction.atomic():
+        with seals.sealing():  # the chain first (core.seals, lock order), then the assembly
             # Lock the assembly: two QA leads issuing at once must not both write revision N.
             Assembly.objects.select_for_update().only("pk").get(pk=assembly.pk)
             now_latest = Traveler.objects.filter(assembly_id=assembly.pk).order_by("-revision").first()
@@ -432,6 +432,7 @@ def issue(assembly, user, *, snapshot: dict | None = None) -> tuple[Traveler, bo
             traveler.file.save(rendered.filename, ContentFile(rendered.content), save=False)
             _write_sidecar(traveler.file.name, rendered.sha256, rendered.filename)
             traveler.save()
+            seals.seal(traveler, "traveler.issued")
             return traveler, True
     raise RuntimeError("Another traveler revision kept being issued at the same time; try again.")
 

@@ -6,6 +6,7 @@ from inspections.views import criteria as criteria_views
 from inspections.views import inspect as inspect_views
 from inspections.views import jobs as job_views
 from inspections.views import ncr as ncr_views
+from inspections.views import records as record_views
 from inspections.views import strength as strength_views
 from inspections.views import travelers as traveler_views
 
@@ -69,4 +70,8 @@ urlpatterns = [
     path("packets/<int:pk>/progress/", traveler_views.packet_progress, name="packet_progress"),
     path("packets/<int:pk>.pdf", traveler_views.packet_download, name="packet_download"),
     # end of travelers and packets
+    # --- checking documents against the sealed records; a job's whole record exported ---
+    path("documents/check/", record_views.document_check, name="document_check"),
+    path("jobs/<int:pk>/export.zip", record_views.job_export, name="job_export"),
+    # end of checking and export
 ]

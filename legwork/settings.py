@@ -156,6 +156,8 @@ FILE_UPLOAD_MAX_MEMORY_SIZE = 5 * 1024 * 1024
 LEGWORK_PHOTO_MAX_BYTES = env_int("LEGWORK_PHOTO_MAX_BYTES", 15 * 1024 * 1024)
 LEGWORK_PHOTO_MAX_PIXELS = env_int("LEGWORK_PHOTO_MAX_PIXELS", 40_000_000)
 LEGWORK_REPORT_MAX_BYTES = env_int("LEGWORK_REPORT_MAX_BYTES", 10 * 1024 * 1024)  # welder test reports
+# A traveler or packet PDF dropped on the document check page: hashed as it arrives, never stored.
+LEGWORK_CHECK_MAX_BYTES = env_int("LEGWORK_CHECK_MAX_BYTES", 256 * 1024 * 1024)
 
 CONTENT_SECURITY_POLICY = {
     "DIRECTIVES": {

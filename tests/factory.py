@@ -205,16 +205,20 @@ class Factory:
         """A stored photo (files go to the test media folder) cleaned as an upload would be."""
         from django.core.files.base import ContentFile
 
+        from core import seals
         from inspections.models import Photo
         from inspections.photos import clean_photo
 
         inspection = inspection or self.make_inspection()
         clean = clean_photo(io.BytesIO(content or png_bytes()))
-        return Photo.objects.create(
-            inspection=inspection, width=clean.width, height=clean.height, content_type=clean.content_type,
-            sha256=clean.sha256, uploaded_by=inspection.inspector,
-            image=ContentFile(clean.content, name=f"{inspection.pk}-test.{clean.extension}"),
-            thumbnail=ContentFile(clean.thumbnail, name=f"{inspection.pk}-test-thumb.jpg"))
+        with seals.sealing():  # as the photo page does
+            photo = Photo.objects.create(
+                inspection=inspection, width=clean.width, height=clean.height, content_type=clean.content_type,
+                sha256=clean.sha256, uploaded_by=inspection.inspector,
+                image=ContentFile(clean.content, name=f"{inspection.pk}-test.{clean.extension}"),
+                thumbnail=ContentFile(clean.thumbnail, name=f"{inspection.pk}-test-thumb.jpg"))
+            seals.seal(photo, "photo.attached")
+        return photo
 
 
 def png_bytes(size=(40, 30), color=(200, 60, 20), fmt="PNG", **save):

@@ -15,6 +15,7 @@ from django.db import transaction
 from django.db.models import Exists, OuterRef, Q
 from django.utils import timezone
 
+from core import seals
 from core.errors import Refused
 from core.transitions import transition
 from inspections.models import NCR, Assembly, AssemblyState, Inspection, InspectionStage, Weld
@@ -129,9 +130,12 @@ def release(assembly, user, reason=""):
             raise Refused(reasons, code="blocked")
 
     # Any state may ask; release_blockers says why a closed or rejected one cannot be released.
-    return transition(assembly, user=user, permission="assembly.release", allowed_from=set(AssemblyState),
-                      to=AssemblyState.RELEASED, check=nothing_blocks, reason=reason or "Released",
-                      released_by=user, released_at=timezone.now())
+    with seals.sealing():  # the chain first, then the assembly (core.seals, lock order)
+        released = transition(assembly, user=user, permission="assembly.release", allowed_from=set(AssemblyState),
+                              to=AssemblyState.RELEASED, check=nothing_blocks, reason=reason or "Released",
+                              released_by=user, released_at=timezone.now())
+        seals.seal(released, "assembly.released")
+    return released
 
 
 def scrap(assembly, user, reason):

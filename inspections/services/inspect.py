@@ -9,6 +9,7 @@ inspection, open NCRs closed by an accepted one, the assembly's state refreshed.
 
 from django.db import transaction
 
+from core import seals
 from core.errors import Refused
 from core.units import Length, format_length
 from inspections.acceptance import Finding, Verdict, evaluate
@@ -120,6 +121,7 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
     """
     if stage not in InspectionStage.values:
         raise Refused(f"Stage must be one of {', '.join(InspectionStage.values)}, not {stage!r}.")
+    seals.lock_chain()  # first: this transaction seals, then locks NCRs and the assembly (core.seals, lock order)
     # Lock the weld row (a no-op on SQLite, whose IMMEDIATE transaction already holds the write lock), and read
     # the assembly's state afresh under it; the weld map data itself is what the form was judged against.
     Weld.objects.select_for_update().filter(pk=weld.pk).values_list("pk", flat=True).get()
@@ -144,6 +146,7 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
         criteria_key=key, criteria_version=version, **values,
     )
     inspection.save()
+    seals.seal(inspection, "inspection.signed")
     _point_weld_at(weld, inspection)
     if stage == InspectionStage.FINAL:
         if verdict.accepted:

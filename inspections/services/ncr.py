@@ -14,7 +14,7 @@ from datetime import date
 from django.db import transaction
 from django.utils import timezone
 
-from core import history
+from core import history, seals
 from core.errors import Refused
 from core.roles import require
 from core.transitions import transition
@@ -62,10 +62,16 @@ def _loaded(ncr) -> NCR:
 
 
 def _disposition(ncr, user, disposition, to, notes, reason, check=None, **fields):
-    """Open -> `to` with the disposition, its notes, who and when (the caller's NCR is brought up to date)."""
-    transition(ncr, user=user, permission="ncr.disposition", allowed_from={NCRState.OPEN}, to=to,
-                      check=check, reason=reason, disposition=disposition, disposition_notes=notes,
-                      dispositioned_by=user, dispositioned_at=timezone.now(), **fields)
+    """Open -> `to` with the disposition, its notes, who and when (the caller's NCR is brought up to date).
+
+    Sealed in the same transaction: dispositioned, and closed too when the disposition closes it."""
+    with seals.sealing():
+        transition(ncr, user=user, permission="ncr.disposition", allowed_from={NCRState.OPEN}, to=to,
+                   check=check, reason=reason, disposition=disposition, disposition_notes=notes,
+                   dispositioned_by=user, dispositioned_at=timezone.now(), **fields)
+        seals.seal(ncr, "ncr.dispositioned")
+        if to == NCRState.CLOSED:
+            seals.seal(ncr, "ncr.closed")
     return ncr
 
 
@@ -158,7 +164,7 @@ def disposition_scrap(ncr, user, notes):
     notes = (notes or "").strip()
     if not notes:
         raise Refused({"disposition_notes": ["Say why the assembly is scrapped."]}, code="scrap")
-    with transaction.atomic():
+    with seals.sealing():  # the chain first, then the NCR and the assembly (core.seals, lock order)
         ncr = _disposition(_loaded(ncr), user, Disposition.SCRAP, NCRState.CLOSED, notes, f"Scrap. {notes}",
                            closed_at=timezone.now())
         assembly_steps.scrap(ncr.weld.assembly, user, f"Scrapped by {ncr}: {notes}")
@@ -180,7 +186,10 @@ def close_ncrs_for(inspection) -> list:
                                       inspection__inspected_at__lte=inspection.inspected_at,
                                       repair__welded_on__lte=timezone.localdate(inspection.inspected_at))
                    .exclude(inspection=inspection))
-    closed = [transition(ncr, user=inspection.inspector, allowed_from={NCRState.DISPOSITIONED}, to=NCRState.CLOSED,
-                         reason=f"Repair accepted by re-inspection #{inspection.pk}",
-                         closed_by_inspection=inspection, closed_at=timezone.now()) for ncr in waiting]
+    closed = []
+    for ncr in waiting:
+        closed.append(transition(ncr, user=inspection.inspector, allowed_from={NCRState.DISPOSITIONED},
+                                 to=NCRState.CLOSED, reason=f"Repair accepted by re-inspection #{inspection.pk}",
+                                 closed_by_inspection=inspection, closed_at=timezone.now()))
+        seals.seal(ncr, "ncr.closed")  # inside the signing's transaction, which locked the chain first
     return closed  # the signing that called this refreshes the assembly's state once

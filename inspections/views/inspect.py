@@ -12,6 +12,7 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
+from core import seals
 from core.errors import Refused
 from core.roles import can, role_required
 from core.vocabulary import JointType
@@ -217,12 +218,14 @@ def photo_add(request, pk):
         return _detail_page(request, inspection, form, status=400)
     clean = form.photo
     stem = f"{inspection.pk}-{clean.sha256[:16]}"
-    Photo.objects.create(
-        inspection=inspection, caption=form.cleaned_data["caption"], width=clean.width, height=clean.height,
-        content_type=clean.content_type, sha256=clean.sha256, uploaded_by=request.user,
-        image=ContentFile(clean.content, name=f"{stem}.{clean.extension}"),
-        thumbnail=ContentFile(clean.thumbnail, name=f"{stem}-thumb.jpg"),
-    )
+    with seals.sealing():  # a photo is evidence: sealed with the stored files' SHA-256 (core.seals)
+        photo = Photo.objects.create(
+            inspection=inspection, caption=form.cleaned_data["caption"], width=clean.width, height=clean.height,
+            content_type=clean.content_type, sha256=clean.sha256, uploaded_by=request.user,
+            image=ContentFile(clean.content, name=f"{stem}.{clean.extension}"),
+            thumbnail=ContentFile(clean.thumbnail, name=f"{stem}-thumb.jpg"),
+        )
+        seals.seal(photo, "photo.attached")
     messages.success(request, "Photo attached.")
     return redirect(reverse("inspections:inspection_detail", args=[inspection.pk]) + "#photos")
 

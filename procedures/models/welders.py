@@ -4,6 +4,8 @@ Ranges and lapse dates are never typed: procedures.qualification derives them fr
 the continuity entries (production welds recorded in Legwork add their own entries).
 """
 
+import hashlib
+
 from django.conf import settings
 from django.db import models
 from django.urls import reverse
@@ -69,6 +71,8 @@ class Qualification(models.Model):
     result = models.CharField(max_length=4, choices=Result.choices)
     examiner = models.CharField(max_length=120)
     report = models.FileField(upload_to="qualification-reports/%Y/", blank=True)
+    report_sha256 = models.CharField("SHA-256 of the report", max_length=64, blank=True, editable=False,
+                                     help_text="Of the bytes stored; `manage.py verify_records` checks the file")
     iso_revalidation = models.CharField(
         "ISO 9606-1 revalidation route", max_length=2, blank=True,
         choices=[("a", "9.3 a) retest every 3 years"), ("b", "9.3 b) every 2 years, production welds tested"),
@@ -83,6 +87,16 @@ class Qualification(models.Model):
 
     def __str__(self):
         return f"{self.welder.stamp} {self.process} {self.test_position} {self.test_date:%Y-%m-%d}"
+
+    def save(self, *args, **kwargs):
+        if self.report and not self.report._committed:  # a report attached now: hash the bytes about to be stored
+            digest = hashlib.sha256()
+            for chunk in self.report.chunks():
+                digest.update(chunk)
+            self.report_sha256 = digest.hexdigest()
+            if kwargs.get("update_fields") is not None:
+                kwargs["update_fields"] = {*kwargs["update_fields"], "report_sha256"}
+        super().save(*args, **kwargs)
 
 
 class ContinuityEntry(models.Model):

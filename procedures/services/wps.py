@@ -7,7 +7,7 @@ is edited; a change to an approved WPS is a new revision that supersedes it once
 from django.db import models, transaction
 from django.utils import timezone
 
-from core import history
+from core import history, seals
 from core.errors import Refused
 from core.roles import require
 from core.transitions import required_reason, transition
@@ -48,7 +48,7 @@ def approve(wps, user, reason=""):
         if blockers:
             raise Refused("Cannot approve: " + " ".join(blockers), code="findings")
 
-    with transaction.atomic():
+    with seals.sealing():  # the chain first, then the two revisions (core.seals, lock order)
         approved = transition(wps, user=user, permission="procedure.approve", allowed_from={WPSState.SUBMITTED},
                               to=WPSState.APPROVED, check=approvable, reason=reason or "Approved",
                               approved_by=user, approved_at=timezone.now())
@@ -57,6 +57,7 @@ def approve(wps, user, reason=""):
             if previous.state == WPSState.APPROVED:
                 transition(previous, user=user, allowed_from={WPSState.APPROVED}, to=WPSState.SUPERSEDED,
                            reason=f"Superseded by revision {approved.revision}")
+        seals.seal(approved, "wps.approved")
     return approved
 
 

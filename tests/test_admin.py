@@ -37,8 +37,9 @@ def test_a_welder_test_record_is_read_only_in_the_admin(admin_client_, make):
 
 def test_a_pqr_behind_an_approved_wps_is_read_only_in_the_admin(admin_client_, make):
     pqr = make.make_pqr()
-    wps = make.make_wps(state=WPSState.APPROVED)
+    wps = make.make_wps()
     wps.pqrs.add(pqr)
+    make.move_wps(wps, WPSState.APPROVED)
     assert admin_client_.post(reverse("admin:procedures_pqr_change", args=[pqr.pk]), {}).status_code == 403
 
 

@@ -12,7 +12,8 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
-from core.errors import Refused
+from core import history
+from core.errors import RecordLocked, Refused
 from core.roles import can, role_required
 from core.vocabulary import JointType
 from inspections.forms.inspect import CorrectionForm, FindAssemblyForm, InspectionForm, PhotoForm
@@ -145,9 +146,11 @@ def inspection_detail(request, pk):
 
 def _detail_page(request, inspection, photo_form, status=200):
     earlier, later = _chain(inspection)
+    photos = list(inspection.photos.all())
     return render(request, "inspections/inspection_detail.html", {
         "inspection": inspection, "weld": inspection.weld, "assembly": inspection.weld.assembly,
-        "job": inspection.weld.assembly.job, "photos": list(inspection.photos.all()),
+        "job": inspection.weld.assembly.job, "photos": photos,
+        "history": history.panel(inspection, *photos), "history_mixed": bool(photos),
         "ncrs": list(inspection.ncrs.all()), "earlier": earlier, "later": later,
         "is_current": not later, "photo_form": photo_form,
         "capacities": (capacity_cards(inspection=inspection)
@@ -212,12 +215,17 @@ def photo_add(request, pk):
         return _detail_page(request, inspection, form, status=400)
     clean = form.photo
     stem = f"{inspection.pk}-{clean.sha256[:16]}"
-    Photo.objects.create(
+    photo = Photo(
         inspection=inspection, caption=form.cleaned_data["caption"], width=clean.width, height=clean.height,
         content_type=clean.content_type, sha256=clean.sha256, uploaded_by=request.user,
         image=ContentFile(clean.content, name=f"{stem}.{clean.extension}"),
         thumbnail=ContentFile(clean.thumbnail, name=f"{stem}-thumb.jpg"),
     )
+    try:
+        photo.save(user=request.user)  # refused once the assembly is released or scrapped (core.locking)
+    except RecordLocked as exc:
+        form.add_error(None, exc.messages)
+        return _detail_page(request, inspection, form, status=409)
     messages.success(request, "Photo attached.")
     return redirect(reverse("inspections:inspection_detail", args=[inspection.pk]) + "#photos")
 

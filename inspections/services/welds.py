@@ -36,11 +36,11 @@ def revise(weld, user, reason, *, welders=None):
         stored = Weld.lock.stored(weld)
         if stored.assembly.state in CLOSED_STATES:
             raise RecordLocked(Weld.lock.refusal(stored, "revised"))
+        if weld.version != stored.version:
+            raise stale(weld, stored)
         if stored.latest_inspection_id is None:
             raise Refused(f"Weld {stored.mark} has not been inspected since its last revision: edit it instead.",
                           code="not_inspected")
-        if weld.version != stored.version:
-            raise stale(weld, stored)
         changes = history.changes(stored, weld, fields, stored.history_system())
         old_welders = history.value_text(stored, Weld._meta.get_field("welders"))
         if welders is not None:

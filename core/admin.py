@@ -1,7 +1,7 @@
 from django.contrib import admin, messages
 from django.contrib.auth.admin import UserAdmin
 from django.contrib.auth.forms import UserChangeForm
-from django.core.exceptions import PermissionDenied, ValidationError
+from django.core.exceptions import PermissionDenied
 from django.shortcuts import redirect
 from django.utils import timezone
 from django.utils.html import format_html, format_html_join
@@ -16,14 +16,26 @@ from core.models import Event, User
 class GuardedAdminForm(VersionedModelForm):
     """The admin's form of a guarded record: refuses a stale save at validation, with the input kept."""
 
-    def clean(self):
-        cleaned = super().clean()
-        instance, version = self.instance, cleaned.get("opened_version")
-        if instance.pk is not None and version is not None and instance.lock.versioned:
-            stored = type(instance)._base_manager.get(pk=instance.pk)
-            if stored.version != version:
-                raise ValidationError(stale(instance, stored).messages)
-        return cleaned
+    def _post_clean(self):
+        super()._post_clean()  # the instance now holds the posted values
+        instance, version = self.instance, self.cleaned_data.get("opened_version")
+        if instance.pk is None or self.errors:
+            return
+        stored = type(instance)._base_manager.get(pk=instance.pk)
+        if instance.lock.versioned and version is not None and stored.version != version:
+            self.add_error(None, stale(instance, stored).messages)
+            return
+        changed = [f.name for f in instance._meta.concrete_fields
+                   if not f.primary_key and f.name != "version"
+                   and getattr(stored, f.attname) != getattr(instance, f.attname)]
+        try:
+            instance.lock.check_change(stored, changed)  # a welder's stamp once records bear it, say
+        except RecordLocked as exc:
+            if hasattr(exc, "error_dict"):
+                for name, errors in exc.message_dict.items():
+                    self.add_error(name if name in self.fields else None, errors)
+            else:
+                self.add_error(None, exc.messages)
 
 
 class GuardedAdmin(admin.ModelAdmin):

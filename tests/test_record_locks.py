@@ -288,3 +288,49 @@ def test_a_released_assembly_is_frozen_but_may_still_be_scrapped(make):
 
     scrap(assembly, make.make_user("qa_lead"), "Dropped in handling")
     assert type(assembly).objects.get(pk=assembly.pk).state == AssemblyState.SCRAPPED
+
+
+# --- the pages and crafted posts --------------------------------------------------------------------------------
+
+def test_a_crafted_post_cannot_change_a_released_assembly(make, client_as):
+    from django.urls import reverse
+
+    assembly = _released(make)
+    client = client_as("qa_lead")
+    url = reverse("inspections:assembly_edit", args=[assembly.pk])
+    assert client.get(url).status_code == 302
+    response = client.post(url, {"piece_mark": assembly.piece_mark, "drawing": assembly.drawing, "quantity": 1,
+                                 "drawing_revision": "Z", "opened_version": assembly.version})
+    assert response.status_code == 409 and "released" in " ".join(response.context["form"].non_field_errors())
+    assert type(assembly).objects.get(pk=assembly.pk).drawing_revision != "Z"
+
+
+def test_a_crafted_post_cannot_change_a_pqr_in_use(make, client_as):
+    from django.urls import reverse
+
+    from tests.test_stale_saves import form_data
+
+    pqr = make.make_pqr()
+    wps = make.make_wps()
+    wps.pqrs.add(pqr)
+    client = client_as("welding_engineer")
+    url = reverse("procedures:pqr_edit", args=[pqr.pk])
+    data = form_data(client.get(url).context["form"])  # opened while the WPS was a draft
+    make.move_wps(wps, WPSState.SUBMITTED)
+    response = client.post(url, {**data, "laboratory": "Another lab"})
+    assert response.status_code == 409
+    assert type(pqr).objects.get(pk=pqr.pk).laboratory != "Another lab"
+
+
+def test_no_photo_is_attached_through_the_page_once_the_assembly_is_released(make, client_as):
+    from django.core.files.uploadedfile import SimpleUploadedFile
+    from django.urls import reverse
+
+    from tests.factory import png_bytes
+
+    assembly = _released(make)
+    inspection = assembly.welds.get().latest_final
+    response = client_as("inspector").post(reverse("inspections:photo_add", args=[inspection.pk]), {
+        "image": SimpleUploadedFile("weld.png", png_bytes(), content_type="image/png"), "caption": "after release"})
+    assert response.status_code == 409
+    assert not Photo.objects.filter(inspection=inspection).exists()

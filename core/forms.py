@@ -60,7 +60,9 @@ class VersionedModelForm(forms.ModelForm):
         return None
 
     def explain_stale(self, exc):
-        self.add_error(None, exc.messages)
+        """Put the refusal at the top and, beside each field the other person changed, their old and new value
+        (code "stale": not an error in the input, a review ignores them)."""
+        self.add_error(None, forms.ValidationError(" ".join(exc.messages), code="stale"))
         events = history.since(exc.current, self.cleaned_data.get("opened_at")) if exc.current is not None else []
         by_label = {history.label_of(f): f.name for f in self._meta.model._meta.get_fields()
                     if hasattr(f, "verbose_name")}
@@ -71,8 +73,9 @@ class VersionedModelForm(forms.ModelForm):
                 name = by_label.get(label)
                 if name in self.fields and name not in marked:
                     marked.add(name)
-                    self.add_error(name, f"{who} changed this at {timezone.localtime(event.at):%Y-%m-%d %H:%M}: "
-                                         f"{old or '—'} → {new or '—'}. Your value is kept here.")
+                    self.add_error(name, forms.ValidationError(
+                        f"{who} changed this at {timezone.localtime(event.at):%Y-%m-%d %H:%M}: {old or '—'} → "
+                        f"{new or '—'}. Your value is kept here.", code="stale"))
         if exc.version is not None:
             # The next save is compared with the record as it is now: made with the other change in view.
             data = self.data.copy()

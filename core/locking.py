@@ -24,6 +24,7 @@ from django.core.exceptions import FieldDoesNotExist
 from django.db import models, transaction
 from django.db.models import F, Q
 from django.db.models.signals import m2m_changed
+from django.utils import timezone
 
 from core.errors import RecordLocked, Stale
 
@@ -437,7 +438,7 @@ def stale(record, stored) -> Stale:
     last = history.latest(stored)
     if last is not None and last.action != history.CREATED:
         who = str(last.user) if last.user else "Legwork"
-        said = f"{who} changed {stored} at {last.at:%Y-%m-%d %H:%M}"
+        said = f"{who} changed {stored} at {timezone.localtime(last.at):%Y-%m-%d %H:%M}"
     else:
         said = f"{stored} was changed by someone else"
     return Stale(f"{said}, after you opened it. Nothing was saved: your input is kept below; check it against "

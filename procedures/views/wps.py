@@ -92,14 +92,17 @@ def _review_context(form):
     if form.is_bound:
         form.is_valid()
         concrete = {f.name for f in WPS._meta.concrete_fields}
-        for name in form.errors:
+        # A stale save's notes (who changed a field meanwhile) are not mistakes in the input: not reviewed as such.
+        errors = {name: [e for e in found if e.code != "stale"] for name, found in form.errors.as_data().items()}
+        errors = {name: [m for e in found for m in e.messages] for name, found in errors.items() if found}
+        for name in errors:
             if name in concrete:
                 field = WPS._meta.get_field(name)
                 setattr(candidate, name, None if field.null or not field.empty_strings_allowed else "")
-        if "pqrs" not in form.errors:
+        if "pqrs" not in errors:
             pqrs = list(form.cleaned_data.get("pqrs") or [])
         labels = {name: field.label for name, field in form.fields.items()}
-        form_errors = [(labels.get(name, "Form"), message) for name, errs in form.errors.items() for message in errs]
+        form_errors = [(labels.get(name, "Form"), message) for name, errs in errors.items() for message in errs]
     elif candidate.pk is None:
         return {"findings": None}
     findings = candidate.findings(pqrs=pqrs)

@@ -12,6 +12,7 @@ from django.utils import timezone
 
 from core import history
 from core.errors import RecordLocked, Stale
+from core.locking import stale
 
 
 class VersionedModelForm(forms.ModelForm):
@@ -62,8 +63,10 @@ class VersionedModelForm(forms.ModelForm):
     def explain_stale(self, exc):
         """Put the refusal at the top and, beside each field the other person changed, their old and new value
         (code "stale": not an error in the input, a review ignores them)."""
-        self.add_error(None, forms.ValidationError(" ".join(exc.messages), code="stale"))
         events = history.since(exc.current, self.cleaned_data.get("opened_at")) if exc.current is not None else []
+        if events:  # name the change made since this page was opened (the newest row may be older than that)
+            exc = stale(self.instance, exc.current, events[-1])
+        self.add_error(None, forms.ValidationError(" ".join(exc.messages), code="stale"))
         by_label = {history.label_of(f): f.name for f in self._meta.model._meta.get_fields()
                     if hasattr(f, "verbose_name")}
         marked = set()

@@ -431,11 +431,12 @@ def _differs(field, stored, record) -> bool:
     return getattr(stored, field.attname) != getattr(record, field.attname)
 
 
-def stale(record, stored) -> Stale:
-    """The Stale refusal for a form opened at `record.version`, naming who changed the record since and when."""
+def stale(record, stored, last=None) -> Stale:
+    """The Stale refusal for a form opened at `record.version`, naming who changed the record since and when
+    (`last`: that history row when known; else the record's newest)."""
     from core import history  # core.history reads core.models, which imports this
 
-    last = history.latest(stored)
+    last = last or history.latest(stored)
     if last is not None and last.action != history.CREATED:
         who = str(last.user) if last.user else "Legwork"
         said = f"{who} changed {stored} at {timezone.localtime(last.at):%Y-%m-%d %H:%M}"

@@ -1,4 +1,5 @@
 from django.apps import AppConfig
+from django.db.models.signals import post_migrate
 
 
 class CoreConfig(AppConfig):
@@ -6,3 +7,18 @@ class CoreConfig(AppConfig):
 
     name = "core"
     verbose_name = "People, roles and history"
+
+    def ready(self):
+        from core import locking
+
+        locking.connect_m2m_guards(locking.guarded_models())
+        post_migrate.connect(_install_triggers, sender=self, dispatch_uid="legwork_install_triggers")
+
+
+def _install_triggers(using="default", **kwargs):
+    """After every migrate (and flush): the record-lock triggers, again (core.triggers explains why)."""
+    from django.db import connections
+
+    from core import triggers
+
+    triggers.install(connections[using])

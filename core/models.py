@@ -1,21 +1,37 @@
 """The shop's people (one role each; core.roles decides what a role may do) and the one history of every record."""
 
 from django.conf import settings
-from django.contrib.auth.models import AbstractUser
+from django.contrib.auth.models import AbstractUser, UserManager
 from django.contrib.contenttypes.fields import GenericForeignKey
 from django.contrib.contenttypes.models import ContentType
 from django.db import models
 from django.utils import timezone
 
-from core.errors import RecordLocked
+from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock
 from core.roles import Role
 
 
-class User(AbstractUser):
+class LegworkUserManager(UserManager.from_queryset(GuardedQuerySet)):
+    pass
+
+
+class User(Guarded, AbstractUser):
+    """A person with one role. Edited in place (the admin), by version; role and stamp changes keep their history."""
+
     role = models.CharField(max_length=20, choices=Role.choices, default=Role.VIEWER)
     stamp = models.CharField(
         max_length=20, blank=True, help_text="Inspector's or engineer's stamp or certificate number, printed on records"
     )
+    version = models.PositiveIntegerField(default=1, editable=False)
+
+    objects = LegworkUserManager()
+    lock = Lock("user", name=("username",))
+    quiet_fields = frozenset({"last_login"})  # every sign-in saves it: no history row, no version
+    secret_fields = frozenset({"password"})
+
+    class Meta(AbstractUser.Meta):
+        swappable = "AUTH_USER_MODEL"
+        base_manager_name = "objects"
 
     def __str__(self):
         return self.get_full_name() or self.username
@@ -25,17 +41,7 @@ class User(AbstractUser):
         return Role(self.role).label if self.role in Role.values else "—"
 
 
-class EventQuerySet(models.QuerySet):
-    """History only grows: no bulk change or delete."""
-
-    def update(self, **kwargs):
-        raise RecordLocked("A history row is never changed; record a new event instead.")
-
-    def delete(self):
-        raise RecordLocked("A history row is never deleted.")
-
-
-class Event(models.Model):
+class Event(Guarded):
     """One change of one record: who, when, from which state to which, which fields changed, and why.
 
     Every record's history is these rows (core.history writes and reads them); they are never changed or
@@ -54,22 +60,17 @@ class Event(models.Model):
                              related_name="+", help_text="Empty for the system itself (a background worker)")
     at = models.DateTimeField(default=timezone.now)
 
-    objects = EventQuerySet.as_manager()
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("history row", frozen=ALWAYS, advice="history only grows: record a new event instead.")
+    keeps_history = False  # the history has no history of its own
 
     class Meta:
         ordering = ["at", "pk"]
         indexes = [models.Index(fields=["subject_type", "subject_id", "at"], name="event_subject_at")]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.subject_type.model} {self.subject_id}: {self.action} at {self.at:%Y-%m-%d %H:%M}"
-
-    def save(self, *args, **kwargs):
-        if self.pk is not None and not self._state.adding:
-            raise RecordLocked("A history row is never changed; record a new event instead.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise RecordLocked("A history row is never deleted.")
 
     def _label(self, value):
         model = self.subject_type.model_class()
@@ -88,17 +89,7 @@ class Event(models.Model):
         return self._label(self.to_state) if self.to_state else ""
 
 
-class SealQuerySet(models.QuerySet):
-    """The chain only grows: no bulk change or delete."""
-
-    def update(self, **kwargs):
-        raise RecordLocked("A seal is never changed; the chain only grows.")
-
-    def delete(self):
-        raise RecordLocked("A seal is never deleted; the chain only grows.")
-
-
-class Seal(models.Model):
+class Seal(Guarded):
     """One signed record's fingerprint, linked to the seal before it: the record chain (core.seals).
 
     `content` is the record's canonical JSON as it was signed (the exact text hashed into content_sha256);
@@ -116,9 +107,12 @@ class Seal(models.Model):
     chain_sha256 = models.CharField(max_length=64, unique=True)
     sealed_at = models.DateTimeField()
 
-    objects = SealQuerySet.as_manager()
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("seal", frozen=ALWAYS, advice="the chain only grows.")
+    keeps_history = False  # the chain is its own record
 
     class Meta:
+        base_manager_name = "objects"
         ordering = ["sequence"]
         constraints = [models.UniqueConstraint(fields=["kind", "record_type", "record_id"],
                                                name="one_seal_per_signing")]
@@ -126,14 +120,6 @@ class Seal(models.Model):
 
     def __str__(self):
         return f"seal #{self.sequence} {self.kind} {self.record_type} {self.record_id}"
-
-    def save(self, *args, **kwargs):
-        if self.pk is not None and not self._state.adding:
-            raise RecordLocked("A seal is never changed; the chain only grows.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise RecordLocked("A seal is never deleted; the chain only grows.")
 
 
 class SealHead(models.Model):

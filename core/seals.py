@@ -147,10 +147,16 @@ def encode(obj, model_field, files=None):
     return str(value)
 
 
+# Bookkeeping no signed content depends on: the edit counter (core.locking) moves with every step, a state
+# change included, so sealing it would make a legal transition after signing read as tampering.
+NEVER_SEALED = frozenset({"version"})
+
+
 def sealable_fields(model, unsealed=()) -> list:
-    """Every concrete and many-to-many field of the model, by name, except those named unsealed."""
+    """Every concrete and many-to-many field of the model, by name, except those named unsealed (and the
+    bookkeeping fields of NEVER_SEALED)."""
     fields = [*model._meta.concrete_fields, *model._meta.many_to_many]
-    return [f for f in fields if f.name not in unsealed]
+    return [f for f in fields if f.name not in unsealed and f.name not in NEVER_SEALED]
 
 
 def _load(model, pks, **filters) -> list:

@@ -9,17 +9,20 @@ from django.db import models, transaction
 
 from core import history
 from core.errors import Refused
+from core.locking import bump_version
 from core.roles import require
 
 
 def transition(record, *, to, allowed_from, user=None, permission=None, field="state", reason="", check=None,
-               labels=None, action=history.STATE, **fields):
+               labels=None, action=history.STATE, changes=None, **fields):
     """Move `record` from one of `allowed_from` to `to` (on `field`), setting `fields` too; returns the locked row.
 
     permission: the core.roles action the user needs (checked first). check(locked): raises Refused when a
     precondition beyond the state does not hold; it sees the row as stored, under the lock. labels: the words
-    for the field's values where it has no choices (a yes/no field: {True: "active", False: "inactive"}). The
-    caller's instance is brought up to date with what was saved.
+    for the field's values where it has no choices (a yes/no field: {True: "active", False: "inactive"}).
+    changes: {label: [old, new]} for the history row, where the step changes data too (a weld's revision).
+    A versioned record's version moves on with the step, so a form opened before it is stale. The caller's
+    instance is brought up to date with what was saved.
     """
     if permission is not None:
         require(user, permission)
@@ -37,10 +40,12 @@ def transition(record, *, to, allowed_from, user=None, permission=None, field="s
         setattr(locked, field, to)
         for name, value in fields.items():
             setattr(locked, name, value)
-        models.Model.save(locked, update_fields=[field, *fields])  # past the signed-record guard of save()
+        saved = [field, *fields, *bump_version(locked)]
+        # Past the guard of Guarded.save(): the database triggers allow exactly the declared moves (core.locking).
+        models.Model.save(locked, update_fields=saved)
         history.record(locked, user, action, from_state=_stored(model, field, current, labels),
-                       to_state=_stored(model, field, to, labels), reason=reason)
-    for name in [field, *fields]:
+                       to_state=_stored(model, field, to, labels), reason=reason, changes=changes)
+    for name in saved:
         setattr(record, name, getattr(locked, name))
     return locked
 

@@ -2,25 +2,29 @@
 
 from django.contrib import admin
 
-from core.admin import ReadOnlyAdmin
+from core.admin import GuardedAdmin, ReadOnlyAdmin
 from inspections.models import NCR, Assembly, ClientCriteriaSet, Inspection, Job, Photo, Weld, WeldRepair
 from inspections.models.traveler import JobPacket, Traveler
 
 
 @admin.register(Job)
-class JobAdmin(admin.ModelAdmin):
+class JobAdmin(GuardedAdmin):
     list_display = ["number", "name", "customer", "unit_system", "criteria_key"]
 
 
 @admin.register(Assembly)
-class AssemblyAdmin(admin.ModelAdmin):
+class AssemblyAdmin(GuardedAdmin):
+    """Read-only once released or scrapped; the state moves only by its steps."""
+
     list_display = ["piece_mark", "job", "drawing", "state"]
     list_filter = ["state", "job"]
     list_select_related = ["job"]
 
 
 @admin.register(Weld)
-class WeldAdmin(admin.ModelAdmin):
+class WeldAdmin(GuardedAdmin):
+    """Read-only once inspected or its assembly closed: the weld page's revision step changes it then."""
+
     list_display = ["mark", "assembly", "joint_type", "wps"]
     list_select_related = ["assembly", "wps"]
 

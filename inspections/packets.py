@@ -55,9 +55,9 @@ def start_packet(job, assembly_pks, user) -> JobPacket:
     wanted.sort(key=lambda pk: order[pk])
     with transaction.atomic():
         number = next_in_job(job, JobPacket.objects.filter(job=job))
-        packet = JobPacket.objects.create(job=job, document_number=f"PKT-{job.number}-{number:03d}-"
-                                          f"{timezone.now():%Y%m%d%H%M%S}", assembly_pks=wanted,
-                                          requested_by=user)
+        packet = JobPacket(job=job, document_number=f"PKT-{job.number}-{number:03d}-{timezone.now():%Y%m%d%H%M%S}",
+                           assembly_pks=wanted, requested_by=user)
+        packet.save(user=user)
         # Enqueue only once the packet row is committed: a worker must find it (STYLE.md, pretix's rule).
         transaction.on_commit(lambda: _enqueue(packet.pk))
     return packet

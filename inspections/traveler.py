@@ -431,7 +431,7 @@ def issue(assembly, user, *, snapshot: dict | None = None) -> tuple[Traveler, bo
                 snapshot=snapshot)
             traveler.file.save(rendered.filename, ContentFile(rendered.content), save=False)
             _write_sidecar(traveler.file.name, rendered.sha256, rendered.filename)
-            traveler.save()
+            traveler.save(user=user, reason=f"Issued {number}")
             seals.seal(traveler, "traveler.issued")
             return traveler, True
     raise RuntimeError("Another traveler revision kept being issued at the same time; try again.")

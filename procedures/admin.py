@@ -2,41 +2,31 @@
 
 from django.contrib import admin
 
-from core.admin import ReadOnlyAdmin
+from core.admin import GuardedAdmin, ReadOnlyAdmin
 from procedures.models import PQR, WPS, ContinuityEntry, Qualification, Welder
 
 
 @admin.register(WPS)
-class WPSAdmin(admin.ModelAdmin):
+class WPSAdmin(GuardedAdmin):
+    """Only a draft is edited here; a submitted, approved, superseded or withdrawn WPS is read-only."""
+
     list_display = ["number", "revision", "title", "state", "process", "electrode"]
     list_filter = ["state", "process"]
     search_fields = ["number", "title", "electrode"]
 
-    def has_change_permission(self, request, obj=None):
-        return super().has_change_permission(request, obj) and (obj is None or obj.is_editable)
-
-    def has_delete_permission(self, request, obj=None):
-        return super().has_delete_permission(request, obj) and (obj is None or obj.is_editable)
-
 
 @admin.register(PQR)
-class PQRAdmin(admin.ModelAdmin):
-    """A PQR behind a procedure that is (or was) approved records a test that happened: read-only."""
+class PQRAdmin(GuardedAdmin):
+    """A PQR behind a procedure beyond draft records a test that happened: read-only."""
 
     list_display = ["number", "process", "electrode", "test_date"]
 
-    def _in_use(self, obj):
-        return obj is not None and obj.procedures.exclude(state="draft").exists()
-
-    def has_change_permission(self, request, obj=None):
-        return super().has_change_permission(request, obj) and not self._in_use(obj)
-
-    def has_delete_permission(self, request, obj=None):
-        return super().has_delete_permission(request, obj) and not self._in_use(obj)
-
 
 @admin.register(Welder)
-class WelderAdmin(admin.ModelAdmin):
+class WelderAdmin(GuardedAdmin):
+    """Active or not changes by the welder page's steps (with a reason), never here."""
+
+    readonly_fields = ["active"]
     list_display = ["stamp", "name", "employer", "active"]
     search_fields = ["stamp", "name"]
 

@@ -8,8 +8,7 @@ from django.db.models import Prefetch
 from django.urls import NoReverseMatch
 from django.utils import timezone
 
-from core import units
-from core.history import history_of
+from core import history, units
 from core.vocabulary import JointType, Process
 from procedures import eligibility
 from procedures.electrodes import decode
@@ -127,7 +126,7 @@ def wps_context(wps):
         "decoded_processes": ", ".join(sorted(decoded.processes)) if decoded else "",
         "decode_error": decode_error,
         "pqrs": list(wps.pqrs.all()),
-        "history": list(history_of(wps)),
+        "history": history.panel(wps),
         "heat": wps.heat_input_range(),
         "next_revision": WPS.objects.filter(supersedes=wps).only("pk", "number", "revision").first(),
     }
@@ -185,7 +184,8 @@ def welder_context(welder):
     return {
         "welder": welder, "status": status, "tests": tests, "today": today,
         "continuity": [(entry, weld_url(entry.weld)) for entry in welder.continuity.all()],
-        "history": list(history_of(welder)),
+        "history": history.panel(welder, *welder.qualifications.all(), *welder.continuity.all()),
+        "history_mixed": True,
     }
 
 

@@ -24,10 +24,12 @@ urlpatterns = [
     path("pqr/", wps_views.pqr_list, name="pqr_list"),
     path("pqr/new/", wps_views.pqr_create, name="pqr_create"),
     path("pqr/<int:pk>/", wps_views.pqr_detail, name="pqr_detail"),
+    path("pqr/<int:pk>/edit/", wps_views.pqr_edit, name="pqr_edit"),
     # --- welder pages ---
     path("welders/", welder_views.welder_list, name="welder_list"),
     path("welders/new/", welder_views.welder_create, name="welder_create"),
     path("welders/<int:pk>/", welder_views.welder_detail, name="welder_detail"),
+    path("welders/<int:pk>/edit/", welder_views.welder_edit, name="welder_edit"),
     path("welders/<int:pk>/tests/new/", welder_views.qualification_create, name="qualification_create"),
     path("welders/<int:pk>/continuity/new/", welder_views.continuity_create, name="continuity_create"),
     path("welders/<int:pk>/deactivate/", welder_views.welder_deactivate, name="welder_deactivate"),

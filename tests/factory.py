@@ -23,6 +23,18 @@ def L(text):  # noqa: N802 - reads like the unit it builds
 class Factory:
     password = "weld-demo-pass"
 
+    @staticmethod
+    def put(record, **fields):
+        """Write fields straight to a stored row, past the Python guard of core.locking, as a fixture shortcut
+        (an assembly released without its welds inspected). The database triggers still apply: only a legal state
+        move, or a change to a row that is not frozen, gets through."""
+        from django.db import models
+
+        for name, value in fields.items():
+            setattr(record, name, value)
+        models.Model.save(record, update_fields=list(fields))
+        return record
+
     def make_user(self, role, username=None, **kwargs):
         username = username or f"{role}-{next(_counter)}"
         user = User(username=username, role=role, first_name=kwargs.pop("first_name", role.replace("_", " ").title()),

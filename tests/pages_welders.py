@@ -15,6 +15,7 @@ PAGES = {
     "procedures:welder_list": (lambda make: {}, ALL_OK),
     "procedures:welder_create": (lambda make: {}, only("welding_engineer")),
     "procedures:welder_detail": (_welder, ALL_OK),
+    "procedures:welder_edit": (_welder, only("welding_engineer")),
     "procedures:qualification_create": (_welder, only("welding_engineer")),
     "procedures:continuity_create": (_welder, only("qa_lead")),
     "procedures:welder_deactivate": (_welder, only("welding_engineer")),

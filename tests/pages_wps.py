@@ -31,6 +31,7 @@ PAGES = {
     "procedures:pqr_list": (lambda make: {}, ALL_OK),
     "procedures:pqr_detail": (_pqr, ALL_OK),
     "procedures:pqr_create": (lambda make: {}, only("welding_engineer")),
+    "procedures:pqr_edit": (_pqr, only("welding_engineer")),
 }
 
 # POST-only: a GET answers 405 (before the role check, so the matrix asks as the QA lead).

@@ -4,6 +4,7 @@ import pytest
 from django.urls import reverse
 
 from procedures.models.wps import WPSState
+from tests.factory import L
 
 
 @pytest.fixture
@@ -37,8 +38,9 @@ def test_a_welder_test_record_is_read_only_in_the_admin(admin_client_, make):
 
 def test_a_pqr_behind_an_approved_wps_is_read_only_in_the_admin(admin_client_, make):
     pqr = make.make_pqr()
-    wps = make.make_wps(state=WPSState.APPROVED)
+    wps = make.make_wps()
     wps.pqrs.add(pqr)
+    make.move_wps(wps, WPSState.APPROVED)
     assert admin_client_.post(reverse("admin:procedures_pqr_change", args=[pqr.pk]), {}).status_code == 403
 
 
@@ -46,3 +48,61 @@ def test_a_pqr_behind_an_approved_wps_is_read_only_in_the_admin(admin_client_, m
                                    "procedures_continuityentry", "inspections_photo"])
 def test_signed_records_and_history_cannot_be_added_in_the_admin(admin_client_, model):
     assert admin_client_.get(reverse(f"admin:{model}_add")).status_code == 403
+
+
+# --- every frozen record, and the bulk delete action -------------------------------------------------------
+
+FROZEN = ["approved WPS", "signed inspection", "photo", "dispositioned NCR", "issued traveler", "done packet",
+          "released assembly", "weld of a released assembly", "final-inspected weld (who, when)", "history row",
+          "client criteria set"]
+
+
+@pytest.mark.parametrize("case", FROZEN)
+def test_a_superuser_cannot_change_or_delete_a_frozen_record_in_the_admin(admin_client_, make, case):
+    from tests.test_record_locks import CASES, _stored
+
+    build, field, value = CASES[case]
+    record = build(make)
+    info = (record._meta.app_label, record._meta.model_name)
+    before = _stored(record, field)
+    change = reverse("admin:{}_{}_change".format(*info), args=[record.pk])
+    assert admin_client_.post(change, {field: str(value)}).status_code == 403
+    delete = reverse("admin:{}_{}_delete".format(*info), args=[record.pk])
+    assert admin_client_.post(delete, {"post": "yes"}).status_code == 403
+    assert _stored(record, field) == before
+
+
+def test_the_bulk_delete_action_refuses_a_frozen_row(admin_client_, make):
+    from inspections.models import Assembly
+    from tests.test_record_locks import _released
+
+    released, open_one = _released(make), make.make_assembly()
+    response = admin_client_.post(reverse("admin:inspections_assembly_changelist"), {
+        "action": "delete_selected", "_selected_action": [released.pk, open_one.pk], "post": "yes"})
+    # The admin asks each row's permission first and refuses the whole action, naming what it may not delete.
+    assert response.status_code == 200 and "Cannot delete assemblies" in response.text
+    assert Assembly.objects.filter(pk__in=[released.pk, open_one.pk]).count() == 2
+
+
+def test_a_welders_stamp_on_record_is_refused_beside_the_field_in_the_admin(admin_client_, make):
+    from tests.test_stale_saves import form_data
+
+    welder = make.make_welder(stamp="B-31")
+    make.make_qualification(welder=welder)
+    url = reverse("admin:procedures_welder_change", args=[welder.pk])
+    data = form_data(admin_client_.get(url).context["adminform"].form)
+    response = admin_client_.post(url, {**data, "stamp": "B-32"})
+    assert response.status_code == 200
+    assert "cannot change" in " ".join(response.context["adminform"].form.errors["stamp"])
+    welder.refresh_from_db()
+    assert welder.stamp == "B-31"
+
+
+def test_an_inspected_welds_size_cannot_be_changed_in_the_admin(admin_client_, make):
+    from tests.test_record_locks import _inspected_weld
+
+    weld = _inspected_weld(make)
+    url = reverse("admin:inspections_weld_change", args=[weld.pk])
+    assert admin_client_.post(url, {"size": "1"}).status_code == 403
+    weld.refresh_from_db()
+    assert weld.size == L("1/4 in")

@@ -10,6 +10,7 @@ from decimal import Decimal
 
 import pytest
 from django.template import Context, Template
+from django.utils import timezone
 
 from core.units import parse_force, significant
 from inspections import strength
@@ -21,6 +22,7 @@ from inspections.services.capacity import (
     length_arg,
     normalize,
 )
+from inspections.services.ncr import disposition_use_as_is
 from tests.factory import L
 
 pytestmark = pytest.mark.django_db
@@ -221,9 +223,10 @@ def test_the_ncr_card_shows_the_stored_calculation_when_there_is_one(make):
         pytest.skip("signing a rejected inspection does not open an NCR in this tree")
     live = capacity_cards(ncr=ncr)[0]
     assert live["kind"] == "as_inspected" and not live.get("stored")
-    stored = capacity_for_inspection(_inspection(inspection.pk))
-    NCR.objects.filter(pk=ncr.pk).update(capacity_calculation=stored)
+    disposition_use_as_is(ncr, make.make_user("qa_lead"), "M. Ferreira, PE", timezone.localdate())
     ncr.refresh_from_db()
+    stored = ncr.capacity_calculation
+    assert stored == capacity_for_inspection(_inspection(inspection.pk))
     card = capacity_cards(ncr=ncr)[0]
     assert card["stored"] is True and card["results"] == stored["results"]
 

@@ -111,8 +111,9 @@ def test_a_wps_whose_pqrs_do_not_support_it_cannot_be_submitted_or_approved(make
     wps.pqrs.add(make.make_pqr())
     with pytest.raises(Refused, match="PQR-.* \\(3F\\) qualifies V"):
         steps.submit(wps, users["welding_engineer"])
-    submitted = make.make_wps(state=WPSState.SUBMITTED, via_steps=False, basis="test")
+    submitted = make.make_wps(basis="test")
     submitted.pqrs.add(make.make_pqr())
+    make.put(submitted, state=WPSState.SUBMITTED)  # submitted before its PQRs were checked
     with pytest.raises(Refused, match="Cannot approve"):
         steps.approve(submitted, users["qa_lead"])
     supported = make.make_tested_wps(state=WPSState.APPROVED)  # the same PQR, a WPS inside it

@@ -165,10 +165,8 @@ def test_an_si_job_is_judged_in_millimetres(make):
 
 
 def test_a_released_assembly_takes_no_more_inspections(make):
-    from inspections.models import Assembly
-
     weld = make.make_weld()
-    Assembly.objects.filter(pk=weld.assembly_id).update(state=AssemblyState.RELEASED)  # fixture shortcut
+    make.put(weld.assembly, state=AssemblyState.RELEASED)  # fixture shortcut
     with pytest.raises(Refused, match="released"):
         make.make_inspection(weld)
     assert Inspection.objects.count() == 0

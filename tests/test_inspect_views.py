@@ -205,8 +205,8 @@ def test_the_inspection_page_uses_a_fixed_number_of_queries(make, client_as, dja
         make.make_photo(inspection)
     client = client_as("inspector")
     client.get(inspection.get_absolute_url())
-    # session, user, inspection (+ weld, assembly, job, people, neighbours), later link, photos, NCRs
-    with django_assert_num_queries(6):
+    # session, user, inspection (+ weld, assembly, job, people, neighbours), later link, photos, NCRs, history
+    with django_assert_num_queries(7):
         client.get(inspection.get_absolute_url())
 
 

@@ -97,9 +97,9 @@ def test_scrap(make, weld, users, django_assert_num_queries):
 # Savepoints count as queries on both databases (each transition is its own atomic block inside the signing).
 # A seal (core.seals) costs 4: the record read back, the chain head locked, the seal inserted, the head moved on;
 # a signing that seals also locks the chain first (1), in its own atomic block where it was not one (2).
-SIGN_ACCEPTED = 16  # lock chain, weld; read state, insert, seal, point the weld, refresh (state, facts), savepoints
-SIGN_REJECTED = 27  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
+SIGN_ACCEPTED = 17  # lock chain, weld; state; insert + history row; seal; point the weld; refresh; savepoints
+SIGN_REJECTED = 28  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
 REPAIR = 20  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh
-SIGN_CLOSING_REPAIR = 30  # an accepted signing + the waiting NCR closed (transition, seal) + the assembly's move back
+SIGN_CLOSING_REPAIR = 31  # an accepted signing + the waiting NCR closed (transition, seal) + the assembly's move back
 USE_AS_IS = 26  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals; refresh
 SCRAP = 25  # the NCR with its records; chain, its transition and two seals; the assembly's transition to scrapped

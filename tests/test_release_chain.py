@@ -7,6 +7,7 @@ listed, with no override.
 """
 
 from datetime import date, timedelta
+from unittest import mock
 
 import pytest
 from django.db import connection
@@ -33,11 +34,19 @@ def assembly(make):
     return make.make_assembly(piece_mark="B40")
 
 
-def sound(make, assembly, **kwargs):
-    """A weld whose whole chain holds: sound (factory) and accepted at final visual."""
+def sound(make, assembly, before_inspection=None, **kwargs):
+    """A weld whose whole chain holds: sound (factory) and accepted at final visual. before_inspection(weld)
+    breaks one link first, while the weld map may still change (core.locking freezes it at its final visual)."""
     weld = make.make_sound_weld(assembly=assembly, **kwargs)
+    if before_inspection is not None:
+        before_inspection(weld)
     make.make_inspection(weld, accepted=True)
     return weld
+
+
+def days_ago(days):
+    """Steps taken inside this block happen `days` ago (their approval and withdrawal times)."""
+    return mock.patch("django.utils.timezone.now", return_value=timezone.now() - timedelta(days=days))
 
 
 def only_blocker(assembly):
@@ -81,16 +90,15 @@ def test_control_a_repaired_weld_whose_repair_holds_is_released(make, users, ass
 # --- the WPS link ---------------------------------------------------------------------------------------------
 
 def test_a_weld_without_a_date_blocks(make, users, assembly):
-    weld = sound(make, assembly, mark="W1")
-    type(weld).objects.filter(pk=weld.pk).update(welded_on=None)
+    weld = sound(make, assembly, mark="W1",
+                 before_inspection=lambda w: type(w).objects.filter(pk=w.pk).update(welded_on=None))
     blocker = only_blocker(assembly)
     assert blocker.startswith("Weld W1: no weld date is recorded") and blocker.url.endswith(f"/welds/{weld.pk}/edit/")
     refused(assembly, users["qa_lead"])
 
 
 def test_a_weld_without_a_wps_blocks(make, users, assembly):
-    weld = sound(make, assembly, mark="W1")
-    type(weld).objects.filter(pk=weld.pk).update(wps=None)
+    sound(make, assembly, mark="W1", before_inspection=lambda w: type(w).objects.filter(pk=w.pk).update(wps=None))
     assert only_blocker(assembly) == "Weld W1: no WPS is named."
     refused(assembly, users["qa_lead"])
 
@@ -112,21 +120,21 @@ def test_a_wps_approved_after_the_weld_date_blocks(make, users, assembly):
 
 
 def test_a_wps_withdrawn_before_the_weld_date_blocks(make, users, assembly):
-    wps = make.make_wps(state=WPSState.APPROVED)
-    WPS.objects.filter(pk=wps.pk).update(approved_at=timezone.now() - timedelta(days=10))
-    wps_steps.withdraw(WPS.objects.get(pk=wps.pk), users["qa_lead"], "No longer stocked")
-    WPS.objects.filter(pk=wps.pk).update(withdrawn_at=timezone.now() - timedelta(days=1))
+    with days_ago(10):
+        wps = make.make_wps(state=WPSState.APPROVED)
+    with days_ago(1):
+        wps_steps.withdraw(WPS.objects.get(pk=wps.pk), users["qa_lead"], "No longer stocked")
     sound(make, assembly, mark="W1", wps=WPS.objects.get(pk=wps.pk))
     assert "was withdrawn on" in only_blocker(assembly)
     refused(assembly, users["qa_lead"])
 
 
 def test_a_wps_superseded_before_the_weld_date_blocks(make, users, assembly):
-    old = make.make_wps(state=WPSState.APPROVED)
-    new = wps_steps.approve(wps_steps.submit(wps_steps.new_revision(old, users["welding_engineer"]),
-                                             users["welding_engineer"]), users["qa_lead"])
-    WPS.objects.filter(pk=new.pk).update(approved_at=timezone.now() - timedelta(days=1))
-    WPS.objects.filter(pk=old.pk).update(approved_at=timezone.now() - timedelta(days=5))
+    with days_ago(5):
+        old = make.make_wps(state=WPSState.APPROVED)
+    with days_ago(1):
+        wps_steps.approve(wps_steps.submit(wps_steps.new_revision(old, users["welding_engineer"]),
+                                           users["welding_engineer"]), users["qa_lead"])
     sound(make, assembly, mark="W1", wps=WPS.objects.get(pk=old.pk))
     assert "was superseded by revision 1 on" in only_blocker(assembly)
     refused(assembly, users["qa_lead"])
@@ -155,8 +163,7 @@ def test_a_wps_of_another_unit_system_blocks_on_this_job(make, users):
 # --- the welder link ------------------------------------------------------------------------------------------
 
 def test_a_weld_without_a_welder_blocks(make, users, assembly):
-    weld = sound(make, assembly, mark="W1")
-    weld.welders.clear()
+    sound(make, assembly, mark="W1", before_inspection=lambda w: w.welders.clear())
     assert only_blocker(assembly) == "Weld W1: no welder is recorded."
     refused(assembly, users["qa_lead"])
 

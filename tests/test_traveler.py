@@ -15,6 +15,7 @@ from core.errors import RecordLocked
 from core.units import parse_length
 from inspections import traveler as traveler_module
 from inspections.models import Traveler
+from inspections.services.welds import revise
 from inspections.traveler import assembly_url, fingerprint, gather, issue, read_stored
 from tests.pages_travelers import build_assembly
 
@@ -81,7 +82,8 @@ def test_a_change_after_issue_makes_the_next_issue_a_new_revision(make, users):
     assembly = build_assembly(make, welds=2)
     first, _ = issue(assembly, users["qa_lead"])
     weld = assembly.welds.order_by("mark").last()
-    type(weld).objects.filter(pk=weld.pk).update(size=parse_length("5/16 in"))
+    weld.size = parse_length("5/16 in")
+    revise(weld, users["qa_lead"], "Drawing E-204 rev 3: 5/16 leg")
     second, created = issue(assembly, users["qa_lead"])
     assert created and (first.revision, second.revision) == (0, 1)
     assert second.document_number.endswith("-R1") and second.sha256 != first.sha256
@@ -162,7 +164,8 @@ def test_welder_qualification_is_judged_on_the_weld_date(make, users):
     welder = snapshot["welds"][0]["welders"][0]
     assert welder["allowed"] is True
     weld = assembly.welds.get()
-    type(weld).objects.filter(pk=weld.pk).update(welded_on=None)
+    weld.welded_on = None
+    revise(weld, users["qa_lead"], "The weld date was not known")
     welder = gather(assembly.pk)["welds"][0]["welders"][0]
     assert welder["allowed"] is None  # undated: not judged on "today", which would change by itself
     assert any("no weld date" in item for item in gather(assembly.pk)["open_items"])

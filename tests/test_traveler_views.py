@@ -7,6 +7,7 @@ from django.urls import reverse
 
 from inspections import packets
 from inspections.models import JobPacket, PacketState, Traveler
+from inspections.services.welds import revise
 from tests.pages_travelers import build_assembly
 
 pytestmark = pytest.mark.pdf
@@ -27,7 +28,9 @@ def test_the_qa_lead_issues_from_the_page_and_both_revisions_are_listed(make, cl
     assert first.sha256 in page and "Nothing has changed" in page
     client.post(reverse("inspections:traveler_issue", args=[assembly.pk]))
     assert Traveler.objects.count() == 1  # no change, no new revision
-    assembly.welds.update(count=2)
+    weld = assembly.welds.get()
+    weld.count = 2
+    revise(weld, make.make_user("qa_lead"), "Drawing revised: two of this weld")
     client.post(reverse("inspections:traveler_issue", args=[assembly.pk]))
     page = client.get(reverse("inspections:traveler_list", args=[assembly.pk])).content.decode()
     assert [t.revision for t in assembly.travelers.all()] == [1, 0]

@@ -6,6 +6,7 @@ tablet card each ask them.
 """
 
 from datetime import timedelta
+from unittest import mock
 
 import pytest
 from django.urls import reverse
@@ -70,8 +71,9 @@ def test_an_si_wps_is_refused_on_a_us_job(client_as, make, assembly):
 
 
 def test_a_withdrawn_wps_is_not_offered_and_refused_if_posted(client_as, make, assembly):
-    wps = make.make_wps(state=WPSState.WITHDRAWN)
-    WPS.objects.filter(pk=wps.pk).update(withdrawn_at=timezone.now() - timedelta(days=1))
+    yesterday = timezone.now() - timedelta(days=1)
+    with mock.patch("django.utils.timezone.now", return_value=yesterday):  # approved and withdrawn yesterday
+        wps = make.make_wps(state=WPSState.WITHDRAWN)
     client = client_as("welding_engineer")
     page = client.get(reverse("inspections:weld_create", args=[assembly.pk]))
     assert wps.pk not in [pk for _, group in page.context["form"].fields["wps"].choices[1:] for pk, _ in group]

@@ -78,8 +78,8 @@ def test_it_refuses_a_weld_mark_the_assembly_already_has(job, make):
     assert [r.line for r in preview.bad_rows] == [3] and "already has weld W2" in preview.bad_rows[0].errors[0]
 
 
-def test_it_refuses_a_released_assemblys_weld_map(job):
-    job.assemblies.filter(piece_mark="C2").update(state="released")
+def test_it_refuses_a_released_assemblys_weld_map(job, make):
+    make.put(job.assemblies.get(piece_mark="C2"), state="released")
     preview = read_weld_map(GOOD.encode(), job)
     assert [r.line for r in preview.bad_rows] == [4]
 

@@ -4,10 +4,9 @@ import io
 
 import pytest
 from django.urls import reverse
-from django.utils import timezone
 from pypdf import PdfReader
 
-from procedures.models.wps import WPS, WPSState
+from procedures.models.wps import WPSState
 from procedures.services import wps as wps_steps
 from tests.factory import L
 
@@ -35,11 +34,10 @@ def test_a_draft_prints_on_one_page_marked_not_approved(client_as, make):
 
 
 def test_an_approved_wps_prints_its_approver_variables_and_pqrs(client_as, make, users):
-    pqr = make.make_pqr(number="PQR-9001")
-    wps = make.make_wps(number="BSW-802", basis="test", thickness_max=L("1-1/2 in"))
-    wps.pqrs.add(pqr)
-    WPS.objects.filter(pk=wps.pk).update(state=WPSState.APPROVED, approved_by=users["qa_lead"],
-                                         approved_at=timezone.now())
+    wps = make.make_tested_wps(number="BSW-802", pqr=make.make_pqr(number="PQR-9001"),
+                               thickness_max=L("1-1/2 in"))
+    wps_steps.submit(wps, users["welding_engineer"])
+    wps_steps.approve(wps, users["qa_lead"])
     reader, text = _pdf(client_as("qa_lead"), wps)
     assert len(reader.pages) == 1
     assert "NOT APPROVED" not in text

@@ -6,6 +6,7 @@ from django.urls import reverse
 from core.history import history_of
 from core.models import Event
 from procedures.models.wps import WPS, WPSState
+from procedures.services import wps as wps_steps
 from tests.factory import L
 
 VALID = {
@@ -63,8 +64,9 @@ def test_the_list_filters_by_state_process_electrode_and_base_metal(client_as, m
 def test_the_list_runs_a_fixed_number_of_queries(client_as, make, django_assert_num_queries, rows):
     approver = make.make_user("qa_lead")
     for _ in range(rows):
-        wps = make.make_wps(state=WPSState.APPROVED)
-        WPS.objects.filter(pk=wps.pk).update(approved_by=approver)
+        wps = make.make_wps()
+        wps_steps.submit(wps, make.make_user("welding_engineer"))
+        wps_steps.approve(wps, approver)
     client = client_as("viewer")
     # session, user, count, page of rows (approver joined), distinct electrodes
     with django_assert_num_queries(5):
@@ -175,7 +177,7 @@ def test_bad_input_is_refused_beside_its_field_and_saves_nothing(client_as, fiel
     errors = response.context["form"].errors
     assert field in errors, errors
     assert message.lower() in " ".join(errors[field]).lower()
-    assert not WPS.objects.exists() and not Event.objects.exists()
+    assert not WPS.objects.exists() and not Event.objects.filter(subject_type__model="wps").exists()
 
 
 def test_the_electrode_message_says_which_part_is_wrong(client_as):
@@ -194,7 +196,7 @@ def test_a_number_in_use_is_refused(client_as, make):
 def test_the_engineer_edits_a_draft(client_as, make):
     wps = make.make_wps(number="BSW-501")
     response = _post(client_as("welding_engineer"), reverse("procedures:wps_edit", args=[wps.pk]),
-                     title="Edited title")
+                     title="Edited title", opened_version=wps.version)
     assert response.status_code == 302
     wps.refresh_from_db()
     assert wps.title == "Edited title"
@@ -214,12 +216,12 @@ def test_a_record_past_draft_cannot_be_edited_by_form(client_as, make, state):
     client = client_as("welding_engineer")
     url = reverse("procedures:wps_edit", args=[wps.pk])
     assert client.get(url).status_code == 302
-    response = _post(client, url, title="Changed")
-    assert response.status_code == 302 and response.url == wps.get_absolute_url()
+    response = _post(client, url, title="Changed", opened_version=wps.version)  # a crafted post
+    assert response.status_code == 409
+    assert "cannot be changed" in " ".join(response.context["form"].non_field_errors())
+    assert response.context["form"]["title"].value() == "Changed"  # the input stays on the page
     wps.refresh_from_db()
     assert wps.title != "Changed"
-    messages = [str(m) for m in client.get(wps.get_absolute_url()).context["messages"]]
-    assert any("cannot be changed" in m for m in messages)
 
 
 def test_an_approved_wps_cannot_be_changed_in_the_admin(client, make):
@@ -316,7 +318,7 @@ def test_approving_a_wps_with_an_error_finding_through_the_page_changes_nothing(
     response = client.post(reverse("procedures:wps_approve", args=[wps.pk]), follow=True)
     assert "Cannot approve" in response.content.decode()
     wps.refresh_from_db()
-    assert wps.state == WPSState.SUBMITTED and not history_of(wps).exists()
+    assert wps.state == WPSState.SUBMITTED and not history_of(wps).filter(action="state").exists()
 
 
 def test_a_new_revision_opens_its_draft_and_approval_supersedes(client_as, make):
@@ -324,7 +326,8 @@ def test_a_new_revision_opens_its_draft_and_approval_supersedes(client_as, make)
     response = client_as("welding_engineer").post(reverse("procedures:wps_new_revision", args=[old.pk]))
     new = WPS.objects.get(number="BSW-501", revision=1)
     assert response.url == reverse("procedures:wps_edit", args=[new.pk])
-    _post(client_as("welding_engineer"), response.url, number="IGNORED", amperage_max="210")
+    _post(client_as("welding_engineer"), response.url, number="IGNORED", amperage_max="210",
+          opened_version=new.version)
     new.refresh_from_db()
     assert new.number == "BSW-501" and new.amperage_max == 210
     client_as("welding_engineer").post(reverse("procedures:wps_submit", args=[new.pk]))

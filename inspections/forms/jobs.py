@@ -4,6 +4,7 @@ from django import forms
 from django.utils import timezone
 
 from core.fields import LengthFormField, set_unit_system
+from core.forms import VersionedModelForm
 from core.vocabulary import WELD_PROCESS_CHOICES
 from inspections.models import Assembly, ClientCriteriaSet, Job, Weld
 from inspections.services import chain
@@ -25,7 +26,7 @@ def criteria_choices():
     return [("Published sets", builtin)] + ([("Client sets", client)] if client else [])
 
 
-class JobForm(forms.ModelForm):
+class JobForm(VersionedModelForm):
     criteria = forms.ChoiceField(label="Criteria set", help_text="The acceptance criteria every inspection on this "
                                  "job is judged by; verdicts keep the set and version they were judged by.")
 
@@ -55,7 +56,7 @@ class JobForm(forms.ModelForm):
         return super().save(commit)
 
 
-class AssemblyForm(forms.ModelForm):
+class AssemblyForm(VersionedModelForm):
     class Meta:
         model = Assembly
         fields = ["piece_mark", "drawing", "drawing_revision", "quantity", "description"]
@@ -133,8 +134,12 @@ class WeldSpecForm(forms.ModelForm):
         return data
 
 
-class WeldForm(WeldSpecForm):
-    """The whole weld: drawing data, engineering data and who welded it to which WPS."""
+class WeldForm(VersionedModelForm, WeldSpecForm):
+    """The whole weld: drawing data, engineering data and who welded it to which WPS.
+
+    spec_locked: the drawing data shows but does not change (inspected, or a role that records production only);
+    production_locked: nothing changes (final-inspected: only a revision changes it).
+    """
 
     welded_on = forms.DateField(label="Date welded", required=False,
                                 widget=forms.DateInput(attrs={"type": "date"}))
@@ -144,7 +149,7 @@ class WeldForm(WeldSpecForm):
         widgets = {"welders": forms.CheckboxSelectMultiple}
         labels = {**WeldSpecForm.Meta.labels, "wps": "WPS", "load_angle": "Load angle to weld axis (degrees)"}
 
-    def __init__(self, *args, spec_locked=False, **kwargs):
+    def __init__(self, *args, spec_locked=False, production_locked=False, **kwargs):
         super().__init__(*args, **kwargs)
         self.fields["wps"].queryset = WPS.objects.order_by("number", "-revision")
         self.fields["wps"].choices = wps_choices(self.instance, self.assembly.job,
@@ -158,6 +163,9 @@ class WeldForm(WeldSpecForm):
         self.fields["load_angle"].max_value = 90
         if spec_locked:  # inspected, or the user may record production only: the drawing data stays as it is
             for name in SPEC_FIELDS + EXTRA_SPEC_FIELDS:
+                self.fields[name].disabled = True
+        if production_locked:
+            for name in PRODUCTION_FIELDS:
                 self.fields[name].disabled = True
 
     def clean_welded_on(self):
@@ -214,6 +222,19 @@ def wps_choices(weld, job, day):
             usable.append((wps.pk, label))
     heading = "Approved, covering this weld" if complete else "Approved"
     return [("", "---------"), (heading, usable), ("Refused for this weld", other)]
+
+
+class WeldRevisionForm(WeldForm):
+    """A revision of an inspected weld: every field, and why (kept in the weld's history)."""
+
+    reason = forms.CharField(label="Reason for the revision", max_length=500, widget=forms.Textarea(attrs={"rows": 2}),
+                             help_text="e.g. Drawing E-204 rev 3 enlarged the leg to 5/16. Kept in the weld's history.")
+
+    def clean_reason(self):
+        reason = self.cleaned_data["reason"].strip()
+        if not reason:
+            raise forms.ValidationError("Say why the weld is revised.", code="required")
+        return reason
 
 
 class PieceMarkSearchForm(forms.Form):

@@ -5,10 +5,10 @@ from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from core.errors import RecordLocked
+from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock
 
 
-class ClientCriteriaSet(models.Model):
+class ClientCriteriaSet(Guarded):
     key = models.SlugField(max_length=60, help_text="e.g. acme-bridge-static")
     version = models.PositiveIntegerField(default=1)
     title = models.CharField(max_length=120)
@@ -19,20 +19,17 @@ class ClientCriteriaSet(models.Model):
     created_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
     created_at = models.DateTimeField(default=timezone.now)
 
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("client criteria set", frozen=ALWAYS, name=("key", " v", "version"),
+                advice="verdicts name it; derive a new version.")
+
     class Meta:
         ordering = ["key", "-version"]
         constraints = [models.UniqueConstraint(fields=["key", "version"], name="client_criteria_key_version")]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.title} ({self.key} v{self.version})"
-
-    def save(self, *args, **kwargs):
-        if self.pk and not self._state.adding:
-            raise RecordLocked("A client criteria set is never edited; derive a new version.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise RecordLocked("A client criteria set cannot be deleted: verdicts name it.")
 
     def get_absolute_url(self):
         return reverse("inspections:criteria_client_detail", args=[self.pk])

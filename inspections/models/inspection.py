@@ -8,6 +8,7 @@ from django.utils import timezone
 
 from core.errors import RecordLocked
 from core.fields import LengthField
+from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock, sql_text
 
 
 class InspectionStage(models.TextChoices):
@@ -16,18 +17,39 @@ class InspectionStage(models.TextChoices):
     FINAL = "final", "Final visual"
 
 
-class InspectionQuerySet(models.QuerySet):
-    """Reads only: a signed inspection is changed by no path, bulk updates and deletes included."""
+class InspectionQuerySet(GuardedQuerySet):
+    """A signed inspection is changed by no path, bulk updates and deletes included (core.locking)."""
 
     def current(self):
         """Inspections that no later inspection supersedes."""
         return self.filter(~Exists(Inspection.objects.filter(supersedes=OuterRef("pk"))))
 
-    def update(self, **kwargs):
-        raise RecordLocked("Signed inspections cannot be changed; record a correction that supersedes one.")
 
-    def delete(self):
-        raise RecordLocked("Signed inspections cannot be deleted; record a correction that supersedes one.")
+def _closed_sql(weld_column_sql):
+    """SQL: the assembly of the weld whose id is given is released or scrapped."""
+    return ('((SELECT a."state" FROM "inspections_weld" w JOIN "inspections_assembly" a ON a."id" = w."assembly_id" '
+            f'WHERE w."id" = {weld_column_sql}) IN ({sql_text("released")}, {sql_text("scrapped")}))')
+
+
+class InspectionLock(Lock):
+    def sql_insert_refused(self):
+        return _closed_sql('NEW."weld_id"')
+
+
+class PhotoLock(Lock):
+    """A photo belongs to its signed inspection: never changed or deleted, never added once the assembly is closed."""
+
+    def check_insert(self, record):
+        from inspections.models.jobs import AssemblyState
+
+        state = (Inspection.objects.filter(pk=record.inspection_id)
+                 .values_list("weld__assembly__state", flat=True).first())
+        if state in (AssemblyState.RELEASED, AssemblyState.SCRAPPED):
+            raise RecordLocked(f"The assembly is {AssemblyState(state).label.lower()}: its inspections take no more "
+                               "photos.")
+
+    def sql_insert_refused(self):
+        return _closed_sql('(SELECT i."weld_id" FROM "inspections_inspection" i WHERE i."id" = NEW."inspection_id")')
 
 
 # Observation fields, named as inspections.acceptance.evaluate reads them.
@@ -37,7 +59,7 @@ COUNT_OBSERVATIONS = ["pores_per_4in"]
 FLAG_OBSERVATIONS = ["crack", "incomplete_fusion", "unfilled_crater", "overlap", "arc_strike"]
 
 
-class Inspection(models.Model):
+class Inspection(Guarded):
     weld = models.ForeignKey("inspections.Weld", on_delete=models.PROTECT, related_name="inspections")
     stage = models.CharField(max_length=12, choices=InspectionStage.choices, default=InspectionStage.FINAL)
     inspector = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="inspections")
@@ -72,21 +94,15 @@ class Inspection(models.Model):
     criteria_version = models.PositiveIntegerField(editable=False)
 
     objects = InspectionQuerySet.as_manager()
+    lock = InspectionLock("inspection", frozen=ALWAYS, advice="record a correction that supersedes it.")
 
     class Meta:
         ordering = ["-inspected_at", "-pk"]
         indexes = [models.Index(fields=["weld", "-inspected_at"])]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.weld} {self.get_stage_display()} {self.inspected_at:%Y-%m-%d}"
-
-    def save(self, *args, **kwargs):
-        if self.pk is not None and not self._state.adding:
-            raise RecordLocked("A signed inspection cannot be changed; record a correction that supersedes it.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise RecordLocked("A signed inspection cannot be deleted; record a correction that supersedes it.")
 
     def get_absolute_url(self):
         return reverse("inspections:inspection_detail", args=[self.pk])
@@ -112,15 +128,7 @@ def photo_path(photo, filename):
     return f"photos/{timezone.now():%Y/%m}/{photo.inspection_id}-{filename}"
 
 
-class PhotoQuerySet(models.QuerySet):
-    def update(self, **kwargs):
-        raise RecordLocked("A photo attached to a signed inspection cannot be changed.")
-
-    def delete(self):
-        raise RecordLocked("A photo attached to a signed inspection cannot be deleted.")
-
-
-class Photo(models.Model):
+class Photo(Guarded):
     """A photo of a weld, cleaned on upload (orientation applied, metadata stripped); served through a view.
 
     Attached to a signed inspection and, like it, never changed or deleted.
@@ -137,18 +145,13 @@ class Photo(models.Model):
     uploaded_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
     uploaded_at = models.DateTimeField(default=timezone.now)
 
-    objects = PhotoQuerySet.as_manager()
+    objects = GuardedQuerySet.as_manager()
+    lock = PhotoLock("photo", frozen=ALWAYS, name=("id",),
+                     advice="it belongs to a signed inspection; attach another photo to a correction.")
 
     class Meta:
         ordering = ["uploaded_at", "pk"]
+        base_manager_name = "objects"
 
     def __str__(self):
         return self.caption or f"Photo {self.pk}"
-
-    def save(self, *args, **kwargs):
-        if self.pk is not None and not self._state.adding:
-            raise RecordLocked("A photo attached to a signed inspection cannot be changed.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise RecordLocked("A photo attached to a signed inspection cannot be deleted.")

@@ -2,14 +2,17 @@
 
 from django.conf import settings
 from django.db import models
+from django.db.models import Q
 from django.urls import reverse
 from django.utils import timezone
 
+from core.errors import RecordLocked
 from core.fields import ForceField, LengthField
+from core.locking import Guarded, GuardedQuerySet, Lock, Move, sql_text
 from core.vocabulary import WELD_POSITION_CHOICES, WELD_PROCESS_CHOICES, JointType, Position, UnitSystem
 
 
-class Job(models.Model):
+class Job(Guarded):
     number = models.CharField(max_length=30, unique=True)
     name = models.CharField(max_length=120)
     customer = models.CharField(max_length=120)
@@ -25,9 +28,14 @@ class Job(models.Model):
         help_text="Every weld needs an accepted fit-up inspection before the assembly is released",
     )
     created_at = models.DateTimeField(default=timezone.now, editable=False)
+    version = models.PositiveIntegerField(default=1, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("job", name=("number",))
 
     class Meta:
         ordering = ["-number"]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.number} {self.name}"
@@ -83,7 +91,14 @@ class AssemblyState(models.TextChoices):
     SCRAPPED = "scrapped", "Scrapped"
 
 
-class Assembly(models.Model):
+CLOSED_STATES = (AssemblyState.RELEASED, AssemblyState.SCRAPPED)
+OPEN_STATES = (AssemblyState.IN_FABRICATION, AssemblyState.AWAITING_INSPECTION, AssemblyState.REJECTED)
+
+
+class Assembly(Guarded):
+    """A piece mark of a job with its weld map. Edited in place (by version) until released or scrapped; its state
+    moves only by its steps (inspections.services.assemblies)."""
+
     job = models.ForeignKey(Job, on_delete=models.PROTECT, related_name="assemblies")
     piece_mark = models.CharField(max_length=30)
     drawing = models.CharField(max_length=40)
@@ -95,11 +110,25 @@ class Assembly(models.Model):
     released_by = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, blank=True, on_delete=models.PROTECT,
                                     related_name="+", editable=False)
     released_at = models.DateTimeField(null=True, blank=True, editable=False)
+    version = models.PositiveIntegerField(default=1, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock(
+        "assembly", state="state", frozen=CLOSED_STATES, name=("piece_mark",),
+        advice="a problem found after release is a new record (an NCR), not a change to the released one.",
+        moves=[Move(AssemblyState.IN_FABRICATION, AssemblyState.AWAITING_INSPECTION),
+               Move(AssemblyState.IN_FABRICATION, AssemblyState.REJECTED),
+               Move(AssemblyState.AWAITING_INSPECTION, AssemblyState.REJECTED),
+               Move(AssemblyState.REJECTED, AssemblyState.AWAITING_INSPECTION),
+               *(Move(state, AssemblyState.RELEASED, ("released_by", "released_at")) for state in OPEN_STATES),
+               *(Move(state, AssemblyState.SCRAPPED) for state in (*OPEN_STATES, AssemblyState.RELEASED))],
+    )
 
     class Meta:
         ordering = ["job", "piece_mark"]
         verbose_name_plural = "assemblies"
         constraints = [models.UniqueConstraint(fields=["job", "piece_mark"], name="piece_mark_unique_in_job")]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.piece_mark} ({self.job.number})"
@@ -110,7 +139,10 @@ class Assembly(models.Model):
     @property
     def is_closed(self):
         """Released or scrapped: the weld map is frozen."""
-        return self.state in (AssemblyState.RELEASED, AssemblyState.SCRAPPED)
+        return self.state in CLOSED_STATES
+
+    def history_system(self):
+        return self.job.unit_system
 
 
 class Sides(models.TextChoices):
@@ -119,8 +151,120 @@ class Sides(models.TextChoices):
     BOTH = "both", "Both sides"
 
 
-class Weld(models.Model):
-    """A line of the weld map: what the drawing asks for, who welded it, to which WPS."""
+# Who welded it, when, to which WPS (and the welders, a many-to-many link): recorded after fit-up, frozen at the
+# first final visual inspection. Everything else a weld holds is the drawing's data, frozen at its first inspection.
+PRODUCTION_FIELDS = ("wps", "welded_on")
+WELD_POINTERS = ("latest_inspection", "latest_final")
+
+
+def _closed_sql(row):
+    states = ", ".join(sql_text(s) for s in CLOSED_STATES)
+    return f'((SELECT a."state" FROM "inspections_assembly" a WHERE a."id" = {row}."assembly_id") IN ({states}))'
+
+
+class WeldLock(Lock):
+    """A weld's drawing data freezes at its first inspection; who welded it, when and to which WPS at its first
+    final visual inspection; everything once its assembly is released or scrapped. After that, only a revision
+    (inspections.services.welds.revise: a step with a reason) changes it, and sends it back for inspection.
+    sign_inspection sets the pointers to the latest inspections (bookkeeping, free while the assembly is open)."""
+
+    steps_only = ("revision", "revised_at")
+    related = ("assembly__job",)
+    lock_of = ("self", "assembly")  # a release waits for a weld being saved, and the reverse
+
+    def frozen_row(self, stored):
+        return self.changeable(stored) is not None
+
+    def changeable(self, stored):
+        if stored.assembly.state in CLOSED_STATES:
+            return frozenset()
+        if stored.latest_inspection_id is None:
+            return None
+        return self.free | (frozenset(PRODUCTION_FIELDS) if stored.latest_final_id is None else frozenset())
+
+    def check_change(self, stored, changed):
+        stepped = [n for n in changed if n in self.step_fields]
+        allowed = self.changeable(stored)
+        refused = [n for n in changed if allowed is not None and n not in allowed]
+        if stepped or refused:
+            raise RecordLocked(self.refusal(stored, "changed", refused or stepped))
+
+    def m2m_frozen(self, stored, name):
+        return stored.assembly.state in CLOSED_STATES or stored.latest_final_id is not None
+
+    def refusing(self, names):
+        if names & self.step_fields:
+            return super().refusing(names)
+        closed = Q(assembly__state__in=CLOSED_STATES)
+        if names <= self.free:
+            return None  # sign_inspection, the one writer of the pointers, checks the assembly under its lock
+        if names <= self.free | set(PRODUCTION_FIELDS):
+            return closed | Q(latest_final__isnull=False)
+        return closed | Q(latest_inspection__isnull=False)
+
+    def undeletable(self):
+        return Q(assembly__state__in=CLOSED_STATES) | Q(latest_inspection__isnull=False)
+
+    def check_insert(self, record):
+        state = Assembly.objects.filter(pk=record.assembly_id).values_list("state", flat=True).first()
+        if state in CLOSED_STATES:
+            raise RecordLocked(f"Assembly {record.assembly.piece_mark} is {AssemblyState(state).label.lower()}: its "
+                               "weld map is frozen.")
+
+    def refusal(self, stored, doing="changed", fields=()):
+        if stored is None:
+            return super().refusal(stored, doing)
+        if stored.assembly.state in CLOSED_STATES:
+            return (f"Weld {stored.mark} of {stored.assembly.piece_mark} cannot be {doing}: the assembly is "
+                    f"{stored.assembly.get_state_display().lower()} and its weld map is frozen.")
+        if doing == "deleted":
+            return f"Weld {stored.mark} of {stored.assembly.piece_mark} has been inspected and cannot be deleted."
+        if set(fields) & self.step_fields:
+            return f"Weld {stored.mark}: its revision changes only by the revision step, with a reason."
+        what = self._labels(fields) if fields else "its data"
+        when = "its final visual inspection" if stored.latest_final_id else "its first inspection"
+        return (f"Weld {stored.mark} of {stored.assembly.piece_mark}: {what} cannot be changed after {when}. "
+                "Revise the weld instead (with a reason): it then goes back for inspection.")
+
+    # the database triggers
+
+    def sql_frozen(self):
+        return f'(OLD."latest_inspection_id" IS NOT NULL OR {_closed_sql("OLD")})'
+
+    def sql_allowances(self):
+        free = self.columns(sorted(self.free)) + ("version",)
+        production = self.columns(PRODUCTION_FIELDS)
+        fixed = {"id", "assembly_id"}
+        everything = tuple(f.column for f in self.model._meta.concrete_fields if f.column not in fixed)
+        still_open = f"NOT {_closed_sql('OLD')}"
+        return [
+            (still_open, free),
+            (f'{still_open} AND OLD."latest_final_id" IS NULL', free + production),
+            # The revision step: the revision number moves on by one and the weld goes back for inspection.
+            (f'{still_open} AND NEW."revision" = OLD."revision" + 1 AND NEW."latest_inspection_id" IS NULL '
+             'AND NEW."latest_final_id" IS NULL', everything),
+        ]
+
+    def sql_state_moves(self):
+        return None
+
+    def sql_insert_refused(self):
+        return _closed_sql("NEW")
+
+    def sql_m2m_frozen(self, name):
+        return f'(p."latest_final_id" IS NOT NULL OR {_closed_sql("p")})'
+
+    def sql_words(self, doing="changed"):
+        if doing == "changed":
+            return ("cannot be changed after its inspection, or once its assembly is released, except by a "
+                    "revision that sends it back for inspection (a database rule of Legwork)")
+        if doing == "added":
+            return "cannot be added to a released or scrapped assembly (a database rule of Legwork)"
+        return "cannot be deleted once inspected or released (a database rule of Legwork)"
+
+
+class Weld(Guarded):
+    """A line of the weld map: what the drawing asks for, who welded it, to which WPS (see WeldLock)."""
 
     assembly = models.ForeignKey(Assembly, on_delete=models.PROTECT, related_name="welds")
     mark = models.CharField("weld mark", max_length=20)
@@ -152,10 +296,18 @@ class Weld(models.Model):
                                           on_delete=models.PROTECT, related_name="+")
     latest_final = models.ForeignKey("inspections.Inspection", null=True, blank=True, editable=False,
                                      on_delete=models.PROTECT, related_name="+")
+    revision = models.PositiveIntegerField(default=0, editable=False,
+                                           help_text="Moved on by each revision after inspection (with its reason)")
+    revised_at = models.DateTimeField(null=True, blank=True, editable=False)
+    version = models.PositiveIntegerField(default=1, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = WeldLock("weld", free=WELD_POINTERS, name=("mark", " (id ", "id", ")"))
 
     class Meta:
         ordering = ["assembly", "mark"]
         constraints = [models.UniqueConstraint(fields=["assembly", "mark"], name="weld_mark_unique_in_assembly")]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.assembly.piece_mark} / {self.mark}"
@@ -168,6 +320,13 @@ class Weld(models.Model):
         return {"label": label or f"Weld {self.mark}", "joint": self.joint_type, "position": self.position,
                 "thicknesses": [t for t in (self.thickness1, self.thickness2) if t is not None],
                 "size": self.size, "size2": self.size2, "process": self.process or None}
+    def history_system(self):
+        return self.assembly.job.unit_system
+
+    @property
+    def inspected(self) -> bool:
+        """Inspected since its last revision: its drawing data is frozen."""
+        return self.latest_inspection_id is not None
 
     @property
     def thinner_part(self):

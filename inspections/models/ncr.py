@@ -6,7 +6,7 @@ from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from core.errors import RecordLocked
+from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock, Move
 
 
 class NCRState(models.TextChoices):
@@ -21,7 +21,13 @@ class Disposition(models.TextChoices):
     SCRAP = "scrap", "Scrap"
 
 
-class NCR(models.Model):
+DISPOSITION_FIELDS = ("disposition", "disposition_notes", "repair_wps", "repair_welder", "engineer_name",
+                      "engineer_approved_on", "capacity_calculation", "dispositioned_by", "dispositioned_at")
+
+
+class NCR(Guarded):
+    """Signed when raised: changed by no edit, only by its steps (inspections.services.ncr), never deleted."""
+
     number = models.CharField(max_length=30, unique=True)
     weld = models.ForeignKey("inspections.Weld", on_delete=models.PROTECT, related_name="ncrs")
     inspection = models.ForeignKey("inspections.Inspection", on_delete=models.PROTECT, related_name="ncrs",
@@ -49,22 +55,23 @@ class NCR(models.Model):
                                              on_delete=models.PROTECT, related_name="+")
     closed_at = models.DateTimeField(null=True, blank=True)
 
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock(
+        "NCR", state="state", frozen=ALWAYS, name=("number",),
+        advice="it moves on only by its disposition steps, and is closed, never deleted.",
+        moves=[Move(NCRState.OPEN, NCRState.DISPOSITIONED, DISPOSITION_FIELDS),
+               Move(NCRState.OPEN, NCRState.CLOSED, (*DISPOSITION_FIELDS, "closed_at")),
+               Move(NCRState.DISPOSITIONED, NCRState.CLOSED, ("closed_by_inspection", "closed_at"))],
+    )
+
     class Meta:
         ordering = ["-raised_at", "-pk"]
         verbose_name = "NCR"
         verbose_name_plural = "NCRs"
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"NCR {self.number}"
-
-    def save(self, *args, **kwargs):
-        # Only the named steps in inspections.services.ncr move an NCR on (core.transitions, past this guard).
-        if self.pk and not self._state.adding:
-            raise RecordLocked(f"{self} is a signed record; use its disposition steps, not an edit.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise RecordLocked(f"{self} cannot be deleted; close it with a disposition.")
 
     def get_absolute_url(self):
         return reverse("inspections:ncr_detail", args=[self.pk])

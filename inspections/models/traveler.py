@@ -11,7 +11,7 @@ from django.db import models
 from django.urls import reverse
 from django.utils import timezone
 
-from core.errors import RecordLocked
+from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock, Move
 
 
 def traveler_path(traveler, filename):
@@ -22,15 +22,7 @@ def packet_path(packet, filename):
     return f"packets/{timezone.now():%Y/%m}/{filename}"
 
 
-class TravelerQuerySet(models.QuerySet):
-    def update(self, **kwargs):
-        raise RecordLocked("An issued traveler cannot be changed; issue a new revision.")
-
-    def delete(self):
-        raise RecordLocked("An issued traveler cannot be deleted: customers hold copies of it.")
-
-
-class Traveler(models.Model):
+class Traveler(Guarded):
     """One issued revision of an assembly's traveler: the PDF, its hash, and the data it was made from."""
 
     assembly = models.ForeignKey("inspections.Assembly", on_delete=models.PROTECT, related_name="travelers")
@@ -48,22 +40,17 @@ class Traveler(models.Model):
     generated_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
     snapshot = models.JSONField(help_text="Everything the PDF shows, as gathered when it was issued")
 
-    objects = TravelerQuerySet.as_manager()
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("traveler", frozen=ALWAYS, name=("document_number",),
+                advice="customers hold copies of it; issue a new revision.")
 
     class Meta:
         ordering = ["assembly", "-revision"]
         constraints = [models.UniqueConstraint(fields=["assembly", "revision"], name="traveler_revision_unique")]
+        base_manager_name = "objects"
 
     def __str__(self):
         return self.document_number
-
-    def save(self, *args, **kwargs):
-        if self.pk is not None and not self._state.adding:
-            raise RecordLocked("An issued traveler cannot be changed; issue a new revision.")
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        raise RecordLocked("An issued traveler cannot be deleted: customers hold copies of it.")
 
     def get_absolute_url(self):
         return reverse("inspections:traveler_download", args=[self.pk])
@@ -80,8 +67,11 @@ class PacketState(models.TextChoices):
     FAILED = "failed", "Failed"
 
 
-class JobPacket(models.Model):
-    """A job's packet: cover, index, each assembly's issued traveler, the WPSs and welder summaries, open items."""
+class JobPacket(Guarded):
+    """A job's packet: cover, index, each assembly's issued traveler, the WPSs and welder summaries, open items.
+
+    Built by its steps (inspections.packets); once done or failed it never changes (the worker's task id aside).
+    """
 
     job = models.ForeignKey("inspections.Job", on_delete=models.PROTECT, related_name="packets")
     document_number = models.CharField(max_length=80, unique=True)
@@ -103,8 +93,18 @@ class JobPacket(models.Model):
     started_at = models.DateTimeField(null=True, blank=True, editable=False)
     finished_at = models.DateTimeField(null=True, blank=True, editable=False)
 
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock(
+        "packet", state="state", frozen=(PacketState.DONE, PacketState.FAILED), name=("document_number",),
+        free=("task_id",), advice="build a new packet.",
+        moves=[Move(PacketState.QUEUED, PacketState.RUNNING),
+               Move(PacketState.RUNNING, PacketState.DONE), Move(PacketState.QUEUED, PacketState.FAILED),
+               Move(PacketState.RUNNING, PacketState.FAILED)],
+    )
+
     class Meta:
         ordering = ["-requested_at", "-pk"]
+        base_manager_name = "objects"
 
     def __str__(self):
         return self.document_number

@@ -8,6 +8,7 @@ inspection, open NCRs closed by an accepted one, the assembly's state refreshed.
 
 
 from django.db import transaction
+from django.db.models import F
 
 from core import seals
 from core.errors import Refused
@@ -137,6 +138,9 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
             raise Refused("That inspection has already been corrected; correct the latest one instead.")
         if not reason.strip():
             raise Refused("Say why the inspection is being corrected.")
+        if weld.revised_at is not None and supersedes.inspected_at <= weld.revised_at:
+            raise Refused(f"Weld {weld.mark} was revised after that inspection: inspect it again instead of "
+                          "correcting an inspection of its earlier data.")
     verdict = judge(weld, observed, stage)
     key, version = weld.assembly.job.criteria_identity()
     values = observed_for_engine(observed)
@@ -145,7 +149,7 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
         remarks=remarks, accepted=verdict.accepted, findings=findings_json(verdict, verdict.system),
         criteria_key=key, criteria_version=version, **values,
     )
-    inspection.save()
+    inspection.save(user=user)
     seals.seal(inspection, "inspection.signed")
     _point_weld_at(weld, inspection)
     if stage == InspectionStage.FINAL:
@@ -170,7 +174,8 @@ def _point_weld_at(weld: Weld, inspection: Inspection) -> None:
             Weld.objects.filter(pk=weld.pk).values_list("latest_final_id", flat=True).get()):
         fields["latest_final"] = (Inspection.objects.current().filter(weld=weld, stage=InspectionStage.FINAL)
                                   .order_by("-inspected_at", "-pk").first())
-    Weld.objects.filter(pk=weld.pk).update(**fields)
+    # The version moves on too: a weld form opened before the inspection is stale (and the weld now frozen).
+    Weld.objects.filter(pk=weld.pk).update(**fields, version=F("version") + 1)
     for name, value in fields.items():
         setattr(weld, name, value)
 

@@ -14,7 +14,7 @@ from datetime import date
 from django.db import transaction
 from django.utils import timezone
 
-from core import history, seals
+from core import seals
 from core.errors import Refused
 from core.roles import require
 from core.transitions import transition
@@ -47,9 +47,9 @@ def open_ncr(inspection, user, description):
         if existing is not None:
             return existing
         job = inspection.weld.assembly.job
-        ncr = NCR.objects.create(number=_next_number(job), weld=inspection.weld, inspection=inspection,
-                                 description=description, raised_by=user)
-        history.record(ncr, user, history.CREATED, to_state=ncr.state, reason=description)
+        ncr = NCR(number=_next_number(job), weld=inspection.weld, inspection=inspection, description=description,
+                  raised_by=user)
+        ncr.save(user=user, reason=description)  # its created row in the history, with the description
     return ncr
 
 

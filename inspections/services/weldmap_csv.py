@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from django.db import IntegrityError, transaction
 from django.utils import timezone
 
+from core import history
 from core.errors import Refused
 from core.fields import LengthFormField
 from core.vocabulary import WELD_PROCESS_CHOICES
@@ -203,8 +204,11 @@ def read_weld_map(data: bytes, job) -> Preview:
     return preview
 
 
-def import_weld_map(data: bytes, job) -> list:
-    """Read the file again and write every weld, or none: raises Refused with the preview's errors."""
+def import_weld_map(data: bytes, job, user=None) -> list:
+    """Read the file again and write every weld, or none: raises Refused with the preview's errors.
+
+    Each weld gets its created row in the history (the import named as the reason), `user` the importer.
+    """
     with transaction.atomic():
         preview = read_weld_map(data, job)
         if not preview.ok:
@@ -212,10 +216,12 @@ def import_weld_map(data: bytes, job) -> list:
             raise Refused(problems or ["Nothing to import."], code="invalid")
         welds = [Weld(assembly=row.assembly, wps=row.wps, process=row.process, **row.cleaned) for row in preview.rows]
         try:
-            Weld.objects.bulk_create(welds)
-        except IntegrityError:  # someone added the same mark meanwhile
-            raise Refused("A weld mark in the file was added by someone else meanwhile; preview it again.",
-                              code="race") from None
+            with transaction.atomic():
+                Weld.objects.bulk_create(welds)
+        except IntegrityError:  # someone added the same mark meanwhile (or released the assembly: the trigger)
+            raise Refused("A weld mark in the file was added by someone else meanwhile, or its assembly was "
+                          "released; preview it again.", code="race") from None
+        history.record_many(welds, user, history.CREATED, reason=f"Weld map imported ({len(welds)} welds)")
     return welds
 
 

@@ -7,6 +7,7 @@ from django.http import Http404
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_http_methods, require_safe
 
+from core import history
 from core.roles import role_required
 from inspections import criteria as criteria_sets
 from inspections.criteria.base import Banded, Count, Fixed, Permission, Proportional, Ratio, Threshold
@@ -65,7 +66,7 @@ def criteria_client_detail(request, pk):
     stored = get_object_or_404(ClientCriteriaSet.objects.select_related("created_by"), pk=pk)
     cset = stored.criteria_set()
     return render(request, "inspections/criteria_detail.html",
-                  {"cset": cset, "stored": stored, "rows": _limit_rows(cset)})
+                  {"cset": cset, "stored": stored, "rows": _limit_rows(cset), "history": history.panel(stored)})
 
 
 def _base(choice):
@@ -102,7 +103,7 @@ def criteria_derive(request):
                                            base_key=base.key, definition=derived.to_dict(),
                                            signed_by_engineer=engineer if derived.loosened else "",
                                            created_by=request.user)
-                stored.save()
+                stored.save(user=request.user, reason=f"Derived from {base.key}")
         except ValueError as exc:
             _place_error(form, str(exc))
         except IntegrityError:

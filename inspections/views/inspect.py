@@ -12,8 +12,8 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
-from core import seals
-from core.errors import Refused
+from core import history, seals
+from core.errors import RecordLocked, Refused
 from core.roles import can, role_required
 from core.vocabulary import JointType
 from inspections.forms.inspect import CorrectionForm, FindAssemblyForm, InspectionForm, PhotoForm
@@ -151,9 +151,11 @@ def inspection_detail(request, pk):
 
 def _detail_page(request, inspection, photo_form, status=200):
     earlier, later = _chain(inspection)
+    photos = list(inspection.photos.all())
     return render(request, "inspections/inspection_detail.html", {
         "inspection": inspection, "weld": inspection.weld, "assembly": inspection.weld.assembly,
-        "job": inspection.weld.assembly.job, "photos": list(inspection.photos.all()),
+        "job": inspection.weld.assembly.job, "photos": photos,
+        "history": history.panel(inspection, *photos), "history_mixed": bool(photos),
         "ncrs": list(inspection.ncrs.all()), "earlier": earlier, "later": later,
         "is_current": not later, "photo_form": photo_form,
         "capacities": (capacity_cards(inspection=inspection)
@@ -218,14 +220,21 @@ def photo_add(request, pk):
         return _detail_page(request, inspection, form, status=400)
     clean = form.photo
     stem = f"{inspection.pk}-{clean.sha256[:16]}"
-    with seals.sealing():  # a photo is evidence: sealed with the stored files' SHA-256 (core.seals)
-        photo = Photo.objects.create(
-            inspection=inspection, caption=form.cleaned_data["caption"], width=clean.width, height=clean.height,
-            content_type=clean.content_type, sha256=clean.sha256, uploaded_by=request.user,
-            image=ContentFile(clean.content, name=f"{stem}.{clean.extension}"),
-            thumbnail=ContentFile(clean.thumbnail, name=f"{stem}-thumb.jpg"),
-        )
-        seals.seal(photo, "photo.attached")
+    photo = Photo(
+        inspection=inspection, caption=form.cleaned_data["caption"], width=clean.width, height=clean.height,
+        content_type=clean.content_type, sha256=clean.sha256, uploaded_by=request.user,
+        image=ContentFile(clean.content, name=f"{stem}.{clean.extension}"),
+        thumbnail=ContentFile(clean.thumbnail, name=f"{stem}-thumb.jpg"),
+    )
+    try:
+        # A photo is evidence: sealed with the stored files' SHA-256 (core.seals); refused once the assembly is
+        # released or scrapped (core.locking).
+        with seals.sealing():
+            photo.save(user=request.user)
+            seals.seal(photo, "photo.attached")
+    except RecordLocked as exc:
+        form.add_error(None, exc.messages)
+        return _detail_page(request, inspection, form, status=409)
     messages.success(request, "Photo attached.")
     return redirect(reverse("inspections:inspection_detail", args=[inspection.pk]) + "#photos")
 

@@ -11,8 +11,8 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
-from core.errors import Refused
-from core.history import history_of
+from core import history
+from core.errors import Refused, Stale
 from core.roles import can, role_required
 from core.units import format_length
 from core.vocabulary import JointType
@@ -23,11 +23,14 @@ from inspections.forms.jobs import (
     StepForm,
     WeldForm,
     WeldMapUploadForm,
+    WeldRevisionForm,
+    add_step_errors,
 )
 from inspections.models import Assembly, Job, Weld
 from inspections.models.ncr import NCRState
 from inspections.services import assemblies as steps
 from inspections.services import chain, weldmap_csv
+from inspections.services import welds as weld_steps
 from inspections.services.capacity import capacity_cards
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
@@ -54,6 +57,20 @@ def job_create(request):
     return render(request, "inspections/job_form.html", {"form": form})
 
 
+@role_required("job.manage")
+@require_http_methods(["GET", "POST"])
+def job_edit(request, pk):
+    job = get_object_or_404(Job.objects.select_related("client_criteria"), pk=pk)
+    form = JobForm(request.POST or None, instance=job)
+    status = 200
+    if request.method == "POST" and form.is_valid():
+        if form.save_or_explain() is not None:  # by version: a save by someone else meanwhile refuses this one
+            messages.success(request, f"Job {job.number} saved.")
+            return redirect(job)
+        status = 409
+    return render(request, "inspections/job_form.html", {"form": form, "job": job}, status=status)
+
+
 @require_safe
 def job_detail(request, pk):
     job = get_object_or_404(Job.objects.select_related("client_criteria"), pk=pk)
@@ -64,7 +81,8 @@ def job_detail(request, pk):
     if query:
         assemblies = assemblies.filter(piece_mark__icontains=query)
     return render(request, "inspections/job_detail.html",
-                  {"job": job, "assemblies": assemblies, "search": search, "query": query})
+                  {"job": job, "assemblies": assemblies, "search": search, "query": query,
+                   "history": history.panel(job)})
 
 
 @require_safe
@@ -93,6 +111,25 @@ def assembly_create(request, pk):
         messages.success(request, f"Assembly {assembly.piece_mark} added.")
         return redirect(assembly)
     return render(request, "inspections/assembly_form.html", {"form": form, "job": job})
+
+
+@role_required("job.manage")
+@require_http_methods(["GET", "POST"])
+def assembly_edit(request, pk):
+    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    if request.method == "GET" and assembly.is_closed:
+        messages.error(request, f"{assembly.piece_mark} is {assembly.get_state_display().lower()} and cannot be "
+                                "changed.")
+        return redirect(assembly)
+    form = AssemblyForm(request.POST or None, job=assembly.job, instance=assembly)
+    status = 200
+    if request.method == "POST" and form.is_valid():
+        if form.save_or_explain() is not None:  # by version; refused once released (core.locking)
+            messages.success(request, f"Assembly {assembly.piece_mark} saved.")
+            return redirect(assembly)
+        status = 409
+    return render(request, "inspections/assembly_form.html", {"form": form, "job": assembly.job,
+                                                              "assembly": assembly}, status=status)
 
 
 @dataclass
@@ -136,7 +173,7 @@ def _assembly_page(request, assembly, release_errors=None, status=200):
         "assembly": assembly, "job": assembly.job, "rows": rows, "blockers": blockers,
         "blocker_count": len(blockers),
         "release_errors": release_errors, "open_ncrs": open_ncrs, "step_form": StepForm(),
-        "history": list(history_of(assembly).reverse()[:20]),
+        "history": history.panel(assembly, limit=20),
         "can_submit": assembly.state == "in_fabrication" and can(request.user, "assembly.submit"),
     }
     return render(request, "inspections/assembly_detail.html", context, status=status)
@@ -175,10 +212,11 @@ def assembly_release(request, pk):
 
 # --- welds ------------------------------------------------------------------------------------------------
 
-def _save_weld(request, form):
+def _save_weld(form):
+    """The weld as saved, its welders' continuity in step; None with the refusal on the form (stale or frozen)."""
     with transaction.atomic():
-        weld = form.save()
-        if "welders" in form.changed_data or "welded_on" in form.changed_data or "wps" in form.changed_data:
+        weld = form.save_or_explain()
+        if weld is not None and {"welders", "welded_on", "wps"} & set(form.changed_data):
             steps.record_production(weld)
     return weld
 
@@ -191,32 +229,80 @@ def weld_create(request, pk):
         raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
                                "frozen.")
     form = WeldForm(request.POST or None, assembly=assembly, instance=Weld(assembly=assembly))
+    status = 200
     if request.method == "POST" and form.is_valid():
-        weld = _save_weld(request, form)
-        messages.success(request, f"Weld {weld.mark} added to {assembly.piece_mark}.")
-        return redirect(assembly)
+        weld = _save_weld(form)
+        if weld is not None:
+            messages.success(request, f"Weld {weld.mark} added to {assembly.piece_mark}.")
+            return redirect(assembly)
+        status = 409
     return render(request, "inspections/weld_form.html", {"form": form, "assembly": assembly, "weld": None,
-                                                           "check": _check_context(assembly, form.instance)})
+                                                           "check": _check_context(assembly, form.instance)},
+                  status=status)
+
+
+def _frozen_map(assembly):
+    if assembly.is_closed:
+        raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
+                               "frozen.")
 
 
 @require_http_methods(["GET", "POST"])
 @role_required("job.manage", "weld.record")
 def weld_edit(request, pk):
+    """Edit a weld: all of it before its first inspection; who welded it, when and to which WPS until its final
+    visual inspection; after that only a revision (weld_revise) changes it."""
     weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
     assembly = weld.assembly
-    if assembly.is_closed:
-        raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
-                               "frozen.")
-    inspected = weld.inspections.exists()
+    _frozen_map(assembly)
+    if request.method == "GET" and weld.latest_final_id is not None:
+        messages.info(request, f"Weld {weld.mark} has had its final visual inspection: it changes only by a "
+                               "revision, with a reason, which sends it back for inspection.")
+        return redirect("inspections:weld_revise" if can(request.user, "job.manage") else "inspections:weld_detail",
+                        pk=weld.pk)
+    inspected = weld.inspected
     locked = inspected or not can(request.user, "job.manage")
     form = WeldForm(request.POST or None, assembly=assembly, instance=weld, spec_locked=locked)
+    status = 200
     if request.method == "POST" and form.is_valid():
-        _save_weld(request, form)
-        messages.success(request, f"Weld {weld.mark} saved.")
-        return redirect(assembly)
+        if _save_weld(form) is not None:
+            messages.success(request, f"Weld {weld.mark} saved.")
+            return redirect(assembly)
+        status = 409
     return render(request, "inspections/weld_form.html", {
         "form": form, "assembly": assembly, "weld": weld, "inspected": inspected, "locked": locked,
-        "check": _check_context(assembly, weld)})
+        "check": _check_context(assembly, weld)}, status=status)
+
+
+@require_http_methods(["GET", "POST"])
+@role_required("job.manage")
+def weld_revise(request, pk):
+    """Revise an inspected weld (inspections.services.welds.revise): any of its data, with a reason; it goes back
+    for inspection."""
+    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
+    assembly = weld.assembly
+    _frozen_map(assembly)
+    if request.method == "GET" and not weld.inspected:
+        messages.info(request, f"Weld {weld.mark} has not been inspected since its last revision: edit it.")
+        return redirect("inspections:weld_edit", pk=weld.pk)
+    form = WeldRevisionForm(request.POST or None, assembly=assembly, instance=weld)
+    status = 200
+    if request.method == "POST" and form.is_valid():
+        try:
+            weld_steps.revise(form.instance, request.user, form.cleaned_data["reason"],
+                              welders=list(form.cleaned_data["welders"]))
+        except Stale as exc:
+            form.explain_stale(exc)
+        except Refused as exc:
+            add_step_errors(form, exc)
+        else:
+            messages.success(request, f"Weld {weld.mark} revised (revision {form.instance.revision}): inspect it "
+                                      "again before release.")
+            return redirect("inspections:weld_detail", pk=weld.pk)
+        status = 409
+    return render(request, "inspections/weld_form.html", {
+        "form": form, "assembly": assembly, "weld": weld, "revising": True,
+        "check": _check_context(assembly, weld)}, status=status)
 
 
 @require_safe
@@ -227,9 +313,11 @@ def weld_detail(request, pk):
     return render(request, "inspections/weld_detail.html", {
         "weld": weld, "assembly": weld.assembly, "row": row, "inspections": inspections,
         "ncrs": weld.ncrs.order_by("-raised_at"),
+        "history": history.panel(weld),
         "capacities": capacity_cards(weld=weld) if weld.joint_type == JointType.FILLET else [],
-        "may_edit": not weld.assembly.is_closed and (can(request.user, "job.manage")
-                                                     or can(request.user, "weld.record")),
+        "may_edit": not weld.assembly.is_closed and weld.latest_final_id is None and (
+            can(request.user, "job.manage") or can(request.user, "weld.record")),
+        "may_revise": not weld.assembly.is_closed and weld.inspected and can(request.user, "job.manage"),
     })
 
 
@@ -292,7 +380,7 @@ def weldmap_import(request, pk):
         csv_text = request.POST.get("csv_text", "")
         data = csv_text.encode("utf-8")
         try:
-            welds = weldmap_csv.import_weld_map(data, job)
+            welds = weldmap_csv.import_weld_map(data, job, request.user)
         except Refused:
             preview = weldmap_csv.read_weld_map(data, job)
             return render(request, "inspections/job_weldmap_import.html",

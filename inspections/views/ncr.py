@@ -6,8 +6,8 @@ from django.http import Http404
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
+from core import history
 from core.errors import Refused
-from core.history import history_of
 from core.roles import role_required
 from core.vocabulary import JointType
 from inspections.forms.jobs import RepairForm, RepairRecordForm, ScrapForm, UseAsIsForm, add_step_errors
@@ -43,7 +43,7 @@ def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
         "may_record_repair": repair_steps.may_record(request.user),
         "repair_form": repair_form or (RepairRecordForm(ncr=ncr) if awaiting_repair else None),
         "ncr": ncr, "weld": ncr.weld, "assembly": ncr.weld.assembly, "job": ncr.weld.assembly.job,
-        "history": list(history_of(ncr)),
+        "history": history.panel(ncr),
         "capacities": capacity_cards(ncr=ncr) if ncr.weld.joint_type == JointType.FILLET else [],
         "forms": {kind: forms.get(kind) or cls(prefix=kind) for kind, cls in FORMS.items()},
         "findings": [f for f in (ncr.inspection.findings or []) if isinstance(f, dict) and not f.get("ok", True)],

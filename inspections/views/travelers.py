@@ -10,6 +10,7 @@ from django.http import FileResponse, Http404, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
+from core import history
 from core.errors import Refused
 from core.roles import can, role_required
 from inspections import packets
@@ -40,7 +41,8 @@ def traveler_list(request, pk):
         # Only the person who can issue needs to know whether issuing would make a new revision.
         changed = latest is None or latest.snapshot_sha256 != travelers.fingerprint(travelers.gather(assembly.pk))
     return render(request, "inspections/traveler_list.html", {
-        "assembly": assembly, "job": assembly.job, "revisions": revisions, "latest": latest, "changed": changed})
+        "assembly": assembly, "job": assembly.job, "revisions": revisions, "latest": latest, "changed": changed,
+        "history": history.panel(*revisions)})
 
 
 @role_required("traveler.issue")
@@ -114,7 +116,8 @@ def _packet(pk):
 
 @require_safe
 def packet_detail(request, pk):
-    return render(request, "inspections/packet_detail.html", {"packet": _packet(pk)})
+    packet = _packet(pk)
+    return render(request, "inspections/packet_detail.html", {"packet": packet, "history": history.panel(packet)})
 
 
 @require_safe

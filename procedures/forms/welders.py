@@ -15,6 +15,7 @@ from django.utils import timezone
 
 from core import units
 from core.fields import LengthFormField, set_unit_system
+from core.forms import VersionedModelForm
 from core.vocabulary import Backing, JointType, Position, Process, Progression, UnitSystem
 from procedures import qualification as engine
 from procedures.electrodes import decode
@@ -39,7 +40,7 @@ def _not_after_today(day, what):
     return day
 
 
-class WelderForm(forms.ModelForm):
+class WelderForm(VersionedModelForm):
     class Meta:
         model = Welder
         fields = ["name", "stamp", "employer"]

@@ -14,6 +14,7 @@ from django.core.exceptions import ValidationError
 
 from core import units
 from core.fields import set_unit_system
+from core.forms import VersionedModelForm
 from core.vocabulary import JointType, Position, Process, UnitSystem
 from procedures.electrodes import decode
 from procedures.models.wps import PQR, WPS
@@ -66,7 +67,7 @@ def clean_classification(text):
         raise ValidationError(str(exc), code="electrode") from None
 
 
-class WPSForm(forms.ModelForm):
+class WPSForm(VersionedModelForm):
     positions = forms.MultipleChoiceField(choices=Position.choices, widget=forms.CheckboxSelectMultiple,
                                           help_text="Positions this procedure is written for")
     joint_types = forms.MultipleChoiceField(choices=JointType.choices, widget=forms.CheckboxSelectMultiple,
@@ -150,6 +151,7 @@ def _wps_layout():
     helper = FormHelper()
     helper.form_tag = False
     helper.disable_csrf = True
+    helper.render_hidden_fields = True  # the version the page was opened at (core.forms)
 
     def pair(*names, size=6):
         return Row(*(Column(Field(name), css_class=f"col-md-{size}") for name in names))
@@ -176,7 +178,7 @@ def _wps_layout():
     return helper
 
 
-class PQRForm(forms.ModelForm):
+class PQRForm(VersionedModelForm):
     class Meta:
         model = PQR
         fields = [
@@ -196,6 +198,7 @@ class PQRForm(forms.ModelForm):
         helper = FormHelper()
         helper.form_tag = False
         helper.disable_csrf = True
+        helper.render_hidden_fields = True
 
         def row(*names):
             return Row(*(Column(name, css_class=f"col-md-{12 // len(names)}") for name in names))

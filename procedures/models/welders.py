@@ -8,24 +8,80 @@ import hashlib
 
 from django.conf import settings
 from django.db import models
+from django.db.models import Q
 from django.urls import reverse
 from django.utils import timezone
 
+from core.errors import RecordLocked
 from core.fields import LengthField
+from core.locking import Guarded, GuardedQuerySet, Lock
 from core.vocabulary import Backing, JointType, Process, Progression, UnitSystem
 from procedures.models.wps import Transfer
 
 
-class Welder(models.Model):
+class WelderLock(Lock):
+    """A welder is edited in place, by version; the stamp, once a test record, a continuity entry or a weld bears
+    it, stays: those records print it. Active or not changes only by its steps (procedures.services.welders)."""
+
+    steps_only = ("active",)
+    on_record = Q(qualifications__isnull=False) | Q(continuity__isnull=False) | Q(welds__isnull=False)
+
+    def check_change(self, stored, changed):
+        super().check_change(stored, changed)
+        if "stamp" in changed and self.referenced(stored):
+            raise RecordLocked({"stamp": [f"{stored}'s stamp is on test records or welds and cannot change; "
+                                          "add the welder again under the new stamp if the shop reissued it."]})
+
+    def referenced(self, stored):
+        return (stored.qualifications.exists() or stored.continuity.exists()
+                or stored.welds.exists())
+
+    def refusing(self, names):
+        if names & self.step_fields:
+            return super().refusing(names)
+        if "stamp" in names:
+            return self.on_record
+        return None
+
+    def undeletable(self):
+        return self.on_record
+
+    def sql_frozen(self):
+        return ('(EXISTS (SELECT 1 FROM "procedures_qualification" q WHERE q."welder_id" = OLD."id") '
+                'OR EXISTS (SELECT 1 FROM "procedures_continuityentry" c WHERE c."welder_id" = OLD."id") '
+                'OR EXISTS (SELECT 1 FROM "inspections_weld_welders" w WHERE w."welder_id" = OLD."id"))')
+
+    def sql_allowances(self):
+        # A welder on record: everything but the stamp may change (name, employer, the active steps).
+        return [("1 = 1", tuple(c for c in self.model_columns() if c != "stamp"))]
+
+    def model_columns(self):
+        return [f.column for f in self.model._meta.concrete_fields]
+
+    def sql_undeletable(self):
+        return self.sql_frozen()
+
+    def sql_words(self, doing="changed"):
+        if doing == "changed":
+            return "stamp cannot change once test records or welds bear it (a database rule of Legwork)"
+        return super().sql_words(doing)
+
+
+class Welder(Guarded):
     name = models.CharField(max_length=120)
     stamp = models.CharField("identification stamp", max_length=20, unique=True)
     employer = models.CharField(max_length=120)
     active = models.BooleanField(default=True)
     deactivated_at = models.DateTimeField(null=True, blank=True, editable=False)
     deactivation_reason = models.CharField(max_length=200, blank=True, editable=False)
+    version = models.PositiveIntegerField(default=1, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = WelderLock("welder", name=("stamp",), advice="test records, continuity or welds name this welder.")
 
     class Meta:
         ordering = ["stamp"]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.stamp} {self.name}"
@@ -39,7 +95,7 @@ class QualificationCode(models.TextChoices):
     ISO = "ISO 9606-1:2012", "ISO 9606-1:2012"
 
 
-class Qualification(models.Model):
+class Qualification(Guarded):
     """A welder qualification test record (WPQ): the facts of the test; ranges are derived."""
 
     class Result(models.TextChoices):
@@ -82,8 +138,12 @@ class Qualification(models.Model):
                                     editable=False)
     recorded_at = models.DateTimeField(default=timezone.now, editable=False)
 
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("welder test record")
+
     class Meta:
         ordering = ["welder", "-test_date"]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"{self.welder.stamp} {self.process} {self.test_position} {self.test_date:%Y-%m-%d}"
@@ -99,7 +159,7 @@ class Qualification(models.Model):
         super().save(*args, **kwargs)
 
 
-class ContinuityEntry(models.Model):
+class ContinuityEntry(Guarded):
     """Proof that a welder used a process on a date: from a production weld, or entered by hand."""
 
     class Source(models.TextChoices):
@@ -120,8 +180,12 @@ class ContinuityEntry(models.Model):
                                    related_name="+")
     entered_at = models.DateTimeField(default=timezone.now, editable=False)
 
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("continuity entry")
+
     class Meta:
         ordering = ["welder", "-date"]
+        base_manager_name = "objects"
         verbose_name_plural = "continuity entries"
         constraints = [
             models.UniqueConstraint(fields=["welder", "weld", "process"], condition=models.Q(weld__isnull=False),

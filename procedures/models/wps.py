@@ -7,12 +7,13 @@ new row) that supersedes it when approved.
 
 from django.conf import settings
 from django.db import models
+from django.db.models import Q
 from django.urls import reverse
 from django.utils import timezone
 
 from core import units
-from core.errors import RecordLocked
 from core.fields import FlowField, LengthField, SpeedField, TemperatureField
+from core.locking import Guarded, GuardedQuerySet, Lock, Move
 from core.vocabulary import Backing, Current, JointType, Process, Progression, UnitSystem, split_codes
 from procedures import heat_input as heat_input_engine
 from procedures import prequalified, support
@@ -51,10 +52,33 @@ class WPSState(models.TextChoices):
 
 
 EDITABLE_STATES = {WPSState.DRAFT}
+FROZEN_STATES = {WPSState.SUBMITTED, WPSState.APPROVED, WPSState.SUPERSEDED, WPSState.WITHDRAWN}
 CODES = [("AWS D1.1:2020", "AWS D1.1/D1.1M:2020"), ("ISO 15609-1:2019", "ISO 15609-1:2019 (ISO 5817 shops)")]
 
 
-class PQR(models.Model):
+class PQRLock(Lock):
+    """A PQR is edited while no procedure beyond a draft names it; behind a submitted, approved, superseded or
+    withdrawn WPS it records a test that happened, and is frozen."""
+
+    def frozen_row(self, stored):
+        return stored.procedures.exclude(state=WPSState.DRAFT).exists()
+
+    def refusing(self, names):
+        return None if names <= self.free else Q(procedures__state__in=FROZEN_STATES)
+
+    def undeletable(self):
+        return Q(procedures__state__in=FROZEN_STATES)
+
+    def sql_frozen(self, row="OLD"):
+        states = ", ".join(f"'{s}'" for s in sorted(FROZEN_STATES))
+        return (f'EXISTS (SELECT 1 FROM "procedures_wps_pqrs" j JOIN "procedures_wps" w ON w."id" = j."wps_id" '
+                f'WHERE j."pqr_id" = {row}."id" AND w."state" IN ({states}))')
+
+    def refusal(self, stored, doing="changed"):
+        return f"{stored} supports a procedure beyond draft and cannot be {doing}; {self.advice}"
+
+
+class PQR(Guarded):
     """What was actually used on the test coupon, and how the coupon tested."""
 
     class Result(models.TextChoices):
@@ -95,11 +119,17 @@ class PQR(models.Model):
     laboratory = models.CharField(max_length=80, blank=True)
     notes = models.TextField(blank=True)
     created_at = models.DateTimeField(default=timezone.now, editable=False)
+    version = models.PositiveIntegerField(default=1, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = PQRLock("PQR", name=("number",), advice="record a new PQR for a new test.")
+    history_exclude = frozenset({"heat_input_kj_per_mm"})  # recomputed from volts, amps and speed, which show
 
     class Meta:
         ordering = ["number"]
         verbose_name = "PQR"
         verbose_name_plural = "PQRs"
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"PQR {self.number}"
@@ -175,13 +205,14 @@ class PQR(models.Model):
         super().save(*args, **kwargs)
 
 
-class WPSQuerySet(models.QuerySet):
+class WPSQuerySet(GuardedQuerySet):
     def approved(self):
         return self.filter(state=WPSState.APPROVED)
 
 
-class WPS(models.Model):
-    """A welding procedure specification, one row per revision."""
+class WPS(Guarded):
+    """A welding procedure specification, one row per revision. Only a draft is edited (by version); a submitted,
+    approved, superseded or withdrawn one changes only by its steps (procedures.services.wps)."""
 
     number = models.CharField(max_length=40)
     revision = models.PositiveIntegerField(default=0)
@@ -246,35 +277,27 @@ class WPS(models.Model):
     )
     approved_at = models.DateTimeField(null=True, blank=True, editable=False)
     withdrawn_at = models.DateTimeField(null=True, blank=True, editable=False)
+    version = models.PositiveIntegerField(default=1, editable=False)
 
     objects = WPSQuerySet.as_manager()
+    lock = Lock(
+        "WPS", state="state", frozen=FROZEN_STATES, name=("number", " rev ", "revision"),
+        advice="start a new revision (a submitted one: ask the QA lead to return it to draft).",
+        moves=[Move(WPSState.DRAFT, WPSState.SUBMITTED), Move(WPSState.SUBMITTED, WPSState.DRAFT),
+               Move(WPSState.SUBMITTED, WPSState.APPROVED, ("approved_by", "approved_at")),
+               Move(WPSState.APPROVED, WPSState.SUPERSEDED),
+               Move(WPSState.APPROVED, WPSState.WITHDRAWN, ("withdrawn_at",))],
+    )
 
     class Meta:
         ordering = ["number", "-revision"]
         verbose_name = "WPS"
         verbose_name_plural = "WPSs"
         constraints = [models.UniqueConstraint(fields=["number", "revision"], name="wps_number_revision_unique")]
+        base_manager_name = "objects"
 
     def __str__(self):
         return f"WPS {self.number} rev {self.revision}"
-
-    def save(self, *args, **kwargs):
-        # Submitted, approved, superseded and withdrawn rows are frozen, whatever update_fields says; only
-        # the transition methods below move them on, and they write the state fields past this check
-        # (models.Model.save with update_fields) inside their own lock.
-        if self.pk:
-            stored = WPS.objects.filter(pk=self.pk).values_list("state", flat=True).first()
-            if stored is not None and stored not in EDITABLE_STATES:
-                raise RecordLocked(
-                    f"{self} is {WPSState(stored).label.lower()} and cannot be changed; "
-                    + ("start a new revision." if stored != WPSState.SUBMITTED else "ask the QA lead to return it.")
-                )
-        super().save(*args, **kwargs)
-
-    def delete(self, *args, **kwargs):
-        if self.state != WPSState.DRAFT:
-            raise RecordLocked(f"{self} is {self.get_state_display().lower()}; only a draft can be deleted.")
-        return super().delete(*args, **kwargs)
 
     def get_absolute_url(self):
         return reverse("procedures:wps_detail", args=[self.pk])

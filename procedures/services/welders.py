@@ -36,5 +36,7 @@ def log_continuity(welder, process, on, note, user):
         raise ValidationError({"date": "Continuity cannot be logged for a day that has not come yet."})
     if process not in Process.values:
         raise ValidationError({"process": f"Choose one of {', '.join(Process.values)}."})
-    return ContinuityEntry.objects.create(welder=welder, process=process, date=on,
-                                          source=ContinuityEntry.Source.MANUAL, note=note[:200], entered_by=user)
+    entry = ContinuityEntry(welder=welder, process=process, date=on, source=ContinuityEntry.Source.MANUAL,
+                            note=note[:200], entered_by=user)
+    entry.save(user=user, reason=note[:200])
+    return entry

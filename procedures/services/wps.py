@@ -14,11 +14,6 @@ from core.transitions import required_reason, transition
 from procedures.models.wps import WPS, WPSState
 
 
-def drafted(wps, user, reason=""):
-    """The first history row of a new draft (or revision)."""
-    return history.record(wps, user, history.CREATED, to_state=WPSState.DRAFT, reason=reason or "Drafted")
-
-
 def submit(wps, user):
     """Draft -> submitted, for the QA lead to approve; refused while the review shows errors."""
 
@@ -89,7 +84,8 @@ def new_revision(wps, user, reason=""):
         copy.created_by = user
         copy.created_at = timezone.now()
         copy.approved_by = copy.approved_at = copy.withdrawn_at = None
-        copy.save()
-        copy.pqrs.set(locked.pqrs.all())
-        drafted(copy, user, reason or f"Revision {copy.revision}, from revision {locked.revision}")
+        copy.version = 1
+        with history.one_entry():  # the new draft and its PQRs: one history row
+            copy.save(user=user, reason=reason or f"Revision {copy.revision}, from revision {locked.revision}")
+            copy.pqrs.set(locked.pqrs.all())
     return copy

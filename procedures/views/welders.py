@@ -79,6 +79,22 @@ def welder_create(request):
         "form": form, "title": "Add a welder", "submit": "Add welder", "back": "procedures:welder_list"})
 
 
+@role_required("welder.manage")
+@require_http_methods(["GET", "POST"])
+def welder_edit(request, pk):
+    """Correct a welder's name, employer or stamp (the stamp only until records bear it), by version."""
+    welder = get_object_or_404(Welder, pk=pk)
+    form = WelderForm(request.POST or None, instance=welder)
+    status = 200
+    if request.method == "POST" and form.is_valid():
+        if form.save_or_explain() is not None:
+            messages.success(request, f"Welder {welder} saved.")
+            return redirect(welder)
+        status = 409
+    return render(request, "procedures/welder_form.html", {
+        "form": form, "welder": welder, "title": f"Edit {welder}", "submit": "Save welder"}, status=status)
+
+
 @require_safe
 def welder_detail(request, pk):
     welder = _welder(pk)

@@ -8,11 +8,11 @@ names its action in core.roles.
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
 from django.core.paginator import Paginator
-from django.db import transaction
 from django.db.models import Prefetch, Q
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
+from core import history
 from core.errors import Refused
 from core.pdf import pdf_response, render_pdf
 from core.roles import role_required
@@ -92,14 +92,17 @@ def _review_context(form):
     if form.is_bound:
         form.is_valid()
         concrete = {f.name for f in WPS._meta.concrete_fields}
-        for name in form.errors:
+        # A stale save's notes (who changed a field meanwhile) are not mistakes in the input: not reviewed as such.
+        errors = {name: [e for e in found if e.code != "stale"] for name, found in form.errors.as_data().items()}
+        errors = {name: [m for e in found for m in e.messages] for name, found in errors.items() if found}
+        for name in errors:
             if name in concrete:
                 field = WPS._meta.get_field(name)
                 setattr(candidate, name, None if field.null or not field.empty_strings_allowed else "")
-        if "pqrs" not in form.errors:
+        if "pqrs" not in errors:
             pqrs = list(form.cleaned_data.get("pqrs") or [])
         labels = {name: field.label for name, field in form.fields.items()}
-        form_errors = [(labels.get(name, "Form"), message) for name, errs in form.errors.items() for message in errs]
+        form_errors = [(labels.get(name, "Form"), message) for name, errs in errors.items() for message in errs]
     elif candidate.pk is None:
         return {"findings": None}
     findings = candidate.findings(pqrs=pqrs)
@@ -116,12 +119,8 @@ def _review_context(form):
 def wps_create(request):
     form = WPSForm(request.POST or None)
     if request.method == "POST" and form.is_valid():
-        with transaction.atomic():
-            wps = form.save(commit=False)
-            wps.created_by = request.user
-            wps.save()
-            form.save_m2m()
-            wps_steps.drafted(wps, request.user)
+        form.instance.created_by = request.user
+        wps = form.save()
         messages.success(request, f"{wps} saved as a draft.")
         return redirect(wps)
     return render(request, "procedures/wps_form.html", {"form": form, "wps": None, **_review_context(form)})
@@ -131,19 +130,25 @@ def wps_create(request):
 @role_required("procedure.draft")
 def wps_edit(request, pk):
     wps = get_object_or_404(WPS, pk=pk)
-    refused = _refuse_unless_editable(request, wps)
-    if refused:
-        return refused
+    if request.method == "GET":
+        refused = _refuse_unless_editable(request, wps)
+        if refused:
+            return refused
     form = WPSForm(request.POST or None, instance=wps)
-    if request.method == "POST" and form.is_valid():
-        try:
-            form.save()
-        except Refused as exc:  # submitted by someone else between the page load and the save
-            messages.error(request, " ".join(exc.messages))
+    status = 200
+    if request.method == "POST" and not wps.is_editable:  # submitted or approved since the page was opened
+        form.is_valid()
+        form.add_error(None, WPS.lock.refusal(wps, "changed"))
+        status = 409
+    elif request.method == "POST" and form.is_valid():
+        # Compared and set on the version the page was opened at: a save by someone else meanwhile, or a
+        # submission, refuses this one with the input kept (core.forms.VersionedModelForm).
+        if form.save_or_explain() is not None:
+            messages.success(request, f"{wps} saved.")
             return redirect(wps)
-        messages.success(request, f"{wps} saved.")
-        return redirect(wps)
-    return render(request, "procedures/wps_form.html", {"form": form, "wps": wps, **_review_context(form)})
+        status = 409
+    return render(request, "procedures/wps_form.html", {"form": form, "wps": wps, **_review_context(form)},
+                  status=status)
 
 
 @require_POST
@@ -252,9 +257,10 @@ def pqr_list(request):
 @require_safe
 def pqr_detail(request, pk):
     pqr = get_object_or_404(PQR, pk=pk)
-    procedures = pqr.procedures.order_by("number", "-revision")
-    return render(request, "procedures/pqr_detail.html", {"pqr": pqr, "procedures": procedures,
-                                                          "rows": printing.pqr_rows(pqr)})
+    procedures = list(pqr.procedures.order_by("number", "-revision"))
+    return render(request, "procedures/pqr_detail.html", {
+        "pqr": pqr, "procedures": procedures, "rows": printing.pqr_rows(pqr), "history": history.panel(pqr),
+        "in_use": any(p.state != WPSState.DRAFT for p in procedures)})
 
 
 def _query_without_page(request):
@@ -272,4 +278,22 @@ def pqr_create(request):
         messages.success(request, f"{pqr} recorded.")
         return redirect(pqr)
     return render(request, "procedures/pqr_form.html", {"form": form})
+
+
+@require_http_methods(["GET", "POST"])
+@role_required("procedure.draft")
+def pqr_edit(request, pk):
+    """Correct a PQR while no procedure beyond a draft names it (then it records a test that happened)."""
+    pqr = get_object_or_404(PQR, pk=pk)
+    if request.method == "GET" and PQR.lock.frozen_row(pqr):
+        messages.error(request, PQR.lock.refusal(pqr, "changed"))
+        return redirect(pqr)
+    form = PQRForm(request.POST or None, instance=pqr)
+    status = 200
+    if request.method == "POST" and form.is_valid():
+        if form.save_or_explain() is not None:  # by version; refused once a procedure beyond draft names it
+            messages.success(request, f"{pqr} saved.")
+            return redirect(pqr)
+        status = 409
+    return render(request, "procedures/pqr_form.html", {"form": form, "pqr": pqr}, status=status)
 

@@ -69,7 +69,7 @@ def test_concurrent_signings_append_to_one_unbroken_chain(make):
     ready = []
     for n in range(ROUNDS):
         assembly = make.make_assembly(job=busy.job, piece_mark=f"R{n}")
-        make.make_inspection(make.make_weld(assembly=assembly, mark="W1"), accepted=True)
+        make.make_inspection(make.make_sound_weld(assembly=assembly, mark="W1"), accepted=True)
         ready.append(assembly)
     drafts = [wps_steps.submit(make.make_wps(), make.make_user("welding_engineer")) for _ in range(ROUNDS)]
     before = Seal.objects.count()

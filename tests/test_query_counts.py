@@ -92,9 +92,11 @@ def test_scrap(make, weld, users, django_assert_num_queries):
 
 
 # Savepoints count as queries on both databases (each transition is its own atomic block inside the signing).
-SIGN_ACCEPTED = 11  # lock weld, read state, insert, point the weld at it, refresh (state, facts) and savepoints
-SIGN_REJECTED = 22  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
+# lock weld, read state, the latest fit-up's root opening, insert, point the weld at it, refresh (state, facts), and
+# savepoints
+SIGN_ACCEPTED = 12
+SIGN_REJECTED = 23  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
 REPAIR = 12  # the NCR with its weld, job and inspection; the welder's records; the transition; refresh
-SIGN_CLOSING_REPAIR = 21  # an accepted signing + the waiting NCR closed (transition) + the assembly's move back
+SIGN_CLOSING_REPAIR = 22  # an accepted signing + the waiting NCR closed (transition) + the assembly's move back
 USE_AS_IS = 15  # the NCR with its records; the capacity reads the weld's WPS; the transition; refresh and move
 SCRAP = 13  # the NCR with its records, its transition, and the assembly's transition to scrapped

@@ -1,11 +1,14 @@
-"""Template filters that print stored quantities in a job's unit system, through core.units only.
+"""Template filters that print stored quantities in a job's unit system, through core.units only, and engine text
+in the trade's notation (core.notation).
 
 {% load quantities %} {{ weld.size|length:job.unit_system }} {{ weld.required_strength|force:"US" }}
+{{ finding.message|trade }}
 """
 
 from django import template
 
 from core import units
+from core.notation import trade as trade_text
 
 register = template.Library()
 
@@ -25,6 +28,12 @@ def length(value, system="US"):
 
 
 @register.filter
+def long_length(value, system="US"):
+    """A length along a member: 30'-0" from 2 ft on US jobs."""
+    return _shown(value, units.format_length_long, system)
+
+
+@register.filter
 def force(value, system="US"):
     return _shown(value, units.format_force, system)
 
@@ -32,3 +41,9 @@ def force(value, system="US"):
 @register.filter
 def temperature(value, system="US"):
     return _shown(value, units.format_temperature, system)
+
+
+@register.filter
+def trade(value):
+    """φRn, Ω, in², ≤, × for the ASCII the engines write (core.notation.trade)."""
+    return trade_text(value)

@@ -6,7 +6,9 @@ from django.urls import reverse
 from django.utils import timezone
 
 from core.fields import ForceField, LengthField
+from core.units import Length
 from core.vocabulary import WELD_POSITION_CHOICES, JointType, Position, UnitSystem
+from inspections.strength import effective_throat
 
 
 class Job(models.Model):
@@ -102,8 +104,14 @@ class Weld(models.Model):
     assembly = models.ForeignKey(Assembly, on_delete=models.PROTECT, related_name="welds")
     mark = models.CharField("weld mark", max_length=20)
     joint_type = models.CharField(max_length=8, choices=JointType.choices, default=JointType.FILLET)
-    size = LengthField("specified leg", help_text="Nominal fillet leg; the vertical leg when legs differ")
+    size = LengthField("specified leg", help_text="Nominal fillet leg z; the vertical leg when legs differ")
     size2 = LengthField("second leg", null=True, blank=True, help_text="Only for unequal legs")
+    # ISO 2553 drawings give the throat a, the leg z, or both. A weld whose drawing gives only a keeps the leg that
+    # throat needs (leg_for_throat) in `size`, so strength and fit-up read a leg, and says so here.
+    throat = LengthField("specified throat a", null=True, blank=True,
+                         help_text="ISO drawings: the design throat a, when the drawing gives it")
+    size_on_drawing = models.BooleanField("the drawing gives the leg", default=True,
+                                          help_text="Off when the drawing gives only the throat a")
     length = LengthField("length of each weld")
     count = models.PositiveIntegerField(default=1, help_text="How many of this weld on one assembly")
     sides = models.CharField(max_length=5, choices=Sides.choices, default=Sides.ARROW)
@@ -117,6 +125,13 @@ class Weld(models.Model):
                             verbose_name="WPS")
     welders = models.ManyToManyField("procedures.Welder", blank=True, related_name="welds")
     welded_on = models.DateField("date welded", null=True, blank=True)
+    completed_at = models.DateTimeField(
+        "weld completed and cooled", null=True, blank=True,
+        help_text="When the weld was finished and cooled to ambient; the delayed final visual of quenched and "
+                  "tempered steels counts from it")
+    base_metals = models.CharField(
+        max_length=200, blank=True,
+        help_text="The steels of the parts joined, when the drawing names them: e.g. ASTM A514, ASTM A572 Gr 50")
     primary_member = models.BooleanField(default=False)
     transverse_to_tension = models.BooleanField("transverse to tensile stress", default=False)
     required_strength = ForceField(null=True, blank=True, help_text="From the engineer of record, when given")
@@ -141,6 +156,25 @@ class Weld(models.Model):
     @property
     def thinner_part(self):
         return min(self.thickness1, self.thickness2)
+
+    # --- the weld's size, said once: every page, PDF and service reads these -------------------------------
+
+    @property
+    def smaller_leg(self) -> Length:
+        """The smaller specified leg (unequal legs) or the leg."""
+        return min(self.size, self.size2) if self.size2 is not None else self.size
+
+    @property
+    def nominal_throat(self) -> Length:
+        """The specified throat a: as the drawing gives it, else the effective throat of the specified legs
+        (inspections.strength.effective_throat, AISC 360-16 J2.2a; ISO 5817's nominal a)."""
+        if self.throat is not None:
+            return self.throat
+        return effective_throat(self.size, self.size2)
+
+    @property
+    def base_metal_list(self) -> list[str]:
+        return [part.strip() for part in self.base_metals.split(",") if part.strip()]
 
     @property
     def thicker_part(self):

@@ -1,7 +1,9 @@
-// Tablet inspection pages. The live criteria come from htmx (hx-post on the form); this file only
-// guards against a double signing and shows the photo about to be attached.
+// Tablet inspection pages. The live criteria come from htmx (hx-post on the form, on load and on every input and
+// change, switches and tiles included); this file guards against a double signing, clears the camera input once
+// its photo is held, and shows the photo about to be attached to a signed inspection.
 (function () {
   "use strict";
+  document.documentElement.classList.add("lw-js");
   document.querySelectorAll("form").forEach(function (form) {
     form.addEventListener("submit", function () {
       form.querySelectorAll("[data-lw-once]").forEach(function (button) {
@@ -9,6 +11,14 @@
         window.setTimeout(function () { button.disabled = true; }, 0);
       });
     });
+  });
+  document.body.addEventListener("htmx:afterRequest", function (event) {
+    var source = event.detail && event.detail.elt;
+    if (source && source.classList && source.classList.contains("lw-camera-input")) {
+      source.value = "";  // held in the draft now: signing must not send it again
+      var caption = document.getElementById("id_photo_caption");
+      if (caption && event.detail.successful) { caption.value = ""; }
+    }
   });
   document.querySelectorAll(".lw-photo-form input[type=file]").forEach(function (input) {
     var preview = input.form.querySelector(".lw-photo-preview");

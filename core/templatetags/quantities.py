@@ -6,6 +6,8 @@ in the trade's notation (core.notation).
 """
 
 from django import template
+from django.db.models import QuerySet
+from django.template.defaultfilters import length as count
 
 from core import units
 from core.notation import trade as trade_text
@@ -24,6 +26,10 @@ def _shown(value, formatter, system):
 
 @register.filter
 def length(value, system="US"):
+    """A length in the job's system (a Length, or text with its unit); a list or a queryset keeps Django's |length
+    (how many), which this filter's name would otherwise hide."""
+    if isinstance(value, (list, tuple, QuerySet)):
+        return count(value)
     return _shown(value, units.format_length, system)
 
 

@@ -93,14 +93,15 @@ class InspectionForm(forms.ModelForm):
                 continue
             o = observations.get(name)
             field.label = o.label(system)
-            field.help_text = o.help
+            field.help_text = ""  # a glove-sized page: the table's help is the box's tooltip, not a paragraph
+            field.widget.attrs["title"] = o.help
             if o.kind == "length":
                 field.maximum = MAX_SIZE if name in SIZES else MAX_DEFECT
                 field.widget.attrs.update({"inputmode": inputmode, "enterkeyhint": "next", "data-unit": unit})
             elif o.kind == "angle":
-                self.fields[name] = AngleFormField(label=field.label, help_text=o.help, required=False,
+                self.fields[name] = AngleFormField(label=field.label, required=False,
                                                    max_length=units.MAX_INPUT_CHARS)
-                self.fields[name].widget.attrs.update({"inputmode": "decimal", "data-unit": "\u00b0",
+                self.fields[name].widget.attrs.update({"inputmode": "decimal", "data-unit": "\u00b0", "title": o.help,
                                                        "autocomplete": "off", "placeholder": "e.g. 110"})
             elif o.kind == "count":
                 field.max_value = 1000
@@ -193,6 +194,11 @@ class InspectionForm(forms.ModelForm):
         if self.weld.joint_type == "fillet" and data.get("root_gap") is None:
             self.add_error("root_gap", "Gauge the root opening between the parts (0 when they touch).")
         return data
+
+    def typed_anything(self) -> bool:
+        """Has anything been typed or ticked yet (the stage aside)? An empty form is not judged on the panel."""
+        names = [*OBSERVED, "fit_up_ok", "remarks"]
+        return any(self.data.get(self.add_prefix(name)) not in (None, "") for name in names if name in self.fields)
 
     def observed(self) -> dict:
         """The cleaned observations, for the service (after is_valid())."""

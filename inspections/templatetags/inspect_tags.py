@@ -2,6 +2,8 @@
 words, a finding's heading from the table of observations."""
 
 from django import template
+from django.db.models import QuerySet
+from django.template.defaultfilters import length as count
 
 from core.units import Length, format_length
 from inspections import observations, wording
@@ -20,7 +22,10 @@ STATUS = {
 
 @register.filter
 def length(value, system="US"):
-    """3/16" on a US job, 4.76 mm on an SI job; empty for no value."""
+    """3/16" on a US job, 4.76 mm on an SI job; empty for no value. A list, a string or a queryset keeps
+    Django's meaning of |length (how many), which this filter's name would otherwise hide."""
+    if isinstance(value, (list, tuple, str, QuerySet)):
+        return count(value)
     if not isinstance(value, Length):
         return ""
     return format_length(value, system)

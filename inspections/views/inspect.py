@@ -267,6 +267,9 @@ def inspect_preview(request, pk):
     button. Judges only; saves nothing."""
     weld = _weld(pk)
     form = InspectionForm(request.POST, weld=weld, batch=_batch_of(weld, request))
+    if not form.typed_anything():  # the page has just opened: nothing to judge yet, nothing wrong either
+        return render(request, "inspections/inspect_weld.html#preview", {
+            "form": InspectionForm(weld=weld), "verdict": None, "digest": "", "preview": True})
     verdict, digest = _judged(form, weld)
     return render(request, "inspections/inspect_weld.html#preview", {
         "form": form, "verdict": verdict, "digest": digest, "system": weld.assembly.job.unit_system,

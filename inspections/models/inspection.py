@@ -112,6 +112,20 @@ class Inspection(models.Model):
             return True
         return False
 
+    @property
+    def smallest_leg(self):
+        """The smallest leg this inspection measured: the smaller of the two legs' readings, or, where only the
+        throat a was gauged (ISO jobs), the equal leg of that throat (inspections.strength.leg_for_throat).
+        None when neither was measured. Every capacity and undersize question reads this, never its own min()."""
+        legs = [leg for leg in (self.min_size, self.min_size2) if leg is not None]
+        if legs:
+            return min(legs)
+        if self.throat is not None:
+            from inspections.strength import leg_for_throat
+
+            return leg_for_throat(self.throat)
+        return None
+
     def observed(self) -> dict:
         """The observations as the acceptance engine reads them (absent = none seen)."""
         observed = {}

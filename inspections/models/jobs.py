@@ -48,6 +48,21 @@ class Job(models.Model):
         return self.criteria_key, get_criteria(self.criteria_key).version
 
     @property
+    def loading(self) -> str | None:
+        """'cyclic' or 'static' for an AWS D1.1 job (its criteria set, or the set a client set derives from, says
+        which), None for other codes: what the WPS review reads where a job is known."""
+        from inspections.criteria import resolve
+
+        try:
+            cset = resolve(self.criteria_for_evaluation())
+        except ValueError:
+            return None
+        if not cset.standard.upper().startswith("AWS D1.1"):
+            return None
+        words = f"{cset.key} {cset.base_key or ''} {cset.title}".lower()
+        return "cyclic" if "cyclic" in words else "static"
+
+    @property
     def criteria_label(self) -> str:
         if self.client_criteria_id:
             return str(self.client_criteria)

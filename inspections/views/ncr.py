@@ -31,14 +31,28 @@ def ncr_list(request):
     return render(request, "inspections/ncr_list.html", {"ncrs": ncrs, "show": show})
 
 
+def _description(ncr, findings) -> list[str]:
+    """The NCR's description without the lines that only repeat a finding listed below it with its source: each
+    sentence is printed once."""
+    messages = {f.get("message", "") for f in findings}
+    return [line for line in ncr.description.splitlines()
+            if line.strip() and not any(message and line.endswith(message) for message in messages)]
+
+
 def _ncr_page(request, ncr, forms=None, status=200):
     forms = forms or {}
+    findings = [f for f in (ncr.inspection.findings or []) if isinstance(f, dict) and not f.get("ok", True)]
+    history = list(history_of(ncr))
+    for event in history:
+        if event.reason and event.reason.strip() == ncr.description.strip():
+            event.reason = "raised with the description above"  # shown, never saved: the record keeps it all
+    system = ncr.weld.assembly.job.unit_system
     context = {
         "ncr": ncr, "weld": ncr.weld, "assembly": ncr.weld.assembly, "job": ncr.weld.assembly.job,
-        "history": list(history_of(ncr)),
+        "history": history, "description": _description(ncr, findings),
         "capacities": capacity_cards(ncr=ncr) if ncr.weld.joint_type == JointType.FILLET else [],
         "forms": {kind: forms.get(kind) or cls(prefix=kind) for kind, cls in FORMS.items()},
-        "findings": [f for f in (ncr.inspection.findings or []) if isinstance(f, dict) and not f.get("ok", True)],
+        "findings": findings, "recorded": ncr.inspection.recorded(system),
     }
     return render(request, "inspections/ncr_detail.html", context, status=status)
 

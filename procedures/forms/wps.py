@@ -1,10 +1,10 @@
 """WPS and PQR forms: what an engineer types, read in the procedure's unit system; rules stay in the engines.
 
 Every length goes through LengthFormField and every temperature through TemperatureFormField; a bare number is
-read in the procedure's unit system (50 is 50 °F on a US WPS, 50 °C on an SI one), as lengths are. A filler classification is read by procedures.electrodes.decode,
-whose message says which part is wrong. A range whose minimum is above its maximum is refused beside the
-minimum. Anything else a reviewer would mark (prequalified limits) is a finding, shown in the review panel,
-not a form error: a draft may be saved while it is still wrong.
+read in the procedure's unit system (50 is 50 °F on a US WPS, 50 °C on an SI one), as lengths are. A filler
+classification is read by procedures.electrodes.decode, whose message says which part is wrong. A range whose
+minimum is above its maximum is refused beside the minimum. Anything else a reviewer would mark (prequalified
+limits) is a finding, shown in the review panel, not a form error: a draft may be saved while it is still wrong.
 """
 
 from crispy_forms.helper import FormHelper

@@ -2,26 +2,26 @@
 
 from django.contrib import admin
 
-from core.admin import ReadOnlyAdmin
+from core.admin import QuantityAdmin, ReadOnlyAdmin
 from inspections.models import NCR, Assembly, ClientCriteriaSet, Inspection, Job, Photo, Weld
 from inspections.models.traveler import JobPacket, Traveler
 
 
 @admin.register(Job)
-class JobAdmin(admin.ModelAdmin):
+class JobAdmin(QuantityAdmin):
     list_display = ["number", "name", "customer", "unit_system", "criteria_key"]
 
 
 @admin.register(Assembly)
-class AssemblyAdmin(admin.ModelAdmin):
+class AssemblyAdmin(QuantityAdmin):
     list_display = ["piece_mark", "job", "drawing", "state"]
     list_filter = ["state", "job"]
     list_select_related = ["job"]
 
 
 @admin.register(Weld)
-class WeldAdmin(admin.ModelAdmin):
-    list_display = ["mark", "assembly", "joint_type", "wps"]
+class WeldAdmin(QuantityAdmin):
+    list_display = ["mark", "assembly", "joint_type", "size", "length", "wps"]
     list_select_related = ["assembly", "wps"]
 
 

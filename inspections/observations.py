@@ -49,7 +49,7 @@ GROUPS: tuple[tuple[str, str], ...] = (
     ("undercut", "Undercut"),
     ("seen", "Seen on the weld"),
     ("porosity", "Porosity"),
-    ("profile", "Profile, craters and root opening"),
+    ("profile", "Profile and craters"),
 )
 
 

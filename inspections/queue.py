@@ -1,7 +1,7 @@
 """The inspector's queue: assemblies and welds waiting for inspection, by job and stage, with what is overdue.
 
 Stages, in the order an assembly meets them:
-- Fit-up: a weld not yet welded (no weld date) and never inspected;
+- Fit-up: a weld not yet welded (no weld date) and never inspected, or whose fit-up was sent back;
 - Final visual: a weld welded (its weld date or completion time recorded) with no current final inspection;
 - Re-inspection: a weld whose NCR was dispositioned as a repair and waits for the accepted re-inspection that
   closes it.
@@ -19,7 +19,7 @@ from datetime import datetime, timedelta
 from django.conf import settings
 from django.utils import timezone
 
-from inspections.models import NCR, AssemblyState, Weld
+from inspections.models import NCR, AssemblyState, InspectionStage, Weld
 from inspections.models.ncr import Disposition, NCRState
 from inspections.services.inspect import completion_of, final_visual_timing
 
@@ -103,11 +103,15 @@ def waiting(now: datetime | None = None) -> list[JobQueue]:
             continue
         completed = completion_of(weld)
         if completed is None:
-            if weld.latest_inspection is None:
-                _add(found, job, "fit_up", weld, None, False)
+            latest = weld.latest_inspection
+            if latest is None or (latest.stage == InspectionStage.FIT_UP and not latest.accepted):
+                _add(found, job, "fit_up", weld, latest.inspected_at if latest else None, False)
             continue
         timing = final_visual_timing(weld)
-        start = timing.earliest or completed
+        if not timing.delayed:
+            _add(found, job, "final", weld, completed, now - completed > due)
+            continue
+        start = timing.earliest
         ahead = start if start > now else None
         _add(found, job, "final", weld, start, ahead is None and now - start > due, ahead, timing.steels)
     queues = []

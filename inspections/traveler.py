@@ -125,7 +125,7 @@ def _capacity(weld: Weld, final: Inspection | None, system: str) -> dict | None:
     design = capacities.capacity_for_weld(weld)
     row = {"mark": weld.mark, "required": design["required"] or "", "fexx": design["fexx"] or "",
            "specified": "", "as_inspected": "", "ratio": "", "ok": None, "note": "", "not_counted": [],
-           "source": f"AISC 360-16 J2.4, B3 (LRFD); {capacities.NOT_COUNTED}"}
+           "source": "AISC 360-16 J2.4, B3 (LRFD)", "limits": capacities.NOT_COUNTED}
     if design["error"]:
         row["note"] = trade(design["error"])
         return row
@@ -256,7 +256,7 @@ def gather(assembly_pk: int) -> dict:
         cautions.append("A weld's current final inspection rejected it: see the NCR column.")
     if capacity:
         cautions.append("Strength figures are AISC 360-16 J2 available strengths (LRFD) for the engineer of "
-                        "record to review; they do not approve a weld. " + capacities.NOT_COUNTED)
+                        "record to review; they do not approve a weld.")
     return {
         "job": {"pk": job.pk, "number": job.number, "name": job.name, "customer": job.customer,
                 "unit_system": job.get_unit_system_display(), "system": system},

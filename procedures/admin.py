@@ -2,12 +2,12 @@
 
 from django.contrib import admin
 
-from core.admin import ReadOnlyAdmin
+from core.admin import QuantityAdmin, ReadOnlyAdmin
 from procedures.models import PQR, WPS, ContinuityEntry, Qualification, Welder
 
 
 @admin.register(WPS)
-class WPSAdmin(admin.ModelAdmin):
+class WPSAdmin(QuantityAdmin):
     list_display = ["number", "revision", "title", "state", "process", "electrode"]
     list_filter = ["state", "process"]
     search_fields = ["number", "title", "electrode"]
@@ -20,7 +20,7 @@ class WPSAdmin(admin.ModelAdmin):
 
 
 @admin.register(PQR)
-class PQRAdmin(admin.ModelAdmin):
+class PQRAdmin(QuantityAdmin):
     """A PQR behind a procedure that is (or was) approved records a test that happened: read-only."""
 
     list_display = ["number", "process", "electrode", "test_date"]
@@ -36,7 +36,7 @@ class PQRAdmin(admin.ModelAdmin):
 
 
 @admin.register(Welder)
-class WelderAdmin(admin.ModelAdmin):
+class WelderAdmin(QuantityAdmin):
     list_display = ["stamp", "name", "employer", "active"]
     search_fields = ["stamp", "name"]
 

@@ -187,7 +187,7 @@ def test_after_signing_the_page_offers_the_next_weld(make, client_as):
     assert 'data-next="W3"' in html
     last = make.make_inspection(w3)
     html = client_as("inspector").get(last.get_absolute_url()).content.decode()
-    assert "Every weld of" in html and "data-next" not in html
+    assert "No other weld of" in html and "data-next" not in html
 
 
 # --- the queue ---------------------------------------------------------------------------------------------------

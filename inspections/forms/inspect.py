@@ -139,6 +139,9 @@ class InspectionForm(forms.ModelForm):
             if key == "size" and self.throat_first:
                 lead = [n for n in ("throat", "throat_short_length") if n in names]
                 names = lead + [n for n in names if n not in lead]
+                heading = "Throat and legs"
+            elif key == "size" and "throat" not in names:
+                heading = "Legs"
             if names:
                 fields = [self[name] for name in names]
                 typed = any(bf.value() not in (None, "", False) or bf.errors for bf in fields)

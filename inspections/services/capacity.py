@@ -191,8 +191,11 @@ def _weld_inputs(weld, system: str, fexx: str, fexx_source: str) -> list:
     legs = length_shown(weld.size, system)
     if weld.size2 is not None and weld.size2 != weld.size:
         legs = f"{legs} x {length_shown(weld.size2, system)}"
-    rows = [
-        {"label": "Specified leg(s)", "value": legs},
+    rows = [{"label": "Specified throat a (the drawing gives it)", "value": length_shown(weld.throat, system)}] \
+        if weld.throat is not None else []
+    rows += [
+        {"label": "Specified leg(s)" + ("" if weld.size_on_drawing or weld.throat is None else
+                                        " (from the throat a: w = a / 0.707)"), "value": legs},
         {"label": "Length of one weld line", "value": length_shown(weld.length, system)},
         {"label": "Weld lines of this mark", "value": f"{weld.count} x {weld.get_sides_display().lower()}"
                                                       f" = {_lines(weld)}"},
@@ -313,8 +316,11 @@ def capacity_for_inspection(inspection, method: str = "LRFD") -> dict:
                            "weld: the whole length is taken.")
         under = weld.length
     snapshot["assumptions"] = assumptions
+    from_throat = inspection.min_size is None and inspection.min_size2 is None and inspection.throat is not None
     snapshot["inputs"] = _weld_inputs(weld, system, fexx, fexx_source) + [
-        {"label": "Smallest leg measured", "value": length_shown(measured, system)},
+        {"label": "Smallest leg measured" + (f" (from the throat a = {format_length(inspection.throat, system)} "
+                                             "measured)" if from_throat else ""),
+         "value": length_shown(measured, system)},
         {"label": "Length under size", "value": length_shown(under, system)},
     ]
     required = weld.required_strength

@@ -27,6 +27,7 @@ from inspections.photos import PhotoError, clean_photo
 from inspections.services import inspect as service
 from inspections.services.assemblies import weld_statuses
 from inspections.services.capacity import capacity_cards
+from inspections.services.flags import weld_flags
 
 SEARCH_LIMIT = 30
 WELD_RELATED = ("assembly__job__client_criteria", "wps")
@@ -70,6 +71,7 @@ def inspect_assembly(request, pk):
     welds = list(Weld.objects.filter(assembly=assembly).select_related("wps").order_by("mark"))
     for weld in welds:
         weld.assembly = assembly
+        weld.flags = weld_flags(weld)
     statuses = weld_statuses([w.pk for w in welds])
     drafts = set(InspectionDraft.objects.filter(inspector=request.user, weld__in=welds)
                  .values_list("weld_id", flat=True))
@@ -255,7 +257,7 @@ def _form_page(request, form, weld, correcting=None, draft=None, photo_errors=()
         "form": form, "weld": weld, "assembly": weld.assembly, "job": weld.assembly.job,
         "system": weld.assembly.job.unit_system, "verdict": verdict, "digest": digest, "correcting": correcting,
         "draft": draft, "held": list(draft.photos.all()) if draft is not None else [],
-        "photo_errors": photo_errors, "too_early": service.final_visual_refusal(weld),
+        "photo_errors": photo_errors, "too_early": service.final_visual_refusal(weld), "flags": weld_flags(weld),
         "batch_ids": ",".join(str(w.pk) for w in form.batch),
     }, status=status)
 

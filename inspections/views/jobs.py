@@ -16,6 +16,7 @@ from core.history import history_of
 from core.roles import can, role_required
 from core.units import format_length
 from core.vocabulary import JointType
+from inspections import wording
 from inspections.forms.jobs import (
     AssemblyForm,
     JobForm,
@@ -29,6 +30,7 @@ from inspections.models.ncr import NCRState
 from inspections.services import assemblies as steps
 from inspections.services import weldmap_csv
 from inspections.services.capacity import capacity_cards
+from inspections.services.flags import weld_flags, wps_flags_for_job
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
@@ -104,6 +106,7 @@ class WeldRow:
     status: object
     welders: list
     wps_approved: bool
+    flags: list
 
 
 def _length(value, system):
@@ -111,16 +114,19 @@ def _length(value, system):
 
 
 def weld_rows(assembly, welds):
-    """The weld map as the page shows it: every weld with its status and welder checks, fixed queries."""
+    """The weld map as the page shows it: every weld with its status and welder checks, fixed queries. Sizes and
+    lengths in the job's words (inspections.wording: a/z on ISO jobs, feet and inches for long US lengths)."""
     system = assembly.job.unit_system
+    iso = wording.throat_first(assembly.job)
     statuses = steps.weld_statuses([w.pk for w in welds])
     checks = steps.welder_checks(welds)
     rows = []
     for weld in welds:
-        size = _length(weld.size, system) + (f" x {_length(weld.size2, system)}" if weld.size2 else "")
+        weld.assembly = assembly
         thickness = f"{_length(weld.thickness1, system)} / {_length(weld.thickness2, system)}"
-        rows.append(WeldRow(weld, size, _length(weld.length, system), thickness, statuses[weld.pk],
-                            checks.get(weld.pk, []), bool(weld.wps and weld.wps.state == WPSState.APPROVED)))
+        rows.append(WeldRow(weld, wording.size_text(weld, system, iso), wording.run_length(weld.length, system),
+                            thickness, statuses[weld.pk], checks.get(weld.pk, []),
+                            bool(weld.wps and weld.wps.state == WPSState.APPROVED), weld_flags(weld)))
     return rows
 
 
@@ -177,6 +183,8 @@ def _save_weld(request, form):
         weld = form.save()
         if "welders" in form.changed_data or "welded_on" in form.changed_data or "wps" in form.changed_data:
             steps.record_production(weld)
+    for flag in getattr(form, "flags", []):
+        messages.warning(request, flag)
     return weld
 
 
@@ -223,6 +231,7 @@ def weld_detail(request, pk):
     inspections = weld.inspections.select_related("inspector", "supersedes").order_by("-inspected_at", "-pk")
     return render(request, "inspections/weld_detail.html", {
         "weld": weld, "assembly": weld.assembly, "row": row, "inspections": inspections,
+        "wps_flags": wps_flags_for_job(weld.wps, weld.assembly.job),
         "ncrs": weld.ncrs.order_by("-raised_at"),
         "capacities": capacity_cards(weld=weld) if weld.joint_type == JointType.FILLET else [],
         "may_edit": not weld.assembly.is_closed and (can(request.user, "job.manage")
@@ -239,7 +248,7 @@ def _check_context(assembly, weld, wps=None, welders=None, on=None):
     weld.wps = wps
     checks = [steps.check_welder(w, weld, on=on) for w in welders] if wps is not None else []
     return {"wps": wps, "wps_approved": bool(wps and wps.state == WPSState.APPROVED), "checks": checks,
-            "welders": welders, "on": on}
+            "welders": welders, "on": on, "wps_flags": wps_flags_for_job(wps, assembly.job)}
 
 
 @require_safe

@@ -100,3 +100,22 @@ REPAIR = 12  # the NCR with its weld, job and inspection; the welder's records; 
 SIGN_CLOSING_REPAIR = 22  # an accepted signing + the waiting NCR closed (transition) + the assembly's move back
 USE_AS_IS = 15  # the NCR with its records; the capacity reads the weld's WPS; the transition; refresh and move
 SCRAP = 13  # the NCR with its records, its transition, and the assembly's transition to scrapped
+
+
+def test_the_ncr_page_reads_a_fixed_number_of_queries(make, weld, client_as, django_assert_num_queries):
+    """The NCR page: the NCR with its records, history, the capacity card and the recorded observations."""
+    ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))
+    client = client_as("qa_lead")
+    url = ncr.get_absolute_url()
+    client.get(url)
+    with django_assert_num_queries(NCR_PAGE_OPEN):
+        assert client.get(url).status_code == 200
+    disposition_repair(ncr, make.make_user("qa_lead"), make.make_wps(state=WPSState.APPROVED),
+                       qualified_welder(make), "Grind out and re-weld")
+    with django_assert_num_queries(NCR_PAGE_OPEN - 2):  # dispositioned: no disposition forms to fill
+        assert client.get(url).status_code == 200
+
+
+# session, user, the NCR with its weld, assembly, job, WPS, inspection and people, its history, and the repair WPS
+# list and welder list of the disposition forms (the capacity card reads what is loaded)
+NCR_PAGE_OPEN = 6

@@ -160,7 +160,22 @@ def base_metal_check_url(weld, leg=None) -> str:
         query["leg2"] = length_arg(weld.size2, system)
     if weld.required_strength is not None:
         query["required"] = format_force(weld.required_strength, system)
+    material = _weakest_known_material(weld)
+    if material:
+        query["material"] = material
     return f"{reverse('inspections:strength_calculator')}?{urlencode(query)}"
+
+
+def _weakest_known_material(weld) -> str | None:
+    """The calculator's material for the weld's steels (Weld.base_metals), the weakest where they differ; None when
+    the weld map names none the calculator knows (the engineer then picks it, or gives Fy and Fu)."""
+    from procedures.base_metals import base_metal_key
+
+    known = [base_metal_key(name) for name in weld.base_metal_list]
+    known = [key for key in known if key in strength.MATERIALS]
+    if not known:
+        return None
+    return min(known, key=lambda key: strength.MATERIALS[key][1][1])
 
 
 # --- records -> engine inputs -------------------------------------------------------------------------------

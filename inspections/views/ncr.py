@@ -41,6 +41,7 @@ def _description(ncr, findings) -> list[str]:
 
 def _ncr_page(request, ncr, forms=None, status=200):
     forms = forms or {}
+    ncr.inspection.weld = ncr.weld  # the same row, loaded with its job and WPS: the capacity card reads it
     findings = [f for f in (ncr.inspection.findings or []) if isinstance(f, dict) and not f.get("ok", True)]
     history = list(history_of(ncr))
     for event in history:

@@ -169,6 +169,11 @@ def test_every_tappable_thing_on_the_tablet_pages_is_at_least_48_px(width, brows
     }
     small = {name: _measure(browser, url, live_server) for name, url in pages.items()}
     assert not any(small.values()), {name: found for name, found in small.items() if found}
+    # a secondary action reads as one, not as disabled: graphite ink at full opacity (issue 15)
+    browser.get(f"{live_server.url}/inspections/inspection/{corrected.pk}/")
+    secondary = browser.find_element(By.CSS_SELECTOR, ".lw-capacity .btn-outline-secondary")
+    assert secondary.value_of_css_property("color") == "rgba(43, 49, 55, 1)"
+    assert secondary.value_of_css_property("opacity") == "1"
     # the fit-up stage shows its own tiles: measure them too
     browser.get(f"{live_server.url}/inspections/inspect/weld/{welds[2].pk}/")
     tap(browser, browser.find_element(By.CSS_SELECTOR, "label[for='id_stage_0']"))

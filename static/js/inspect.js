@@ -12,6 +12,24 @@
       });
     });
   });
+  // Patchy Wi-Fi: when the panel cannot ask the server, say so plainly and forget the verdict it showed, so
+  // signing shows the verdict first rather than signing one the panel never saw.
+  function offline(event) {
+    var findings = document.getElementById("lw-findings");
+    var shown = document.getElementById("lw-shown");
+    var source = event.detail && event.detail.elt;
+    if (!findings || !source || source.id !== "lw-inspect-form") { return; }
+    if (shown) { shown.value = ""; }
+    var note = document.createElement("p");
+    note.className = "lw-fail mb-0 lw-offline";
+    note.textContent = "No connection: the criteria could not be checked. What you typed stays here; " +
+      "signing shows the verdict before it records it.";
+    findings.replaceChildren(note);
+    var label = document.getElementById("lw-sign-verdict");
+    if (label) { label.textContent = ""; }
+  }
+  document.body.addEventListener("htmx:sendError", offline);
+  document.body.addEventListener("htmx:responseError", offline);
   document.body.addEventListener("htmx:afterRequest", function (event) {
     var source = event.detail && event.detail.elt;
     if (source && source.classList && source.classList.contains("lw-camera-input")) {

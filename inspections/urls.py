@@ -46,6 +46,7 @@ urlpatterns = [
     path("inspect/held-photos/<int:pk>/remove/", inspect_views.draft_photo_remove, name="draft_photo_remove"),
     path("inspection/<int:pk>/", inspect_views.inspection_detail, name="inspection_detail"),
     path("inspection/<int:pk>/correct/", inspect_views.inspection_correct, name="inspection_correct"),
+    path("inspection/<int:pk>.pdf", inspect_views.inspection_pdf, name="inspection_pdf"),
     path("inspection/<int:pk>/photos/", inspect_views.photo_add, name="photo_add"),
     path("photos/<int:pk>/", inspect_views.photo_file, name="photo_file"),
     path("photos/<int:pk>/thumbnail/", inspect_views.photo_file, {"size": "thumbnail"}, name="photo_thumbnail"),

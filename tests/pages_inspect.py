@@ -30,6 +30,7 @@ PAGES = {
     "inspections:inspect_assembly": (lambda make: {"pk": make.make_weld().assembly.pk}, ALL_OK),
     "inspections:inspect_weld": (lambda make: {"pk": make.make_weld().pk}, INSPECTOR_ONLY),
     "inspections:inspection_detail": (lambda make: {"pk": make.make_inspection().pk}, ALL_OK),
+    "inspections:inspection_pdf": (lambda make: {"pk": make.make_inspection().pk}, ALL_OK),
     "inspections:inspection_correct": (lambda make: {"pk": make.make_inspection().pk}, INSPECTOR_ONLY),
     "inspections:photo_file": (lambda make: {"pk": make.make_photo().pk}, ALL_OK),
     "inspections:photo_thumbnail": (lambda make: {"pk": make.make_photo().pk}, ALL_OK),

@@ -337,3 +337,18 @@ def test_the_inspection_save_path_answers_in_a_fixed_number_of_queries_for_a_pas
 # (none); then the assembly's state (refresh, its move to awaiting inspection with its history row), savepoints
 PASS_OF_TWO = 21
 PER_WELD = 4  # its fit-up look-up, its insert, its pointer, its NCRs to close
+
+
+def test_the_inspection_report_prints_the_tables_words_on_the_jobs_paper(make, client_as):
+    job = make.make_job(unit_system="SI", criteria_key="iso-5817-2014-C")
+    weld = make.make_weld(assembly=make.make_assembly(job=job), size=L("6 mm"), length=L("200 mm"),
+                          thickness1=L("10 mm"), thickness2=L("12 mm"))
+    inspection = make.make_inspection(weld, throat=L("4 mm"), throat_short_length=L("10 mm"), spatter=True)
+    make.make_photo(inspection)
+    response = client_as("viewer").get(reverse("inspections:inspection_pdf", args=[inspection.pk]))
+    assert response.status_code == 200 and response["Content-Type"] == "application/pdf"
+    text = _text(response.content)
+    assert "Smallest throat measured (a) 4 mm" in text and "Spatter seen" in text
+    assert "a4.24 z6" in text and "≤" in text and "<=" not in text
+    assert not PROGRAM_WORDS.search(text)
+    assert _page_size(response.content) == (595, 842)  # A4 portrait on an ISO job

@@ -281,3 +281,37 @@ def test_a_draft_keeps_the_pass(make, users):
     w1, w2 = _identical(make, 2)
     draft = keep_draft(w1, users["inspector"], {"with": [str(w2.pk)], "stage": ["final"]})
     assert draft.data["with"] == [str(w2.pk)]
+
+
+def test_a_held_photo_can_be_taken_out_before_signing(make, client_as, users):
+    weld = make.make_weld()
+    photo = add_draft_photo(weld, users["inspector"], _clean())
+    storage, name = photo.image.storage, photo.image.name
+    response = client_as("inspector").post(reverse("inspections:draft_photo_remove", args=[photo.pk]),
+                                           HTTP_HX_REQUEST="true")
+    assert response.status_code == 200 and "photo held" not in response.content.decode()
+    assert not DraftPhoto.objects.exists() and not storage.exists(name)
+
+
+# --- one vocabulary -----------------------------------------------------------------------------------------------
+
+def test_the_inspection_has_a_column_for_each_observation_of_the_table_and_nothing_else_lists_them(make):
+    from inspections import observations
+    from inspections.forms.inspect import InspectionForm
+
+    columns = {f.name for f in Inspection._meta.concrete_fields}
+    assert {o.name for o in observations.OBSERVATIONS} <= columns
+    for o in observations.OBSERVATIONS:
+        field = Inspection._meta.get_field(o.name)
+        assert o.us_label in str(field.verbose_name)
+    iso = make.make_job(unit_system="SI", criteria_key="iso-5817-2014-C")
+    form = InspectionForm(weld=make.make_weld(assembly=make.make_assembly(job=iso), size=L("6 mm")))
+    asked = {o.name for o in observations.asked_by("iso-5817-2014-C")} | set(observations.AT_FIT_UP)
+    assert {name for name in form.fields if name in observations.BY_NAME} == asked
+    assert form.fields["pores_per_4in"].label == "Pores in the worst 100 mm"  # the table's SI words
+
+
+def test_what_was_recorded_reads_in_the_tables_words_and_the_jobs_units(make):
+    inspection = make.make_inspection(min_size="1/4 in", undercut_depth="1/64 in", arc_strike=True, accepted=False)
+    rows = dict(inspection.recorded("US"))
+    assert rows == {"Smallest leg measured": '1/4"', "Deepest undercut": '1/64"', "Arc strike": "seen"}

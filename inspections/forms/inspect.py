@@ -11,7 +11,7 @@ everywhere (core.units reads a decimal comma). Angles are read by core.units.par
 from django import forms
 
 from core import units
-from core.fields import LengthFormField, set_unit_system
+from core.fields import set_unit_system
 from core.units import parse_length
 from inspections import observations
 from inspections.criteria import resolve
@@ -250,4 +250,4 @@ class PhotoForm(forms.Form):
         return upload
 
 
-__all__ = ["AngleFormField", "CorrectionForm", "FindAssemblyForm", "InspectionForm", "LengthFormField", "PhotoForm"]
+__all__ = ["AngleFormField", "CorrectionForm", "FindAssemblyForm", "InspectionForm", "PhotoForm"]

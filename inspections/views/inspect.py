@@ -290,6 +290,29 @@ def inspection_detail(request, pk):
     return _detail_page(request, inspection, PhotoForm())
 
 
+@require_safe
+def inspection_pdf(request, pk):
+    """The inspection as a printable report: what was recorded (the table of observations' words), the verdict with
+    every finding and its source, the photos; on the job's paper."""
+    from core.pdf import pdf_response, render_pdf
+    from inspections import wording
+    from inspections.traveler import _thumbnail_uri, job_paper
+
+    inspection = _inspection(pk)
+    weld, job = inspection.weld, inspection.weld.assembly.job
+    system = job.unit_system
+    findings = sorted((f for f in inspection.findings or [] if isinstance(f, dict)), key=lambda f: bool(f.get("ok")))
+    photos = [{"caption": p.caption, "uri": _thumbnail_uri(p.thumbnail.name)} for p in inspection.photos.all()]
+    rendered = render_pdf("pdf/inspection.html", {
+        "inspection": inspection, "weld": weld, "assembly": weld.assembly, "job": job, "system": system,
+        "size": wording.weld_size(weld), "length": wording.run_length(weld.length, system),
+        "recorded": inspection.recorded(system), "findings": findings, "photos": photos,
+        "ncrs": [str(n) for n in inspection.ncrs.all()], "superseded": not inspection.is_current,
+    }, f"inspection-{job.number}-{weld.assembly.piece_mark}-{weld.mark}-{inspection.pk}.pdf".replace(" ", "_"),
+        paper=job_paper(job))
+    return pdf_response(rendered)
+
+
 def next_weld(inspection):
     """The weld to go to after this one: the next by mark (wrapping round) still waiting for the inspector (no
     current final inspection, or a repair waiting for its re-inspection); None when none. One query."""

@@ -12,10 +12,11 @@ import re
 
 _RULES = (
     (re.compile(r"\bphi\s+R"), "\u03c6R"),  # phi Rn -> φRn
-    (re.compile(r"\bphi\b"), "\u03c6"),
-    (re.compile(r"\bOmega\b"), "\u03a9"),
-    (re.compile(r"\bbeta\b"), "\u03b2"),
-    (re.compile(r"\balpha\b"), "\u03b1"),
+    # a symbol stands alone: before a space, '=', ',', ')' or the end, never inside a word such as phi-free
+    (re.compile(r"\bphi(?=[\s=,)]|$)"), "\u03c6"),
+    (re.compile(r"\bOmega(?=[\s=,)]|$)"), "\u03a9"),
+    (re.compile(r"\bbeta(?=[\s=,)]|$)"), "\u03b2"),
+    (re.compile(r"\balpha(?=[\s=,)]|$)"), "\u03b1"),
     (re.compile(r"\b(in|mm|ft)(?:\^2|2)\b"), "\\1\u00b2"),
     (re.compile(r"<="), "\u2264"),
     (re.compile(r">="), "\u2265"),

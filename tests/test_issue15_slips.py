@@ -20,7 +20,8 @@ from tests.factory import L, parse_force
 from tests.pages_travelers import build_assembly
 
 ROOT = Path(__file__).resolve().parent.parent
-PROGRAM_WORDS = re.compile(r"observed\[|\b(?:min_size|undersize_length|throat_short_length|arc_strike|root_gap)\b")
+PROGRAM_WORDS = re.compile(r"observed\[|\b(?:min_size|undersize_length|throat_short_length|arc_strike|root_gap)\b"
+                           r"|\b(?:aws|iso)-[0-9]")
 
 
 def _text(content: bytes) -> str:
@@ -167,6 +168,14 @@ def test_no_program_name_reaches_the_tablet_page(make, client_as):
         html = client.post(reverse("inspections:inspect_preview", args=[weld.pk]), data).content.decode()
         text = re.sub(r"<[^>]+>", " ", html)
         assert not PROGRAM_WORDS.search(text), (data, PROGRAM_WORDS.search(text))
+    inspection = make.make_inspection(iso_weld, throat=L("4.3 mm"))
+    for url in (reverse("inspections:inspect_weld", args=[iso_weld.pk]), inspection.get_absolute_url(),
+                reverse("inspections:inspect_assembly", args=[iso_weld.assembly_id]),
+                reverse("inspections:weld_detail", args=[iso_weld.pk])):
+        text = re.sub(r"<[^>]+>", " ", client.get(url).content.decode())
+        text = re.sub(r"<script.*?</script>", " ", text, flags=re.S)
+        assert not PROGRAM_WORDS.search(text), (url, PROGRAM_WORDS.search(text))
+        assert "ISO 5817:2014 quality level C" in text
 
 
 def test_an_iso_job_judges_the_leg_it_leads_with_and_shows_a_and_z(make, client_as):

@@ -64,9 +64,19 @@ class Job(models.Model):
 
     @property
     def criteria_label(self) -> str:
+        """The criteria set as a person names it: 'ISO 5817:2014 quality level C', or the client set's title."""
         if self.client_criteria_id:
             return str(self.client_criteria)
-        return self.criteria_key
+        return criteria_words(self.criteria_key)
+
+
+def criteria_words(key: str) -> str:
+    """A built-in criteria set's key in words ('aws-d1.1-2020-static' -> 'AWS D1.1/D1.1M:2020 visual acceptance'
+    with its loading); any other key (a client set's own) as it is."""
+    from inspections.criteria import REGISTRY
+
+    cset = REGISTRY.get(key)
+    return cset.title if cset is not None else str(key)
 
 
 class AssemblyState(models.TextChoices):

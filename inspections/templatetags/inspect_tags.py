@@ -58,3 +58,11 @@ def status_class(word):
 @register.filter
 def criterion_label(name):
     return observations.criterion_label(name)
+
+
+@register.filter
+def criteria_words(key):
+    """A criteria set key as a person names the set (inspections.models.jobs.criteria_words)."""
+    from inspections.models.jobs import criteria_words as words
+
+    return words(key)

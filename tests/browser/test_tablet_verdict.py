@@ -20,8 +20,8 @@ from tests.factory import L
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 
-# What a program calls things, which no page may show a person: observed['throat'], min_size, aws-d1.1 keys aside.
-PROGRAM_WORDS = re.compile(r"observed\[|\b[a-z]+_[a-z_]+\b")
+# What a program calls things, which no page may show a person: observed['throat'], min_size, iso-5817-2014-C.
+PROGRAM_WORDS = re.compile(r"observed\[|\b[a-z]+_[a-z_]+\b|\b(?:aws|iso)-[0-9]")
 
 
 def _form(browser, live_server, weld):

@@ -84,7 +84,9 @@ def test_an_inspector_rejects_an_undersize_fillet_and_sees_the_ncr(width, browse
     assert file_input.get_attribute("capture") == "environment"
     file_input.send_keys(str(photo))
     _tap(browser, browser.find_element(By.CSS_SELECTOR, ".lw-photo-form button[type=submit]"))
-    thumb = wait.until(ec.visibility_of_element_located((By.CSS_SELECTOR, ".lw-photo img")))
+    # two thumbnails now: the one taken before signing and this one (wait for the second, not the first)
+    wait.until(lambda d: len(d.find_elements(By.CSS_SELECTOR, "#photos .lw-photo img")) == 2)
+    thumb = browser.find_elements(By.CSS_SELECTOR, "#photos .lw-photo img")[-1]
     wait.until(lambda d: d.execute_script("return arguments[0].complete && arguments[0].naturalWidth > 0", thumb))
     assert Photo.objects.filter(inspection=inspection).count() == 2
     assert browser.find_element(By.CSS_SELECTOR, ".lw-ncr-box a").text == ncr_text

@@ -64,6 +64,9 @@ setup() {
 case "${1:-}" in
   demo)
     setup
+    # The demo shop's name on its documents, and the address its travelers' QR codes open (see README, Deploying).
+    export LEGWORK_SHOP_NAME="${LEGWORK_SHOP_NAME:-Brannock Steelworks (demo)}"
+    export LEGWORK_BASE_URL="${LEGWORK_BASE_URL:-http://127.0.0.1:8000}"
     .venv/bin/python manage.py migrate --noinput -v0
     .venv/bin/python manage.py load_demo
     say "Serving Legwork with the demo shop at http://127.0.0.1:8000 (Ctrl-C stops it)"

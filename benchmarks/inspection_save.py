@@ -19,6 +19,7 @@ Loopback only; the database, the media folder and the server are removed at the 
 import argparse
 import http.client
 import os
+import re
 import secrets
 import shutil
 import signal
@@ -176,15 +177,15 @@ class Client:
         self.headers = {"Cookie": f"sessionid={session_key}; csrftoken={self.token}", "X-CSRFToken": self.token,
                         "Content-Type": "application/x-www-form-urlencoded", "Host": HOST}
 
-    def post(self, path, data):
+    def post(self, path, data, body=False):
         started = time.perf_counter()
         self.conn.request("POST", path, body=urlencode(data), headers=self.headers)
         response = self.conn.getresponse()
-        response.read()
+        content = response.read()
         wall = (time.perf_counter() - started) * 1000
         timing = response.getheader("Server-Timing", "")
         server = float(timing.split("dur=")[1]) if "dur=" in timing else float("nan")
-        return response.status, server, wall
+        return (response.status, server, wall, content) if body else (response.status, server, wall)
 
     def close(self):
         self.conn.close()
@@ -193,8 +194,20 @@ class Client:
 SAVE_DATA = {"stage": "final", "min_size": "1/4", "undercut_depth": "1/64", "remarks": "bench"}
 
 
+_SHOWN = {}  # weld pk -> the verdict fingerprint the live panel showed (signing carries it, as the tablet does)
+
+
+def _shown(client, weld_pk):
+    """What the tablet's panel shows before the inspector taps Sign: asked once per weld, not timed."""
+    if weld_pk not in _SHOWN:
+        *_, content = client.post(f"/inspections/inspect/weld/{weld_pk}/preview/", SAVE_DATA, body=True)
+        found = re.search(rb'name="shown_verdict" id="lw-shown" value="([0-9a-f]*)"', content)
+        _SHOWN[weld_pk] = found.group(1).decode() if found else ""
+    return _SHOWN[weld_pk]
+
+
 def _save(client, weld_pk):
-    return client.post(f"/inspections/inspect/weld/{weld_pk}/", SAVE_DATA)
+    return client.post(f"/inspections/inspect/weld/{weld_pk}/", {**SAVE_DATA, "shown_verdict": _shown(client, weld_pk)})
 
 
 def _bare(client, weld_pk):

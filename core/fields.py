@@ -230,10 +230,14 @@ def _exact_length_text(length, system):
 
 
 class TemperatureFormField(_QuantityFormField):
-    """Preheat and interpass: '50 F', '10 C'. A bare number is refused: 50 F is not 50 C."""
+    """Preheat and interpass: '50 F', '10 C'; a bare number is read in the record's system, as a bare length is
+    (50 is 50 °F on a US procedure, 50 °C on an SI one)."""
 
     parse = staticmethod(units.parse_temperature)
     format = staticmethod(units.format_temperature)
+
+    def default_unit(self):
+        return "F" if self.system == "US" else "C"
 
     def base(self, value):
         return value.c

@@ -49,12 +49,26 @@ def _static_fetcher():
     return LocalFetcher(allowed_protocols=("data", "file"))
 
 
-def render_pdf(template: str, context: dict, filename: str) -> RenderedPDF:
-    """Render a print template (templates/pdf/...) to a PDF. The cautions are always in the context."""
+PAPERS = {"a4": "A4", "letter": "letter"}
+
+
+def paper_for(system: str | None = None, standard: str | None = None) -> str:
+    """The paper a document prints on: the shop's LEGWORK_PAPER_SIZE when it names one ('A4' or 'letter'), else
+    A4 for a metric (SI) record or one written to an ISO standard and US Letter for the rest."""
+    chosen = str(getattr(settings, "LEGWORK_PAPER_SIZE", "") or "").strip().lower()
+    if chosen in PAPERS:
+        return PAPERS[chosen]
+    iso = str(standard or "").strip().upper().startswith("ISO")
+    return "A4" if system == "SI" or iso else "letter"
+
+
+def render_pdf(template: str, context: dict, filename: str, *, paper: str | None = None) -> RenderedPDF:
+    """Render a print template (templates/pdf/...) to a PDF on `paper` (paper_for(); default: the shop's choice,
+    else Letter). The cautions, the shop's name and the paper are always in the context."""
     from weasyprint import HTML
 
     context = {"cautions": CAUTIONS, "safety_note": SAFETY_NOTE, "generated_at": timezone.now(),
-               "shop_name": settings.LEGWORK_SHOP_NAME, **context}
+               "shop_name": settings.LEGWORK_SHOP_NAME, "paper": paper or paper_for(), **context}
     html = render_to_string(template, context)
     content = HTML(string=html, base_url="/", url_fetcher=_static_fetcher()).write_pdf()
     return RenderedPDF(filename=filename, content=content)

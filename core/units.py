@@ -319,6 +319,24 @@ def format_length(length: Length, system: str = "US", *, mm_places: int = 2) -> 
     return f'{mark}{whole}-{num}/{den}"'
 
 
+# From this length on, a US length of a run of weld or a member prints in feet and inches, as shop drawings write
+# long dimensions (30'-0"); shorter ones stay in inches, as weld sizes and symbols do (common practice, no source).
+FEET_FROM_INCHES = Decimal(24)
+
+
+def format_length_long(length: Length, system: str = "US") -> str:
+    """A length along a member (a weld run, a part): 30'-0" or 2'-6 1/2" from 2 ft on a US job; shorter lengths and
+    every SI length as format_length. Read back by parse_length ("30'-0\"" and "2'-6 1/2\"" both parse)."""
+    if not isinstance(length, Length):
+        length = parse_length(length)
+    if _system(system) == "SI" or length.inch < FEET_FROM_INCHES:
+        return format_length(length, system)
+    whole, num, den, exact = inch_fraction(length.inch)
+    feet, inches = divmod(whole, 12)
+    fraction = f" {num}/{den}" if num else ""
+    return f"{'' if exact else APPROX}{feet}'-{inches}{fraction}\""
+
+
 def _normal(value: Decimal) -> Decimal:
     """Strip trailing zeros without turning 30 into 3E+1, and print -0 (-0.3 °F rounded) as 0."""
     if value == 0:

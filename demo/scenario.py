@@ -1,13 +1,20 @@
 """The invented demo shop. Every name, number and record here is made up for the demo.
 
-Brannock Steelworks fabricates for three jobs: a parking-garage frame (US customary, AWS D1.1
-statically loaded), crane-runway girders (US customary, AWS D1.1 cyclically loaded) and a ferry-terminal
-canopy (SI, ISO 5817 quality level C). Records go through the same functions the pages use, so the
-demo shows verdicts, findings and states exactly as the app computes them.
-
-The proof chain, three ways: on the garage job, BR3 is released (every link holds), S7 waits on a draft WPS
-(BSW-103 was never approved) and P2 on a welder whose SMAW continuity lapsed (B-23). The procedures are approved
-when the demo loads, so its welds are dated the day it loads: a WPS must be approved on the day a weld is made.
+Brannock Steelworks fabricates for four jobs: a parking-garage frame (US customary, AWS D1.1
+statically loaded), crane-runway girders (US customary, AWS D1.1 cyclically loaded), a ferry-terminal
+canopy (SI, ISO 5817 quality level C) and a mill platform (AWS D1.1M in millimetres). Records go through
+the same functions the pages use, so the demo shows verdicts, findings and states exactly as the app
+computes them. What the demo shows, by where to look:
+- fit-up measured (a root opening that grows the leg, and one over the limit): J-2417 B12 W1, B14 W1;
+- ISO 5817 5213, a throat shortfall judged by its length (short: accepted; long: rejected): J-2431 K-07;
+  a weld drawn with the throat a only (a4): K-07 N3;
+- weld symbols drawn to the job's code, not its units (AWS A2.4 in mm): J-2440's traveler;
+- the inspector's queue: welds waiting at fit-up, final visual (one overdue) and re-inspection, identical
+  welds offered as one pass (J-2417 B13), an A514 lug waiting its 48 h (J-2440 L2), a draft kept for later.
+- the proof chain, three ways: on the garage job, BR3 is released (every link holds), S7 waits on a draft WPS
+  (BSW-103 was never approved) and P2 on a welder whose SMAW continuity lapsed (B-23). The procedures are
+  approved when the demo loads, so its welds are dated the day it loads (a WPS must be approved on the day a weld
+  is made); the welds waiting days for the inspector show as blocked until the shop records them again.
 """
 
 from datetime import date, timedelta
@@ -33,6 +40,12 @@ _ACCOUNTS = [
 
 def L(text):  # noqa: N802 - reads like the unit it builds
     return parse_length(text)
+
+
+def leg_for_throat(throat):
+    from inspections.strength import leg_for_throat as leg
+
+    return leg(throat)
 
 
 def accounts():
@@ -259,9 +272,13 @@ def _jobs(users, procedures, welders, today):
     canopy = Job.objects.create(number="J-2431", name="Ferry terminal canopy, Nordvik quay",
                                 customer="Nordvik Havn (invented)", unit_system="SI",
                                 criteria_key="iso-5817-2014-C")
+    platform = Job.objects.create(number="J-2440", name="Mill platform and lifting lugs, line 2",
+                                  customer="Ostrander Mill Services", unit_system="SI",
+                                  criteria_key="aws-d1.1-2020-static")
     _garage(garage, users, procedures, welders, today)
     _runway(runway, users, procedures, welders, today)
     _canopy(canopy, users, procedures, welders, today)
+    _platform(platform, users, procedures, welders, today)
 
 
 def _weld(assembly, mark, wps, welders, on, **fields):
@@ -281,7 +298,7 @@ def _inspect(weld, users, stage="final", **observed):
 
 
 def _garage(job, users, procedures, welders, today):
-    from inspections.models import Assembly
+    from inspections.models import Assembly, Weld
     from inspections.services.assemblies import release
     from inspections.services.ncr import disposition_use_as_is
 
@@ -295,9 +312,10 @@ def _garage(job, users, procedures, welders, today):
                thickness1=L("3/8 in"), thickness2=L("5/8 in"), position="H")
     w2 = _weld(beam, "W2", fcaw, [dana], day, size=L("3/16 in"), length=L("4 in"), count=4,
                thickness1=L("5/16 in"), thickness2=L("3/8 in"), position="V")
-    _inspect(w1, users, stage="fit_up", fit_up_ok=True)
-    _inspect(w1, users, min_size=L("1/4 in"), undercut_depth=L("1/64 in"), convexity=L("1/16 in"),
-             face_width=L("3/8 in"))
+    # Fit-up measured: a 1/16 in root opening, so the 1/4 in leg must reach 5/16 in (D1.1 clause 7.21.1).
+    _inspect(w1, users, stage="fit_up", fit_up_ok=True, root_gap=L("1/16 in"))
+    _inspect(w1, users, min_size=L("5/16 in"), undercut_depth=L("1/64 in"), convexity=L("1/16 in"),
+             face_width=L("7/16 in"))
     _inspect(w2, users, min_size=L("3/16 in"))
 
     column = Assembly.objects.create(job=job, piece_mark="C4", drawing="E-311", drawing_revision="1", quantity=2,
@@ -336,8 +354,26 @@ def _garage(job, users, procedures, welders, today):
                thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="F")
     _inspect(p1, users, min_size=L("1/4 in"))  # accepted, but B-23's SMAW continuity has lapsed
 
-    Assembly.objects.create(job=job, piece_mark="B13", drawing="E-205", drawing_revision="1", quantity=3,
-                            description="W16x26 beam, not yet welded")
+    # Waiting for the inspector: B13's identical shear-tab welds (one pass), one welded days ago (overdue), and B14
+    # at fit-up, where a root opening over 3/16 in was sent back.
+    beam13 = Assembly.objects.create(job=job, piece_mark="B13", drawing="E-205", drawing_revision="1", quantity=3,
+                                     description="W16x26 beam, shear tabs both ends")
+    for mark in ("W1", "W2"):
+        _weld(beam13, mark, fcaw, [dana], today - timedelta(days=4), size=L("1/4 in"), length=L("8 in"),
+              thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="V")
+    _weld(beam13, "W3", fcaw, [luis], today, size=L("3/16 in"), length=L("4 in"), count=2,
+          thickness1=L("5/16 in"), thickness2=L("3/8 in"), position="F")
+    beam14 = Assembly.objects.create(job=job, piece_mark="B14", drawing="E-206", drawing_revision="0", quantity=2,
+                                     description="W16x26 beam, shear tabs both ends, fitted")
+    b14 = Weld.objects.create(assembly=beam14, mark="W1", wps=fcaw, size=L("1/4 in"), length=L("8 in"),
+                              thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="V")
+    Weld.objects.create(assembly=beam14, mark="W2", wps=fcaw, size=L("1/4 in"), length=L("8 in"),
+                        thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="V")
+    _inspect(b14, users, stage="fit_up", fit_up_ok=True, root_gap=L("1/4 in"))
+    from inspections.services.inspect import keep_draft
+
+    keep_draft(b14.__class__.objects.get(assembly=beam13, mark="W3"), users[Role.INSPECTOR],
+               {"stage": ["final"], "min_size": ["3/16"], "remarks": ["Second side still to check"]})
 
 
 def _runway(job, users, procedures, welders, today):
@@ -379,8 +415,38 @@ def _canopy(job, users, procedures, welders, today):
                thickness1=L("10 mm"), thickness2=L("12 mm"), position="PB")
     k2 = _weld(truss, "N2", gmaw, [ingrid], day, size=L("5 mm"), length=L("140 mm"), count=4,
                thickness1=L("8 mm"), thickness2=L("10 mm"), position="PA")
-    _inspect(k1, users, throat=L("4.3 mm"), undercut_depth=L("0.3 mm"))
-    _inspect(k2, users, throat=L("3.5 mm"), pore_max=L("1.5 mm"))
+    # N3: the drawing gives the throat only (a4); the leg kept for the arithmetic is the one that throat needs.
+    k3 = _weld(truss, "N3", gmaw, [ingrid], day, size=leg_for_throat(L("4 mm")), size_on_drawing=False,
+               throat=L("4 mm"), length=L("300 mm"), thickness1=L("10 mm"), thickness2=L("12 mm"), position="PB")
+    # ISO 5817 5213: a throat under nominal is accepted at C only as a short imperfection (25 mm in any 100 mm).
+    _inspect(k1, users, stage="fit_up", fit_up_ok=True, root_gap=L("0.5 mm"))
+    _inspect(k1, users, throat=L("4.1 mm"), throat_short_length=L("20 mm"), undercut_depth=L("0.3 mm"))
+    _inspect(k2, users, throat=L("3.5 mm"), throat_short_length=L("15 mm"), pore_max=L("1.5 mm"))
+    _inspect(k3, users, throat=L("3.8 mm"), throat_short_length=L("60 mm"))
+
+
+def _platform(job, users, procedures, welders, today):
+    """AWS D1.1M in millimetres: the traveler draws AWS A2.4 symbols (arrow side below the line) with mm sizes;
+    a lifting lug of A514 waits 48 h after it cooled before its final visual."""
+    from inspections.models import Assembly
+
+    smaw = procedures["smaw"]
+    dana = welders["B-07"]
+    frame = Assembly.objects.create(job=job, piece_mark="P3", drawing="MP-12", drawing_revision="A", quantity=6,
+                                    description="Platform frame, 10 mm plates")
+    p1 = _weld(frame, "W1", smaw, [dana], today - timedelta(days=1), size=L("8 mm"), length=L("250 mm"),
+               sides="both", thickness1=L("10 mm"), thickness2=L("12 mm"), position="H")
+    p2 = _weld(frame, "W2", smaw, [dana], today - timedelta(days=1), size=L("6 mm"), length=L("100 mm"),
+               pitch=L("300 mm"), count=4, thickness1=L("10 mm"), thickness2=L("10 mm"), position="F",
+               field_weld=True)
+    _inspect(p1, users, min_size=L("8 mm"))
+    _inspect(p2, users, min_size=L("6 mm"))
+    lugs = Assembly.objects.create(job=job, piece_mark="L2", drawing="MP-30", drawing_revision="0", quantity=4,
+                                   description="Lifting lug, A514 plate to the beam")
+    cooled = timezone.now() - timedelta(hours=20)
+    _weld(lugs, "W1", smaw, [dana], timezone.localtime(cooled).date(), size=L("10 mm"), length=L("150 mm"),
+          sides="both", thickness1=L("20 mm"), thickness2=L("25 mm"), position="H",
+          base_metals="ASTM A514, ASTM A572 Gr 50", completed_at=cooled)
 
 
 __all__ = ["PASSWORD", "accounts", "load", "parse_force", "timedelta"]

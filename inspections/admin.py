@@ -25,7 +25,7 @@ class AssemblyAdmin(GuardedAdmin):
 class WeldAdmin(GuardedAdmin):
     """Read-only once inspected or its assembly closed: the weld page's revision step changes it then."""
 
-    list_display = ["mark", "assembly", "joint_type", "wps"]
+    list_display = ["mark", "assembly", "joint_type", "size", "length", "wps"]
     list_select_related = ["assembly", "wps"]
 
 

@@ -89,7 +89,7 @@ def finish(packet, file, sha256: str, pages: int, index: list):
     with transaction.atomic():
         built = transition(packet, allowed_from={PacketState.RUNNING}, to=PacketState.DONE, reason="Built",
                            file=file, sha256=sha256, pages=pages, index=index, progress_done=packet.progress_total,
-                           step="Done", finished_at=timezone.now())
+                           step="Every part merged into one file", finished_at=timezone.now())
         seals.seal(built, "packet.built")
     return built
 
@@ -148,6 +148,7 @@ def build_packet(packet_pk: int) -> JobPacket:
 
 def _build(packet: JobPacket, directory: Path):
     user = packet.requested_by
+    paper = travelers.job_paper(packet.job)
     pks = list(packet.assembly_pks)
     parts: list[Part] = []
     wps_pks, welder_pks, open_items, rows = {}, {}, [], []
@@ -173,14 +174,14 @@ def _build(packet: JobPacket, directory: Path):
         del snapshot  # one assembly's records in memory at a time
 
     for wps in WPS.objects.filter(pk__in=wps_pks).order_by("number", "revision"):
-        rendered = render_pdf("pdf/wps.html", printing.wps_document(wps), f"wps-{wps.pk}.pdf")
+        rendered = render_pdf("pdf/wps.html", printing.wps_document(wps), f"wps-{wps.pk}.pdf", paper=paper)
         parts.append(Part(f"WPS {wps.number} rev {wps.revision}", _spool(directory, f"wps-{wps.pk}.pdf",
                                                                          rendered.content),
                           travelers.page_count(rendered.content), "wps"))
     advance(packet, len(pks) + 1, "WPSs")
 
     for welder_pk in sorted(welder_pks, key=lambda pk: welder_pks[pk]["stamp"]):
-        content = _welder_summary(welder_pk)
+        content = _welder_summary(welder_pk, paper)
         parts.append(Part(f"Welder {welder_pks[welder_pk]['stamp']} {welder_pks[welder_pk]['name']}: "
                           "qualification summary", _spool(directory, f"welder-{welder_pk}.pdf", content),
                           travelers.page_count(content), "welder"))
@@ -189,10 +190,10 @@ def _build(packet: JobPacket, directory: Path):
     # The record chain's head as the packet is built: a customer holding the packet holds this anchor, so a
     # later rewrite of the chain before it shows (`manage.py verify_records --anchor SEQUENCE:HASH`).
     released = [r for r in rows if r["released"]]
-    context = {"packet": packet, "job": packet.job, "rows": rows, "open_items": open_items,
+    context = {"packet": packet, "job": packet.job, "rows": rows, "open_items": open_items, "paper": paper,
                "requested_by": travelers._person(user), "released": len(released),
                "not_released": [r["piece_mark"] for r in rows if not r["released"]], "chain_head": seals.head()}
-    rendered = render_pdf(COVER_TEMPLATE, {**context, "part": "open_items"}, "open-items.pdf")
+    rendered = render_pdf(COVER_TEMPLATE, {**context, "part": "open_items"}, "open-items.pdf", paper=paper)
     parts.append(Part("Open items", _spool(directory, "open-items.pdf", rendered.content),
                       travelers.page_count(rendered.content), "open_items"))
 
@@ -202,10 +203,10 @@ def _build(packet: JobPacket, directory: Path):
         finish(packet, File(handle, name=packet.filename), sha256, pages, index)
 
 
-def _welder_summary(welder_pk) -> bytes:
+def _welder_summary(welder_pk, paper=None) -> bytes:
     """The welder's qualification summary as the welder pages print it (procedures.printing)."""
     context = printing.welder_context(printing.welder_with_records(welder_pk))
-    return render_pdf("pdf/welder_summary.html", context, f"welder-{welder_pk}.pdf").content
+    return render_pdf("pdf/welder_summary.html", context, f"welder-{welder_pk}.pdf", paper=paper).content
 
 
 def _cover(context, parts) -> tuple[bytes, list]:
@@ -221,7 +222,7 @@ def _cover(context, parts) -> tuple[bytes, list]:
             index.append({"title": part.title, "kind": part.kind, "first_page": page, "pages": part.pages})
             page += part.pages
         rendered = render_pdf(COVER_TEMPLATE, {**context, "part": "cover", "index": index, "total_pages": page - 1},
-                              "cover.pdf")
+                              "cover.pdf", paper=context["paper"])
         actual = travelers.page_count(rendered.content)
         if actual == cover_pages:
             return rendered.content, [{"title": "Cover and index", "kind": "cover", "first_page": 1,

@@ -422,6 +422,16 @@ def effective_throat(leg, leg2=None) -> Length:
     return Length(_throat_value(a.mm, None if b is None else b.mm))
 
 
+def leg_for_throat(throat) -> Length:
+    """The equal leg whose effective throat is `throat` (AISC 360-16 J2.2a read backwards: w = a / 0.707), for a
+    drawing that gives only the throat a (ISO 2553). Rounded to the 7 places lengths are stored at, so its throat
+    comes back within 1e-7 mm of a."""
+    a = parse_length(throat)
+    if a.mm <= 0:
+        raise ValueError("A fillet throat must be greater than zero, e.g. 4 mm or 3/16 in.")
+    return Length(a.mm / THROAT_EQUAL_LEGS)
+
+
 def _throat(a: Decimal, b: Decimal | None, system: str) -> tuple[Decimal, Step]:
     """Effective throat in inches, AISC 360-16 J2.2a, with its step for the calculation trail."""
     throat = _throat_value(a, b)

@@ -28,12 +28,14 @@ from django.urls import reverse
 from django.utils import timezone
 
 from core import seals
-from core.pdf import RenderedPDF, render_pdf
+from core.notation import trade
+from core.pdf import RenderedPDF, paper_for, render_pdf
 from core.roles import require
-from core.units import Length, format_force, format_length
-from inspections import weld_symbols
+from core.units import Length, format_length
+from inspections import weld_symbols, wording
 from inspections.models import Assembly, Inspection, InspectionStage, Photo, Weld
 from inspections.models.traveler import Traveler
+from inspections.services import capacity as capacities
 from inspections.services import chain as proof
 from inspections.services.assemblies import weld_statuses
 
@@ -92,69 +94,66 @@ def _criteria(job) -> dict:
         return {"key": key, "version": version, "title": job.criteria_label, "standard": f"unreadable: {exc}"}
 
 
+def job_paper(job) -> str:
+    """The paper the job's documents print on (core.pdf.paper_for: the shop's choice, else A4 for SI or ISO jobs
+    and Letter for the rest)."""
+    return paper_for(job.unit_system, _criteria(job)["standard"])
+
+
+def _convention(job) -> str:
+    """The drawing standard of the job's symbols: AWS A2.4 for AWS jobs in either unit system, ISO 2553 for ISO."""
+    try:
+        return weld_symbols.drawing_standard(job.criteria_for_evaluation())
+    except ValueError:
+        return weld_symbols.AWS if job.unit_system == "US" else weld_symbols.ISO
+
+
 def _inspection(inspection: Inspection | None, system: str) -> dict | None:
+    """An inspection as the traveler prints it: who, when, the verdict and what was recorded, in the table of
+    observations' words (inspections.observations through Inspection.recorded)."""
     if inspection is None:
         return None
     return {"pk": inspection.pk, "accepted": inspection.accepted, "inspector": _person(inspection.inspector),
-            "date": _day(inspection.inspected_at), "min_leg": _len(inspection.min_size, system),
-            "stage": inspection.get_stage_display()}
-
-
-def _fexx(wps) -> str | None:
-    """Filler strength for the strength engine, from the WPS electrode (procedures.electrodes decides)."""
-    if wps is None or not wps.electrode:
-        return None
-    from procedures.electrodes import decode
-
-    try:
-        return f"{decode(wps.electrode).tensile_ksi} ksi"
-    except ValueError:
-        return None
+            "date": _day(inspection.inspected_at), "stage": inspection.get_stage_display(),
+            "recorded": [f"{label} {value}" for label, value in inspection.recorded(system)]}
 
 
 def _capacity(weld: Weld, final: Inspection | None, system: str) -> dict | None:
-    """Required strength against the available strength (inspections.strength decides; LRFD)."""
+    """Required strength against the available strength, as the calculation sheet has it (LRFD): the same service
+    (inspections.services.capacity) and so the same filler metal rule, never a figure of its own."""
     if weld.required_strength is None or weld.joint_type != "fillet":
         return None
-    from inspections import strength
-
-    required = format_force(weld.required_strength, system)
-    fexx = _fexx(weld.wps)
-    row = {"mark": weld.mark, "required": required, "fexx": fexx or "", "specified": "", "as_inspected": "",
-           "ratio": "", "ok": None, "note": "", "source": f"{strength.SPEC} J2.4, B3 (LRFD)"}
-    if fexx is None:
-        row["note"] = "Filler strength unknown (no WPS, or its electrode cannot be read): not calculated."
+    design = capacities.capacity_for_weld(weld)
+    row = {"mark": weld.mark, "required": design["required"] or "", "fexx": design["fexx"] or "",
+           "specified": "", "as_inspected": "", "ratio": "", "ok": None, "note": "", "not_counted": [],
+           "source": "AISC 360-16 J2.4, B3 (LRFD)", "limits": capacities.NOT_COUNTED}
+    if design["error"]:
+        row["note"] = trade(design["error"])
         return row
-    try:
-        specified = strength.fillet_strength(weld.size, weld.length, fexx, weld.load_angle, leg2=weld.size2)
-        row["specified"] = format_force(_kip(specified.lrfd_kip), system)
-        result, verdict = specified, strength.demand_capacity(specified, required)
-        smallest_specified = min(weld.size, weld.size2 or weld.size)
-        if final is not None and final.min_size is not None and final.min_size < smallest_specified:
-            inspected = strength.as_inspected_capacity(
-                weld.size, weld.length, final.min_size, final.undersize_length or weld.length, fexx, weld.load_angle,
-                required=required, specified_leg2=weld.size2)
-            result = inspected.as_inspected
-            row["as_inspected"] = format_force(_kip(result.lrfd_kip), system)
-            verdict = strength.demand_capacity(result, required)
-        row["ratio"] = f"{verdict.ratio:.2f}"
-        row["ok"] = bool(verdict.ok)
-    except ValueError as exc:
-        row["note"] = str(exc)
+    row["specified"] = design["results"][0]["main"]["lrfd"]
+    figure = design
+    if final is not None:
+        final.weld = weld
+        row["not_counted"] = capacities.defects_not_counted(final)
+        if capacities.found_undersize(final, weld):
+            inspected = capacities.capacity_for_inspection(final)
+            if inspected["error"]:
+                row["note"] = trade(inspected["error"])
+                return row
+            row["as_inspected"] = inspected["results"][0]["main"]["lrfd"]
+            figure = inspected
+    row["ratio"], row["ok"] = figure["ratio"] or "", figure["ok"]
+    _fexx, source = capacities.fexx_for_weld(weld)
+    if "assumed" in source:
+        row["note"] = f"Filler metal: {source}."
     return row
-
-
-def _kip(value):
-    from core.units import parse_force
-
-    return parse_force(f"{value} kip")
 
 
 def _photo_rows(photos, weld_marks) -> list[dict]:
     rows = []
     for photo in photos:
         rows.append({"pk": photo.pk, "sha256": photo.sha256, "thumbnail": photo.thumbnail.name,
-                     "caption": photo.caption or f"Photo {photo.pk}",
+                     "caption": photo.caption,
                      "weld": weld_marks.get(photo.inspection.weld_id, ""),
                      "stage": photo.inspection.get_stage_display(), "date": _day(photo.uploaded_at)})
     return rows
@@ -168,8 +167,12 @@ def gather(assembly_pk: int) -> dict:
     assembly = (Assembly.objects.select_related("job__client_criteria", "released_by").get(pk=assembly_pk))
     job = assembly.job
     system = job.unit_system
+    iso = wording.throat_first(job)
+    convention = _convention(job)
     welds = list(Weld.objects.filter(assembly=assembly).select_related("wps")
                  .prefetch_related("welders").order_by("mark"))
+    for weld in welds:
+        weld.assembly = assembly  # the capacity service and the size words read the job from here
     weld_ids = [w.pk for w in welds]
     marks = {w.pk: w.mark for w in welds}
     statuses = weld_statuses(weld_ids)  # the release rules live there (services.assemblies)
@@ -218,13 +221,15 @@ def gather(assembly_pk: int) -> dict:
         result = "Not inspected"
         if final is not None:
             result = "Accepted" if final.accepted else ("Use as is (NCR)" if status.accepted_as_is else "Rejected")
+        leg_drawn = weld.size_on_drawing or weld.throat is None
         row = {
             "pk": weld.pk, "mark": weld.mark, "joint": weld.get_joint_type_display(),
             "sides": weld.get_sides_display(), "position": weld.position,
-            "size": _len(weld.size, system) + (f" x {_len(weld.size2, system)}" if weld.size2 else ""),
-            "length": _len(weld.length, system), "count": weld.count,
+            "size": wording.size_text(weld, system, iso),
+            "length": wording.run_length(weld.length, system), "count": weld.count,
             "pitch": _len(weld.pitch, system),
-            "symbol": {"sides": weld.sides, "size": _exact(weld.size), "size2": _exact(weld.size2),
+            "symbol": {"sides": weld.sides, "size": _exact(weld.size) if leg_drawn else None,
+                       "size2": _exact(weld.size2) if leg_drawn else None, "throat": _exact(weld.throat),
                        "length": _exact(weld.length), "pitch": _exact(weld.pitch), "all_around": weld.all_around,
                        "field_weld": weld.field_weld, "joint": weld.joint_type,
                        "tail": f"{wps.number}" if wps else ""},
@@ -293,7 +298,7 @@ def gather(assembly_pk: int) -> dict:
                      "description": assembly.description, "state": assembly.get_state_display(),
                      "released": released},
         "criteria": _criteria(job),
-        "convention": weld_symbols.AWS if system == "US" else weld_symbols.ISO,
+        "convention": convention, "paper": job_paper(job),
         "url": assembly_url(assembly.pk),
         "welds": rows, "hold_points": hold_points, "capacity": capacity,
         "photos": _photo_rows(photos[:PHOTOS_MAX], marks), "photos_more": len(photos) > PHOTOS_MAX,
@@ -351,27 +356,28 @@ def _thumbnail_uri(name: str) -> str | None:
     return "data:image/jpeg;base64," + base64.b64encode(data).decode("ascii")
 
 
-def symbol_svg(row: dict, system: str) -> str:
-    """The weld's symbol as an SVG string ("" when the weld's data cannot be drawn)."""
+def symbol_svg(row: dict, system: str, standard=None) -> str:
+    """The weld's symbol as an SVG string, drawn to the job's drawing standard ("" when the weld's data cannot be
+    drawn)."""
     # Printed without the tail's WPS reference (the WPS column beside it prints it) and without a <title>:
     # each drawn text costs WeasyPrint about as much as a table cell, on every row. The lean drawing puts every
     # line in one path (WeasyPrint draws an SVG node by node at each occurrence): ~13 nodes a symbol down to ~5.
     try:
-        return weld_symbols.weld_symbol_svg(system, lean=True, **{**row["symbol"], "tail": ""})
+        return weld_symbols.weld_symbol_svg(system, lean=True, standard=standard, **{**row["symbol"], "tail": ""})
     except ValueError:
         return ""
 
 
-def symbol_uri(row: dict, system: str) -> str:
+def symbol_uri(row: dict, system: str, standard=None) -> str:
     """The symbol as an SVG data: URI. WeasyPrint caches images by URI, so the identical symbols of a weld map
     (most welds of an assembly repeat a few sizes) are parsed once per render instead of once per row."""
-    svg = symbol_svg(row, system)
+    svg = symbol_svg(row, system, standard)
     return "data:image/svg+xml;base64," + base64.b64encode(svg.encode()).decode("ascii") if svg else ""
 
 
 def render_context(snapshot: dict, *, document_number: str, revision: int, issued_at, issued_by: str) -> dict:
     system = snapshot["job"]["system"]
-    welds = [{**row, "svg": symbol_uri(row, system)} for row in snapshot["welds"]]
+    welds = [{**row, "svg": symbol_uri(row, system, snapshot.get("convention"))} for row in snapshot["welds"]]
     photos = [{**photo, "uri": _thumbnail_uri(photo["thumbnail"])} for photo in snapshot["photos"]]
     return {"s": snapshot, "welds": welds, "photos": photos, "qr": qr_data_uri(snapshot["url"]),
             "document_number": document_number, "revision": revision, "generated_at": issued_at,
@@ -383,7 +389,7 @@ def render(snapshot: dict, *, document_number: str, revision: int, issued_at=Non
     issued_at = issued_at or timezone.now()
     context = render_context(snapshot, document_number=document_number, revision=revision, issued_at=issued_at,
                              issued_by=issued_by)
-    return render_pdf(TEMPLATE, context, f"{document_number}.pdf")
+    return render_pdf(TEMPLATE, context, f"{document_number}.pdf", paper=snapshot.get("paper"))
 
 
 def page_count(content: bytes) -> int:

@@ -43,11 +43,15 @@ urlpatterns = [
     # end of jobs, assemblies, weld maps, NCRs, criteria sets
     # tablet inspection and photos (inspections.views.inspect)
     path("inspect/", inspect_views.inspect_home, name="inspect_home"),
+    path("inspect/queue/", inspect_views.inspect_queue, name="inspect_queue"),
     path("a/<int:pk>/", inspect_views.inspect_assembly, name="inspect_assembly"),
     path("inspect/weld/<int:pk>/", inspect_views.inspect_weld, name="inspect_weld"),
     path("inspect/weld/<int:pk>/preview/", inspect_views.inspect_preview, name="inspect_preview"),
+    path("inspect/held-photos/<int:pk>/", inspect_views.draft_photo_file, name="draft_photo_file"),
+    path("inspect/held-photos/<int:pk>/remove/", inspect_views.draft_photo_remove, name="draft_photo_remove"),
     path("inspection/<int:pk>/", inspect_views.inspection_detail, name="inspection_detail"),
     path("inspection/<int:pk>/correct/", inspect_views.inspection_correct, name="inspection_correct"),
+    path("inspection/<int:pk>.pdf", inspect_views.inspection_pdf, name="inspection_pdf"),
     path("inspection/<int:pk>/photos/", inspect_views.photo_add, name="photo_add"),
     path("photos/<int:pk>/", inspect_views.photo_file, name="photo_file"),
     path("photos/<int:pk>/thumbnail/", inspect_views.photo_file, {"size": "thumbnail"}, name="photo_thumbnail"),

@@ -194,7 +194,13 @@ LOGGING = {
     "root": {"handlers": ["console"], "level": env_str("LEGWORK_LOG_LEVEL", "WARNING")},
 }
 
-# Shown on every page and printed on every PDF (legwork.cautions).
+# Printed in the footer of every PDF (travelers, packets, WPSs, calculation sheets): the shop's name.
 LEGWORK_SHOP_NAME = env_str("LEGWORK_SHOP_NAME", "Legwork")
 # Where people reach this Legwork: travelers print QR codes and links to it (no trailing slash needed).
 LEGWORK_BASE_URL = env_str("LEGWORK_BASE_URL", "http://127.0.0.1:8000")
+# The paper documents print on: empty (the default) follows each record (A4 for SI or ISO jobs and procedures,
+# US Letter for the rest); "A4" or "letter" prints everything on that paper (core.pdf.paper_for).
+LEGWORK_PAPER_SIZE = env_str("LEGWORK_PAPER_SIZE", "")
+# The inspector's queue marks a final visual overdue this many days after the weld was completed (common practice,
+# no source: a shop's own target).
+LEGWORK_INSPECTION_DUE_DAYS = env_int("LEGWORK_INSPECTION_DUE_DAYS", 2)

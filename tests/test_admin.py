@@ -1,6 +1,7 @@
 """The admin cannot change what is signed: approved procedures, test records, inspections, history."""
 
 import pytest
+from django.contrib import admin
 from django.urls import reverse
 
 from procedures.models.wps import WPSState
@@ -106,3 +107,25 @@ def test_an_inspected_welds_size_cannot_be_changed_in_the_admin(admin_client_, m
     assert admin_client_.post(url, {"size": "1"}).status_code == 403
     weld.refresh_from_db()
     assert weld.size == L("1/4 in")
+# --- quantities print as the pages print them (issue 15: "Speed(mm_per_min=Decimal(...", "76.2 mm000") ----------
+
+def test_a_signed_inspection_shows_its_lengths_in_the_jobs_units(admin_client_, make):
+    inspection = make.make_inspection(min_size="3/16 in", undersize_length="3 in")
+    html = admin_client_.get(reverse("admin:inspections_inspection_change", args=[inspection.pk])).content.decode()
+    assert "3/16&quot;" in html and "3&quot;" in html
+    assert "mm000" not in html and "Length(" not in html
+
+
+def test_an_approved_wps_shows_speeds_temperatures_and_amps_as_the_pages_do(admin_client_, make):
+    wps = make.make_wps(state=WPSState.APPROVED)
+    html = admin_client_.get(reverse("admin:procedures_wps_change", args=[wps.pk])).content.decode()
+    assert "Speed(" not in html and "Temperature(" not in html and "mm000" not in html
+    assert "8 in/min" in html and "50 °F" in html
+
+
+def test_lists_show_quantities_in_words(admin_client_, make):
+    weld = make.make_weld(size=L("1/4 in"))
+    WeldAdmin = type(admin.site._registry[type(weld)])  # noqa: N806 - a class
+    assert "size_shown" in WeldAdmin(type(weld), admin.site).get_list_display(None)
+    html = admin_client_.get(reverse("admin:inspections_weld_changelist")).content.decode()
+    assert "1/4&quot;" in html and "mm000" not in html

@@ -50,3 +50,22 @@ def test_the_demo_shows_the_proof_chain_three_ways(db):
     assert release_blockers(girder) == []
     canopy = Assembly.objects.get(job__number="J-2431", piece_mark="K-07")  # ISO: WPS supported by its WPQR
     assert not any("WPS" in b for b in release_blockers(canopy))
+def test_the_demo_shows_fit_up_measured_iso_throat_length_and_symbols_by_code(db):
+    """Issue 13 asks the demo to show items 5 (5213 shortfall length), 7 (symbols by the job's code) and 9 (fit-up
+    measured); issue 15 the queue, identical welds in one pass, the 48 h wait and a throat-only ISO weld."""
+    from inspections import queue
+    from inspections.traveler import gather
+
+    call_command("load_demo", verbosity=0)
+    b12 = Inspection.objects.get(weld__assembly__piece_mark="B12", weld__mark="W1", stage="final")
+    assert b12.accepted and b12.leg_increase is not None  # item 9: judged against the leg grown by the opening
+    assert not Inspection.objects.get(weld__assembly__piece_mark="B14", stage="fit_up").accepted
+    canopy = {i.weld.mark: i for i in Inspection.objects.filter(weld__assembly__piece_mark="K-07", stage="final")}
+    assert canopy["N1"].accepted and canopy["N1"].throat_short_length is not None  # item 5: a short shortfall
+    assert not canopy["N3"].accepted and "not permitted" in str(canopy["N3"].findings)  # a long one
+    platform = gather(Assembly.objects.get(job__number="J-2440", piece_mark="P3").pk)
+    assert platform["convention"] == "AWS A2.4" and platform["job"]["system"] == "SI"  # item 7
+    assert gather(Assembly.objects.get(piece_mark="K-07").pk)["welds"][2]["size"] == "a4"
+    waiting = {(q.job.number, s.key) for q in queue.waiting() for s in q.stages}
+    assert {("J-2417", "fit_up"), ("J-2417", "final"), ("J-2440", "final")} <= waiting
+    assert any(a.overdue for q in queue.waiting() for s in q.stages for a in s.assemblies)

@@ -52,11 +52,11 @@ def test_the_form_field_puts_the_engines_message_beside_the_field(typed):
         LengthFormField(allow_zero=False).clean(typed)
 
 
-def test_a_temperature_without_a_unit_is_refused_in_a_form():
-    from django.core.exceptions import ValidationError
-
-    with pytest.raises(ValidationError, match="no unit"):
-        TemperatureFormField().clean("50")
+def test_a_bare_temperature_is_read_in_the_records_system_as_a_bare_length_is():
+    """Issue 15: a bare "50" preheat was refused on a US WPS while bare lengths were read in the job's units."""
+    assert TemperatureFormField(system="US").clean("50") == parse_temperature("50 F")
+    assert TemperatureFormField(system="SI").clean("10") == parse_temperature("10 C")
+    assert TemperatureFormField(system="US").clean("10 C") == parse_temperature("10 C")  # a unit typed wins
 
 
 def test_a_stored_length_shows_in_the_form_as_typed_text():

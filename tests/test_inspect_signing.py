@@ -55,7 +55,8 @@ def test_signing_stores_findings_with_sources_and_the_criteria_version(make):
 def test_a_rejected_final_inspection_opens_an_ncr_and_rejects_the_assembly(make):
     inspection = make.make_inspection(min_size="1/8 in")
     ncr = NCR.objects.get(inspection=inspection)
-    assert "undersize" in ncr.description
+    assert "- Undersize: smallest leg 1/8\"" in ncr.description  # the finding's heading, never the engine's name
+    assert "undersize:" not in ncr.description
     inspection.weld.assembly.refresh_from_db()
     assert inspection.weld.assembly.state == AssemblyState.REJECTED
 

@@ -1,6 +1,8 @@
 """The tablet pages: search, the assembly's weld cards, the inspection form with its live preview, signing,
 corrections and the inspection page; roles, 404s, nasty inputs and fixed query counts."""
 
+import re
+
 import pytest
 from django.urls import reverse
 
@@ -15,6 +17,20 @@ def _media(settings, tmp_path):
 
 def _post(weld, **data):
     return {"stage": "final", **data}
+
+
+def shown(client, weld, data):
+    """The verdict fingerprint the live panel shows for these inputs (what a signing must carry)."""
+    html = client.post(reverse("inspections:inspect_preview", args=[weld.pk]), data).content.decode()
+    match = re.search(r'name="shown_verdict" id="lw-shown" value="([0-9a-f]*)"', html)
+    assert match, html
+    return match.group(1)
+
+
+def sign(client, weld, data, url=None, **kwargs):
+    """Sign as the tablet does: the panel shows the verdict, the sign button carries its fingerprint."""
+    return client.post(url or reverse("inspections:inspect_weld", args=[weld.pk]),
+                       {**data, "shown_verdict": shown(client, weld, data)}, **kwargs)
 
 
 # --- finding an assembly --------------------------------------------------------------------------------
@@ -70,10 +86,11 @@ def test_the_assembly_page_uses_the_same_queries_for_2_or_20_welds(make, client_
     small, large = page(2), page(20)
     client = client_as("inspector")
     client.get(small)  # warm the session
-    # session + user, assembly with job, welds with WPS, current inspections, NCRs, the WPSs' next revisions
-    with django_assert_num_queries(7):
+    # session + user, assembly with job, welds with WPS, current inspections, NCRs, the WPSs' next revisions,
+    # the inspector's drafts
+    with django_assert_num_queries(8):
         assert client.get(small).status_code == 200
-    with django_assert_num_queries(7):
+    with django_assert_num_queries(8):
         response = client.get(large)
     assert response.content.decode().count("lw-weld-card ") == 20
 
@@ -89,7 +106,8 @@ def test_the_form_reads_fractions_on_a_us_job_with_a_keyboard_that_has_a_slash(m
     html = client_as("inspector").get(reverse("inspections:inspect_weld", args=[weld.pk])).content.decode()
     assert 'name="min_size"' in html and 'inputmode="text"' in html
     assert 'hx-post="' + reverse("inspections:inspect_preview", args=[weld.pk]) in html
-    assert 'hx-trigger="input changed delay:300ms"' in html
+    # every input and every change (a switch's value does not change when ticked) refreshes the panel
+    assert 'hx-trigger="load, input delay:250ms, change"' in html
 
 
 def test_the_form_brings_up_the_decimal_keypad_on_an_si_job(make, client_as):
@@ -134,8 +152,7 @@ def test_the_preview_needs_the_inspector_role(make, client_as):
 
 def test_saving_signs_and_shows_the_ncr(make, client_as, users):
     weld = make.make_weld(size=L("1/4 in"))
-    response = client_as("inspector").post(reverse("inspections:inspect_weld", args=[weld.pk]),
-                                           _post(weld, min_size="1/8", remarks="toe side"), follow=True)
+    response = sign(client_as("inspector"), weld, _post(weld, min_size="1/8", remarks="toe side"), follow=True)
     inspection = Inspection.objects.get()
     ncr = NCR.objects.get()
     assert inspection.inspector == users["inspector"] and inspection.min_size == L("1/8 in")
@@ -157,7 +174,7 @@ def test_bad_input_gives_a_field_error_and_changes_nothing(data, make, client_as
     weld = make.make_weld(size=L("1/4 in"), length=L("12 in"))
     response = client_as("inspector").post(reverse("inspections:inspect_weld", args=[weld.pk]), {"stage": "final",
                                                                                                   **data})
-    assert response.status_code == 200
+    assert response.status_code == 400
     assert 'class="invalid-feedback' in response.content.decode() or "alert-danger" in response.content.decode()
     assert Inspection.objects.count() == 0 and NCR.objects.count() == 0
 
@@ -181,7 +198,7 @@ def test_the_weld_form_uses_a_fixed_number_of_queries(make, client_as, django_as
     client = client_as("inspector")
     url = reverse("inspections:inspect_weld", args=[weld.pk])
     client.get(url)
-    with django_assert_num_queries(3):  # session, user, weld with assembly, job, client set and WPS
+    with django_assert_num_queries(4):  # session, user, weld with assembly, job, client set and WPS, own draft
         client.get(url)
 
 
@@ -205,8 +222,9 @@ def test_the_inspection_page_uses_a_fixed_number_of_queries(make, client_as, dja
         make.make_photo(inspection)
     client = client_as("inspector")
     client.get(inspection.get_absolute_url())
-    # session, user, inspection (+ weld, assembly, job, people, neighbours), later link, photos, NCRs, history
-    with django_assert_num_queries(7):
+    # session, user, inspection (+ weld, assembly, job, people, neighbours), later link, photos, NCRs, history,
+    # next weld
+    with django_assert_num_queries(8):
         client.get(inspection.get_absolute_url())
 
 
@@ -216,7 +234,7 @@ def test_a_correction_through_the_page_supersedes_with_a_reason(make, client_as)
     url = reverse("inspections:inspection_correct", args=[old.pk])
     form = client.get(url).content.decode()
     assert 'value="1/8&quot;"' in form or 'value="1/8"' in form  # prefilled with what was recorded
-    response = client.post(url, _post(old.weld, min_size="1/4", correction_reason="read the wrong leg"))
+    response = sign(client, old.weld, _post(old.weld, min_size="1/4", correction_reason="read the wrong leg"), url=url)
     new = Inspection.objects.get(supersedes=old)
     assert response.status_code == 302 and response.url == new.get_absolute_url()
     assert new.accepted and new.correction_reason == "read the wrong leg"
@@ -224,8 +242,8 @@ def test_a_correction_through_the_page_supersedes_with_a_reason(make, client_as)
 
 def test_a_correction_needs_a_reason_and_changes_nothing_without_one(make, client_as):
     old = make.make_inspection(min_size="1/8 in")
-    response = client_as("inspector").post(reverse("inspections:inspection_correct", args=[old.pk]),
-                                           _post(old.weld, min_size="1/4", correction_reason="   "))
+    response = sign(client_as("inspector"), old.weld, _post(old.weld, min_size="1/4", correction_reason="   "),
+                    url=reverse("inspections:inspection_correct", args=[old.pk]))
     assert response.status_code == 200 and "Say why" in response.content.decode()
     assert Inspection.objects.count() == 1
 

@@ -32,7 +32,7 @@ def test_a_posted_heat_input_is_ignored(client_as):
 
 
 @pytest.mark.parametrize("field, value, message", [
-    ("preheat", "50", "has no unit"),
+    ("preheat", "50 K", "not a temperature unit"),
     ("electrode", "E99Q", "E99Q"),
     ("travel_speed", "-10", "negative"),
     ("amperage", "5000", "2000 A"),

@@ -97,9 +97,31 @@ def test_scrap(make, weld, users, django_assert_num_queries):
 # Savepoints count as queries on both databases (each transition is its own atomic block inside the signing).
 # A seal (core.seals) costs 4: the record read back, the chain head locked, the seal inserted, the head moved on;
 # a signing that seals also locks the chain first (1), in its own atomic block where it was not one (2).
-SIGN_ACCEPTED = 17  # lock chain, weld; state; insert + history row; seal; point the weld; refresh; savepoints
-SIGN_REJECTED = 28  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
+SIGN_ACCEPTED = 18  # lock chain, weld; state; latest fit-up; insert + history; seal; point the weld; refresh
+SIGN_REJECTED = 29  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
 REPAIR = 20  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh
-SIGN_CLOSING_REPAIR = 31  # an accepted signing + the waiting NCR closed (transition, seal) + the assembly's move back
+SIGN_CLOSING_REPAIR = 32  # an accepted signing + the waiting NCR closed (transition, seal) + the assembly's move back
 USE_AS_IS = 26  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals; refresh
 SCRAP = 25  # the NCR with its records; chain, its transition and two seals; the assembly's transition to scrapped
+
+
+def test_the_ncr_page_reads_a_fixed_number_of_queries(make, weld, client_as, django_assert_num_queries):
+    """The NCR page: the NCR with its records, history, the capacity card and the recorded observations."""
+    ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))
+    client = client_as("qa_lead")
+    url = ncr.get_absolute_url()
+    client.get(url)
+    with django_assert_num_queries(NCR_PAGE_OPEN):
+        assert client.get(url).status_code == 200
+    disposition_repair(ncr, make.make_user("qa_lead"), make.make_wps(state=WPSState.APPROVED),
+                       qualified_welder(make), "Grind out and re-weld")
+    with django_assert_num_queries(NCR_PAGE_DISPOSITIONED):
+        assert client.get(url).status_code == 200
+
+
+# session, user, the NCR with its weld, assembly, job, WPS, inspection and people, its history, and the repair WPS
+# list and welder list of the disposition forms (the capacity card reads what is loaded)
+NCR_PAGE_OPEN = 7
+# dispositioned for repair: no disposition forms, but the repair record and the form to record it (its WPS and
+# welder lists)
+NCR_PAGE_DISPOSITIONED = 7

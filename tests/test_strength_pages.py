@@ -70,7 +70,7 @@ def test_manual_part_8_quarter_inch_e70_one_inch_long(client_as):
     page = response.content.decode()
     assert "5.568 kip" in page and "3.712 kip" in page
     assert "24.77 kN" in page  # the same in SI: 5.5676 kip x 4.448222 kN/kip
-    assert "E = 0.707 w = 0.707 x 1/4 in" in page  # the step with its numbers
+    assert "E = 0.707 w = 0.707 × 1/4 in" in page  # the step with its numbers, in trade notation
     assert "AISC 360-16 J2.2a" in page and "The engineer of record decides" in page
 
 
@@ -86,7 +86,7 @@ def test_si_toggle_reads_bare_numbers_in_millimetres(client_as):
                                           "angle": "0"}).content.decode()
     # 0.60 x 480 MPa x 0.707 x 6 mm x 100 mm = 122.2 kN nominal; phi Rn = 91.63 kN
     assert "122.2 kN" in page and "91.63 kN" in page
-    assert "0.707 x 6 mm" in page
+    assert "0.707 × 6 mm" in page
 
 
 def test_plate_and_required_strength_say_what_governs(client_as):
@@ -176,7 +176,7 @@ def test_the_calculator_pdf_carries_the_steps_and_the_cautions(client_as):
     response = client_as("welding_engineer").get(SHEET_PDF, MANUAL)
     text = flat(pdf_text(response))
     assert "Calculation sheet: Fillet weld strength" in text
-    assert "E = 0.707 w = 0.707 x 1/4 in" in text and "5.568 kip" in text and "3.712 kip" in text
+    assert "E = 0.707 w = 0.707 × 1/4 in" in text and "5.568 kip" in text and "3.712 kip" in text
     assert "The engineer of record decides" in text and "checks the arithmetic" in text
     assert flat(CAUTIONS)[:60] in text
     assert "Page 1 of" in text
@@ -189,7 +189,7 @@ def test_the_inspection_pdf_shows_the_as_inspected_capacity(client_as, make):
     assert f"inspection-{inspection.pk}.pdf" in response["Content-Disposition"]
     text = flat(pdf_text(response))
     assert "As-inspected capacity of weld" in text and weld.mark in text
-    assert "Awe = (0.1768 in x 2 in + 0.2209 in x 10 in)" in text  # AISC 360-16 J2.4, two segments
+    assert "Awe = (0.1768 in × 2 in + 0.2209 in × 10 in)" in text  # AISC 360-16 J2.4, two segments
     assert "80.73 kip" in text  # phi Rn = 0.75 x 107.64 kip
     assert "Demand / capacity" in text and "0.619" in text
     assert "The engineer of record decides" in text and flat(CAUTIONS)[:60] in text

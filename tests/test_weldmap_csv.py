@@ -9,6 +9,7 @@ from django.urls import reverse
 
 from core.errors import Refused
 from inspections.models import Weld
+from inspections.services import weldmap_csv
 from inspections.services.weldmap_csv import MAX_BYTES, export_weld_map, import_weld_map, read_weld_map
 from procedures.models.wps import WPSState
 from tests.factory import L
@@ -181,4 +182,40 @@ def test_the_export_downloads_as_csv(client_as, job):
     response = client_as("viewer").get(reverse("inspections:weldmap_export", args=[job.pk]))
     assert response["Content-Type"].startswith("text/csv")
     assert 'filename="weld-map-J-8800.csv"' in response["Content-Disposition"]
-    assert response.content.decode().startswith(HEADER.strip())
+    # the export writes every column, the throat a included; files without it (HEADER) still import
+    assert response.content.decode().startswith(",".join(weldmap_csv.COLUMNS) + "\r\n")
+
+
+# --- ISO drawings give the throat a, the leg z, or both (issue 15) -------------------------------------------
+
+def test_an_iso_weld_map_takes_the_throat_a_without_the_leg(make):
+    job = make.make_job(unit_system="SI", criteria_key="iso-5817-2014-C")
+    make.make_assembly(job=job, piece_mark="K1")
+    data = (b"piece_mark,weld_mark,throat,size,length,thickness1,thickness2\n"
+            b"K1,N1,4,,200,10,12\n"
+            b"K1,N2,4,6,200,10,12\n"
+            b"K1,N3,,6,200,10,12\n"
+            b"K1,N4,,,200,10,12\n")
+    preview = weldmap_csv.read_weld_map(data, job)
+    assert [r.errors for r in preview.rows][:3] == [[], [], []]
+    assert "Give the throat a or the leg z" in " ".join(preview.rows[3].errors)
+    n1 = preview.rows[0].cleaned
+    assert n1["throat"] == L("4 mm") and n1["size_on_drawing"] is False and n1["size"] > L("5.65 mm")
+    assert preview.rows[1].cleaned["size_on_drawing"] is True
+
+
+def test_an_aws_weld_map_still_needs_the_leg(make):
+    job = make.make_job()
+    make.make_assembly(job=job, piece_mark="B1")
+    preview = weldmap_csv.read_weld_map(b"piece_mark,weld_mark,length,thickness1,thickness2\nB1,W1,12,3/8,1/2\n",
+                                        job)
+    assert any(e.startswith("size:") for e in preview.rows[0].errors)
+
+
+def test_a_throat_only_weld_exports_without_a_made_up_leg(make):
+    job = make.make_job(unit_system="SI", criteria_key="iso-5817-2014-C")
+    make.make_assembly(job=job, piece_mark="K1")
+    weldmap_csv.import_weld_map(b"piece_mark,weld_mark,throat,length,thickness1,thickness2\nK1,N1,4,200,10,12\n",
+                                job)
+    line = weldmap_csv.export_weld_map(job).splitlines()[1]
+    assert line.startswith("K1,N1,fillet,,,4 mm,200 mm,")

@@ -152,7 +152,7 @@ def test_bare_lengths_are_read_in_millimetres_on_an_si_wps(client_as):
 
 
 @pytest.mark.parametrize("field, value, message", [
-    ("preheat_min", "50", "has no unit"),
+    ("preheat_min", "50 K", "not a temperature unit"),
     ("electrode", "E70Z8", "E70Z8"),
     ("electrode", "", "required"),
     ("amperage_min", "300", "The minimum is above the maximum"),
@@ -254,13 +254,17 @@ def test_the_review_panel_answers_what_is_typed(client_as):
 
 def test_the_review_panel_lists_entries_to_fix_and_never_fails(client_as):
     client = client_as("welding_engineer")
-    response = _post(client, reverse("procedures:wps_review"), preheat_min="50", thickness_max="lots",
+    response = _post(client, reverse("procedures:wps_review"), preheat_min="50 K", thickness_max="lots",
                      amperage_min="1e99", electrode="??", process="")
     assert response.status_code == 200
     html = response.content.decode()
-    assert "to fix" in html and "has no unit" in html
+    assert "to fix" in html and "not a temperature unit" in html
+    # errors to fix never sit under a green "nothing stands in the way", and no field is named None
+    assert "Nothing stands in the way of approval" not in html and "Not ready for approval" in html
     response = client.post(reverse("procedures:wps_review"), {})
     assert response.status_code == 200
+    html = response.content.decode()
+    assert "None:" not in html and "Positions: This field is required" in html
 
 
 def test_the_review_panel_of_a_draft_counts_the_pqrs_ticked(client_as, make):

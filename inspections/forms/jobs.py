@@ -4,10 +4,13 @@ from django import forms
 from django.utils import timezone
 
 from core.fields import LengthFormField, set_unit_system
-from core.forms import VersionedModelForm
+from core.forms import VersionedModelForm, read_decimal_comma
 from core.vocabulary import WELD_PROCESS_CHOICES
+from inspections import wording
 from inspections.models import Assembly, ClientCriteriaSet, Job, Weld
 from inspections.services import chain
+from inspections.services.flags import cyclic_fillet_flag
+from inspections.strength import leg_for_throat
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
@@ -83,29 +86,45 @@ class AssemblyForm(VersionedModelForm):
 
 
 # The weld's drawing data: what a detailer exports (tests and the CSV import use the same rules).
-SPEC_FIELDS = ["mark", "joint_type", "size", "size2", "length", "count", "sides", "thickness1", "thickness2",
-               "position"]
+SPEC_FIELDS = ["mark", "joint_type", "size", "size2", "throat", "length", "count", "sides", "thickness1",
+               "thickness2", "position"]
 EXTRA_SPEC_FIELDS = ["all_around", "field_weld", "pitch", "primary_member", "transverse_to_tension",
-                     "required_strength", "load_angle"]
-PRODUCTION_FIELDS = ["process", "wps", "welders", "welded_on"]
+                     "required_strength", "load_angle", "base_metals"]
+PRODUCTION_FIELDS = ["process", "wps", "welders", "welded_on", "completed_at"]
 
 
 class WeldSpecForm(forms.ModelForm):
-    """One line of the weld map as the drawing gives it; lengths in the job's system."""
+    """One line of the weld map as the drawing gives it; lengths in the job's system.
+
+    ISO jobs (ISO 2553 drawings) lead with the throat a and take the leg z where the drawing gives it: either will
+    do, and a weld drawn with a only keeps the leg that throat needs (strength.leg_for_throat) for the strength and
+    fit-up arithmetic, marked as not on the drawing. AWS jobs give the leg."""
 
     class Meta:
         model = Weld
         fields = SPEC_FIELDS
         labels = {"size": "Leg size", "size2": "Second leg (unequal legs only)", "length": "Length of each weld",
-                  "count": "How many", "thickness1": "Part 1 thickness", "thickness2": "Part 2 thickness"}
+                  "count": "How many", "thickness1": "Part 1 thickness", "thickness2": "Part 2 thickness",
+                  "throat": "Throat a"}
 
     def __init__(self, *args, assembly, **kwargs):
         self.assembly = assembly
         super().__init__(*args, **kwargs)
         set_unit_system(self, assembly.job.unit_system)
-        for name in ("size", "length", "thickness1", "thickness2", "size2", "pitch"):
+        read_decimal_comma(self)
+        for name in ("size", "length", "thickness1", "thickness2", "size2", "pitch", "throat"):
             if name in self.fields:
                 self.fields[name].allow_zero = False
+        self.iso = wording.throat_first(assembly.job)
+        if "throat" in self.fields:
+            if self.iso:
+                self.fields["throat"].help_text = "The design throat a the drawing gives (a5 on the symbol)"
+                self.fields["size"].required = False
+                self.fields["size"].label = "Leg z"
+                self.fields["size"].help_text = "Where the drawing gives the leg (z7 on the symbol)"
+                self.order_fields(["mark", "joint_type", "throat", "size"])
+            else:
+                del self.fields["throat"]
         if "count" in self.fields:
             self.fields["count"].min_value = 1
             self.fields["count"].widget.attrs.update(min=1, max=1000)
@@ -131,6 +150,20 @@ class WeldSpecForm(forms.ModelForm):
         data = super().clean()
         if data.get("size2") is not None and data.get("joint_type") != "fillet":
             self.add_error("size2", "A second leg is given for unequal-leg fillet welds only.")
+        if self.iso and "size" in self.fields and "size" not in self.errors and "throat" not in self.errors:
+            if data.get("size") is None and data.get("throat") is None:
+                self.add_error("throat", "Give the throat a or the leg z, as the drawing gives them.")
+            elif data.get("size") is None:
+                data["size"] = leg_for_throat(data["throat"])
+                data["size_on_drawing"] = False
+            else:
+                data["size_on_drawing"] = True
+            if "size_on_drawing" in data:
+                self.instance.size_on_drawing = data["size_on_drawing"]
+        self.flags = []
+        flag = cyclic_fillet_flag(self.assembly.job, data.get("joint_type"), data.get("size"), data.get("size2"))
+        if flag and "size" in self.fields and not self.fields["size"].disabled:
+            self.flags.append(flag)
         return data
 
 
@@ -143,6 +176,12 @@ class WeldForm(VersionedModelForm, WeldSpecForm):
 
     welded_on = forms.DateField(label="Date welded", required=False,
                                 widget=forms.DateInput(attrs={"type": "date"}))
+    completed_at = forms.DateTimeField(
+        label="Completed and cooled at", required=False,
+        widget=forms.DateTimeInput(attrs={"type": "datetime-local"}, format="%Y-%m-%dT%H:%M"),
+        input_formats=["%Y-%m-%dT%H:%M", "%Y-%m-%d %H:%M"],
+        help_text="Date and time the weld was finished and cooled: A514, A517 and A709 Gr 100 steels wait 48 h "
+                  "from it for their final visual")
 
     class Meta(WeldSpecForm.Meta):
         fields = SPEC_FIELDS + EXTRA_SPEC_FIELDS + PRODUCTION_FIELDS
@@ -163,16 +202,28 @@ class WeldForm(VersionedModelForm, WeldSpecForm):
         self.fields["load_angle"].max_value = 90
         if spec_locked:  # inspected, or the user may record production only: the drawing data stays as it is
             for name in SPEC_FIELDS + EXTRA_SPEC_FIELDS:
-                self.fields[name].disabled = True
+                if name in self.fields:
+                    self.fields[name].disabled = True
         if production_locked:
             for name in PRODUCTION_FIELDS:
-                self.fields[name].disabled = True
+                if name in self.fields:
+                    self.fields[name].disabled = True
 
     def clean_welded_on(self):
         day = self.cleaned_data.get("welded_on")
         if day and day > timezone.localdate():
             raise forms.ValidationError("The date welded cannot be in the future.", code="future")
         return day
+
+    def clean_completed_at(self):
+        moment = self.cleaned_data.get("completed_at")
+        if moment and moment > timezone.now() + timezone.timedelta(minutes=5):
+            raise forms.ValidationError("The weld cannot be completed in the future.", code="future")
+        return moment
+
+    def clean_base_metals(self):
+        return ", ".join(dict.fromkeys(" ".join(part.split()) for part in
+                                       (self.cleaned_data.get("base_metals") or "").split(",") if part.strip()))
 
     def clean_load_angle(self):
         angle = self.cleaned_data.get("load_angle")
@@ -192,6 +243,9 @@ class WeldForm(VersionedModelForm, WeldSpecForm):
                 chain.WpsCheck(wps, [reason] if (reason := wps.in_force_on(day)) else [])
             for error in check.errors:
                 self.add_error("wps", error)
+        moment, day = data.get("completed_at"), data.get("welded_on")
+        if moment and day and timezone.localtime(moment).date() < day:
+            self.add_error("completed_at", "The weld is completed on or after the day it was welded.")
         return data
 
     def _as_entered(self, data):
@@ -293,6 +347,9 @@ class UseAsIsForm(forms.Form):
 
 class ScrapForm(forms.Form):
     disposition_notes = forms.CharField(label="Why scrap", widget=forms.Textarea(attrs={"rows": 3}), max_length=2000)
+    confirm = forms.BooleanField(
+        label="Yes: scrap the whole assembly. It takes no more inspections and is never released; this cannot be "
+              "undone.", error_messages={"required": "Tick to confirm: scrapping cannot be undone."})
 
 
 def add_step_errors(form, exc):

@@ -12,7 +12,7 @@ from inspections import strength
 from inspections.services.capacity import CalculatorInputError, capacity_for_calculator, length_arg
 
 SYSTEMS = [("US", "US (in, ksi, kip)"), ("SI", "SI (mm, MPa, kN)")]
-METHODS = [("LRFD", "LRFD (factored load, phi Rn)"), ("ASD", "ASD (service load, Rn / Omega)")]
+METHODS = [("LRFD", "LRFD (factored load, φRn)"), ("ASD", "ASD (service load, Rn / Ω)")]
 STRESS_UNIT = {"US": "ksi", "SI": "MPa"}
 AREA_UNIT = {"US": "in2", "SI": "mm2"}
 

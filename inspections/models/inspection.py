@@ -1,4 +1,10 @@
-"""Inspections: signed on save and never edited. A correction is a new inspection that supersedes one."""
+"""Inspections: signed on save and never edited. A correction is a new inspection that supersedes one.
+
+The observation columns are made from the one table of observations (inspections.observations): a length column
+for each length, a whole number for each count, degrees for each angle, a yes/no for each flag, named as the
+acceptance engine reads them. A draft (InspectionDraft) keeps what an inspector typed and photographed until it is
+signed; it is visible to that inspector only and is not a record.
+"""
 
 from django.conf import settings
 from django.db import models
@@ -6,9 +12,11 @@ from django.db.models import Exists, OuterRef
 from django.urls import reverse
 from django.utils import timezone
 
+from core import units
 from core.errors import RecordLocked
 from core.fields import LengthField
 from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock, sql_text
+from inspections import observations
 
 
 class InspectionStage(models.TextChoices):
@@ -52,11 +60,23 @@ class PhotoLock(Lock):
         return _closed_sql('(SELECT i."weld_id" FROM "inspections_inspection" i WHERE i."id" = NEW."inspection_id")')
 
 
-# Observation fields, named as inspections.acceptance.evaluate reads them.
-LENGTH_OBSERVATIONS = ["min_size", "undersize_length", "undercut_depth", "undercut_length", "porosity_sum_1in",
-                       "porosity_sum_12in", "pore_max", "convexity", "face_width", "throat", "crater_depth"]
-COUNT_OBSERVATIONS = ["pores_per_4in"]
-FLAG_OBSERVATIONS = ["crack", "incomplete_fusion", "unfilled_crater", "overlap", "arc_strike"]
+def _words(observation) -> str:
+    """The column's name in the admin: the label, with the SI words where they differ (windows in mm)."""
+    if observation.us_label == observation.si_label:
+        return observation.us_label
+    return f"{observation.us_label} (SI: {observation.si_label.split(', ')[-1]})"
+
+
+def observation_field(observation):
+    """The column for one observation of the table."""
+    words = _words(observation)
+    if observation.kind == "length":
+        return LengthField(words, null=True, blank=True)
+    if observation.kind == "count":
+        return models.PositiveIntegerField(words, null=True, blank=True)
+    if observation.kind == "angle":
+        return models.DecimalField(f"{words} (degrees)", max_digits=6, decimal_places=2, null=True, blank=True)
+    return models.BooleanField(words, default=False)
 
 
 class Inspection(Guarded):
@@ -68,25 +88,17 @@ class Inspection(Guarded):
                                       related_name="superseded_by")
     correction_reason = models.TextField(blank=True)
 
-    min_size = LengthField("smallest leg measured", null=True, blank=True)
-    undersize_length = LengthField("length under size", null=True, blank=True)
-    undercut_depth = LengthField("deepest undercut", null=True, blank=True)
-    undercut_length = LengthField("undercut length over the general limit (worst 12 in / 300 mm)",
-                                  null=True, blank=True)
-    porosity_sum_1in = LengthField("sum of pore diameters, worst 1 in / 25 mm", null=True, blank=True)
-    porosity_sum_12in = LengthField("sum of pore diameters, worst 12 in / 300 mm", null=True, blank=True)
-    pore_max = LengthField("largest pore", null=True, blank=True)
-    pores_per_4in = models.PositiveIntegerField("pores in the worst 4 in / 100 mm", null=True, blank=True)
-    convexity = LengthField(null=True, blank=True)
-    face_width = LengthField(null=True, blank=True)
-    throat = LengthField("measured throat", null=True, blank=True)
-    crater_depth = LengthField("end crater pipe depth", null=True, blank=True)
-    crack = models.BooleanField(default=False)
-    incomplete_fusion = models.BooleanField(default=False)
-    unfilled_crater = models.BooleanField(default=False)
-    overlap = models.BooleanField(default=False)
-    arc_strike = models.BooleanField(default=False)
+    # One column per observation of the table, in table order (class-body namespace: see observation_field).
+    for _observation in observations.OBSERVATIONS:
+        locals()[_observation.name] = observation_field(_observation)
+    del _observation
     remarks = models.TextField(blank=True)
+    # Several identical welds inspected in one pass share one verdict: each weld's inspection carries the batch.
+    batch = models.UUIDField(null=True, blank=True, editable=False, db_index=True,
+                             help_text="Inspections signed together in one pass over identical welds")
+    leg_increase = LengthField(
+        "leg increase for the root opening", null=True, blank=True, editable=False,
+        help_text="Added to the specified leg for the root opening measured at fit-up (AWS D1.1 clause 7.21.1)")
 
     accepted = models.BooleanField(editable=False)
     findings = models.JSONField(editable=False, help_text="The verdict's findings as judged when signed")
@@ -116,12 +128,52 @@ class Inspection(Guarded):
             return True
         return False
 
+    @property
+    def smallest_leg(self):
+        """The smallest leg this inspection measured: the smaller of the two legs' readings, or, where only the
+        throat a was gauged (ISO jobs), the equal leg of that throat (inspections.strength.leg_for_throat).
+        None when neither was measured. Every capacity and undersize question reads this, never its own min()."""
+        legs = [leg for leg in (self.min_size, self.min_size2) if leg is not None]
+        if legs:
+            return min(legs)
+        if self.throat is not None:
+            from inspections.strength import leg_for_throat
+
+            return leg_for_throat(self.throat)
+        return None
+
     def observed(self) -> dict:
         """The observations as the acceptance engine reads them (absent = none seen)."""
-        observed = {name: getattr(self, name) for name in LENGTH_OBSERVATIONS + COUNT_OBSERVATIONS
-                    if getattr(self, name) is not None}
-        observed.update({name: getattr(self, name) for name in FLAG_OBSERVATIONS})
+        observed = {}
+        for o in observations.OBSERVATIONS:
+            value = getattr(self, o.name)
+            if o.kind == "flag":
+                observed[o.name] = bool(value)
+            elif value is not None:
+                observed[o.name] = value
         return observed
+
+    def recorded(self, system: str) -> list[tuple[str, str]]:
+        """(label, value) in the job's words of what was measured or seen, in table order: what pages and PDFs
+        print as "recorded" (a flag only when seen). The leg increase for the root opening comes last."""
+        rows = []
+        for o in observations.OBSERVATIONS:
+            value = getattr(self, o.name)
+            if value is None or value is False:
+                continue
+            if o.kind == "length":
+                text = units.format_length(value, system)
+            elif o.kind == "angle":
+                text = f"{units._plain(value)}\u00b0"
+            elif o.kind == "flag":
+                text = "seen"
+            else:
+                text = str(value)
+            rows.append((o.label(system), text))
+        if self.leg_increase:
+            rows.append(("Specified leg increased for the root opening at fit-up",
+                         f"+{units.format_length(self.leg_increase, system)}"))
+        return rows
 
 
 def photo_path(photo, filename):
@@ -154,4 +206,49 @@ class Photo(Guarded):
         base_manager_name = "objects"
 
     def __str__(self):
-        return self.caption or f"Photo {self.pk}"
+        return self.caption or "Photo of the weld"
+
+
+def draft_photo_path(photo, filename):
+    return f"photos/{timezone.now():%Y/%m}/draft-{photo.draft_id}-{filename}"
+
+
+class InspectionDraft(models.Model):
+    """What an inspector has typed and photographed for a weld (or a batch of identical welds), not yet signed.
+
+    Kept so an inspection can be finished later (a break, lost Wi-Fi, a second look); visible to its inspector
+    only; never a record: no verdict is stored, signing turns it into inspections and deletes it.
+    """
+
+    inspector = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.CASCADE, related_name="+")
+    weld = models.ForeignKey("inspections.Weld", on_delete=models.CASCADE, related_name="drafts")
+    data = models.JSONField(default=dict, help_text="The form as typed (text), including the batch's weld marks")
+    created_at = models.DateTimeField(default=timezone.now)
+    updated_at = models.DateTimeField(default=timezone.now)
+
+    class Meta:
+        constraints = [models.UniqueConstraint(fields=["inspector", "weld"], name="one_draft_per_weld_inspector")]
+        ordering = ["-updated_at"]
+
+    def __str__(self):
+        return f"Draft inspection of {self.weld} by {self.inspector}"
+
+
+class DraftPhoto(models.Model):
+    """A photo taken before signing, cleaned like any other; it becomes a Photo of the inspection when signed."""
+
+    draft = models.ForeignKey(InspectionDraft, on_delete=models.CASCADE, related_name="photos")
+    image = models.ImageField(upload_to=draft_photo_path)
+    thumbnail = models.ImageField(upload_to=draft_photo_path)
+    caption = models.CharField(max_length=200, blank=True)
+    width = models.PositiveIntegerField()
+    height = models.PositiveIntegerField()
+    content_type = models.CharField(max_length=20, default="image/jpeg")
+    sha256 = models.CharField(max_length=64)
+    uploaded_at = models.DateTimeField(default=timezone.now)
+
+    class Meta:
+        ordering = ["uploaded_at", "pk"]
+
+    def __str__(self):
+        return self.caption or "Photo of the weld"

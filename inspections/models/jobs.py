@@ -9,7 +9,9 @@ from django.utils import timezone
 from core.errors import RecordLocked
 from core.fields import ForceField, LengthField
 from core.locking import Guarded, GuardedQuerySet, Lock, Move, sql_text
+from core.units import Length
 from core.vocabulary import WELD_POSITION_CHOICES, WELD_PROCESS_CHOICES, JointType, Position, UnitSystem
+from inspections.strength import effective_throat
 
 
 class Job(Guarded):
@@ -77,10 +79,35 @@ class Job(Guarded):
         return {"label": f"job {self.number}", "code_family": self.code_family, "unit_system": self.unit_system}
 
     @property
+    def loading(self) -> str | None:
+        """'cyclic' or 'static' for an AWS D1.1 job (its criteria set, or the set a client set derives from, says
+        which), None for other codes: what the WPS review reads where a job is known."""
+        from inspections.criteria import resolve
+
+        try:
+            cset = resolve(self.criteria_for_evaluation())
+        except ValueError:
+            return None
+        if not cset.standard.upper().startswith("AWS D1.1"):
+            return None
+        words = f"{cset.key} {cset.base_key or ''} {cset.title}".lower()
+        return "cyclic" if "cyclic" in words else "static"
+
+    @property
     def criteria_label(self) -> str:
+        """The criteria set as a person names it: 'ISO 5817:2014 quality level C', or the client set's title."""
         if self.client_criteria_id:
             return str(self.client_criteria)
-        return self.criteria_key
+        return criteria_words(self.criteria_key)
+
+
+def criteria_words(key: str) -> str:
+    """A built-in criteria set's key in words ('aws-d1.1-2020-static' -> 'AWS D1.1/D1.1M:2020 visual acceptance'
+    with its loading); any other key (a client set's own) as it is."""
+    from inspections.criteria import REGISTRY
+
+    cset = REGISTRY.get(key)
+    return cset.title if cset is not None else str(key)
 
 
 class AssemblyState(models.TextChoices):
@@ -269,8 +296,14 @@ class Weld(Guarded):
     assembly = models.ForeignKey(Assembly, on_delete=models.PROTECT, related_name="welds")
     mark = models.CharField("weld mark", max_length=20)
     joint_type = models.CharField(max_length=8, choices=JointType.choices, default=JointType.FILLET)
-    size = LengthField("specified leg", help_text="Nominal fillet leg; the vertical leg when legs differ")
+    size = LengthField("specified leg", help_text="Nominal fillet leg z; the vertical leg when legs differ")
     size2 = LengthField("second leg", null=True, blank=True, help_text="Only for unequal legs")
+    # ISO 2553 drawings give the throat a, the leg z, or both. A weld whose drawing gives only a keeps the leg that
+    # throat needs (leg_for_throat) in `size`, so strength and fit-up read a leg, and says so here.
+    throat = LengthField("specified throat a", null=True, blank=True,
+                         help_text="ISO drawings: the design throat a, when the drawing gives it")
+    size_on_drawing = models.BooleanField("the drawing gives the leg", default=True,
+                                          help_text="Off when the drawing gives only the throat a")
     length = LengthField("length of each weld")
     count = models.PositiveIntegerField(default=1, help_text="How many of this weld on one assembly")
     sides = models.CharField(max_length=5, choices=Sides.choices, default=Sides.ARROW)
@@ -286,6 +319,13 @@ class Weld(Guarded):
                             verbose_name="WPS")
     welders = models.ManyToManyField("procedures.Welder", blank=True, related_name="welds")
     welded_on = models.DateField("date welded", null=True, blank=True)
+    completed_at = models.DateTimeField(
+        "weld completed and cooled", null=True, blank=True,
+        help_text="When the weld was finished and cooled to ambient; the delayed final visual of quenched and "
+                  "tempered steels counts from it")
+    base_metals = models.CharField(
+        max_length=200, blank=True,
+        help_text="The steels of the parts joined, when the drawing names them: e.g. ASTM A514, ASTM A572 Gr 50")
     primary_member = models.BooleanField(default=False)
     transverse_to_tension = models.BooleanField("transverse to tensile stress", default=False)
     required_strength = ForceField(null=True, blank=True, help_text="From the engineer of record, when given")
@@ -320,6 +360,7 @@ class Weld(Guarded):
         return {"label": label or f"Weld {self.mark}", "joint": self.joint_type, "position": self.position,
                 "thicknesses": [t for t in (self.thickness1, self.thickness2) if t is not None],
                 "size": self.size, "size2": self.size2, "process": self.process or None}
+
     def history_system(self):
         return self.assembly.job.unit_system
 
@@ -331,6 +372,25 @@ class Weld(Guarded):
     @property
     def thinner_part(self):
         return min(self.thickness1, self.thickness2)
+
+    # --- the weld's size, said once: every page, PDF and service reads these -------------------------------
+
+    @property
+    def smaller_leg(self) -> Length:
+        """The smaller specified leg (unequal legs) or the leg."""
+        return min(self.size, self.size2) if self.size2 is not None else self.size
+
+    @property
+    def nominal_throat(self) -> Length:
+        """The specified throat a: as the drawing gives it, else the effective throat of the specified legs
+        (inspections.strength.effective_throat, AISC 360-16 J2.2a; ISO 5817's nominal a)."""
+        if self.throat is not None:
+            return self.throat
+        return effective_throat(self.size, self.size2)
+
+    @property
+    def base_metal_list(self) -> list[str]:
+        return [part.strip() for part in self.base_metals.split(",") if part.strip()]
 
     @property
     def thicker_part(self):

@@ -51,6 +51,12 @@ FIGURES = 4  # significant figures printed for forces (the engine keeps full Dec
 
 CAUTION = ("The engineer of record decides whether a weld is adequate; Legwork checks the arithmetic of AISC 360-16 "
            "section J2 from the inputs shown, not the design, the load or the load path.")
+# What a weld-metal figure of AISC 360-16 J2.4 never counts: said on every capacity card, sheet and traveler.
+NOT_COUNTED = ("The figure is the weld metal's shear strength from the throat and length only: it does not count "
+               "cracks, undercut, porosity, incomplete fusion or any other defect, and the base metal along the weld "
+               "(AISC 360-16 J4) is not checked unless a base-metal check is made.")
+# Findings that speak of the throat's size: their rejection is what the as-inspected figure does count.
+SIZE_CRITERIA = ("undersize", "throat", "root_opening", "fit_up")
 
 
 # --- small formatting helpers (printing only: no engineering rule lives here) --------------------------------
@@ -134,9 +140,42 @@ def _snapshot(kind: str, title: str, function: str, system: str, method: str) ->
         "system": system, "other_system": other_system(system), "method": method,
         "subject": [], "inputs": [], "assumptions": [], "results": [], "required": None, "ratio": None,
         "ratio_conservative": None, "ok": None, "governs": None, "trail": [], "steps": [], "findings": [],
-        "error": None, "fexx": None,
+        "error": None, "fexx": None, "not_counted": NOT_COUNTED, "defects_not_counted": [],
         "caution": CAUTION, "computed_at": timezone.localtime().isoformat(timespec="seconds"), "links": {},
     }
+
+
+def base_metal_check_url(weld, leg=None) -> str:
+    """The calculator with this weld's data, ready for the base-metal check (plate thickness = the thinner part;
+    the engineer picks the material): AISC 360-16 J4 next to J2.4."""
+    from urllib.parse import urlencode
+
+    system = weld.assembly.job.unit_system
+    fexx, _ = fexx_for_weld(weld)
+    query = {"system": system, "leg": length_arg(leg or weld.size, system), "length": length_arg(weld.length, system),
+             "fexx": fexx, "angle": format(weld.load_angle.normalize(), "f"),
+             "thinner_part": length_arg(weld.thinner_part, system),
+             "plate_thickness": length_arg(weld.thinner_part, system)}
+    if weld.size2 is not None and leg is None:
+        query["leg2"] = length_arg(weld.size2, system)
+    if weld.required_strength is not None:
+        query["required"] = format_force(weld.required_strength, system)
+    material = _weakest_known_material(weld)
+    if material:
+        query["material"] = material
+    return f"{reverse('inspections:strength_calculator')}?{urlencode(query)}"
+
+
+def _weakest_known_material(weld) -> str | None:
+    """The calculator's material for the weld's steels (Weld.base_metals), the weakest where they differ; None when
+    the weld map names none the calculator knows (the engineer then picks it, or gives Fy and Fu)."""
+    from procedures.base_metals import base_metal_key
+
+    known = [base_metal_key(name) for name in weld.base_metal_list]
+    known = [key for key in known if key in strength.MATERIALS]
+    if not known:
+        return None
+    return min(known, key=lambda key: strength.MATERIALS[key][1][1])
 
 
 # --- records -> engine inputs -------------------------------------------------------------------------------
@@ -167,8 +206,11 @@ def _weld_inputs(weld, system: str, fexx: str, fexx_source: str) -> list:
     legs = length_shown(weld.size, system)
     if weld.size2 is not None and weld.size2 != weld.size:
         legs = f"{legs} x {length_shown(weld.size2, system)}"
-    rows = [
-        {"label": "Specified leg(s)", "value": legs},
+    rows = [{"label": "Specified throat a (the drawing gives it)", "value": length_shown(weld.throat, system)}] \
+        if weld.throat is not None else []
+    rows += [
+        {"label": "Specified leg(s)" + ("" if weld.size_on_drawing or weld.throat is None else
+                                        " (from the throat a: w = a / 0.707)"), "value": legs},
         {"label": "Length of one weld line", "value": length_shown(weld.length, system)},
         {"label": "Weld lines of this mark", "value": f"{weld.count} x {weld.get_sides_display().lower()}"
                                                       f" = {_lines(weld)}"},
@@ -203,6 +245,7 @@ def capacity_for_weld(weld, method: str = "LRFD") -> dict:
                          "pdf": reverse("inspections:weld_capacity_pdf", args=[weld.pk])}
     if weld.joint_type != "fillet":
         return _not_fillet(snapshot, weld)
+    snapshot["links"]["base_metal"] = base_metal_check_url(weld)
     fexx, fexx_source = fexx_for_weld(weld)
     snapshot["fexx"] = fexx
     snapshot["inputs"] = _weld_inputs(weld, system, fexx, fexx_source)
@@ -266,10 +309,13 @@ def capacity_for_inspection(inspection, method: str = "LRFD") -> dict:
         return _not_fillet(snapshot, weld)
     fexx, fexx_source = fexx_for_weld(weld)
     snapshot["fexx"] = fexx
-    smallest_spec = min(weld.size, weld.size2) if weld.size2 is not None else weld.size
+    smallest_spec = weld.smaller_leg
+    snapshot["defects_not_counted"] = defects_not_counted(inspection)
     assumptions = [f"Filler metal: {fexx_source}.", "Not end loaded (the weld map does not say).",
                    f"Figures are for the one weld line inspected; required strength as {method}."]
-    measured, under = inspection.min_size, inspection.undersize_length
+    measured, under = inspection.smallest_leg, inspection.undersize_length
+    snapshot["links"]["base_metal"] = base_metal_check_url(
+        weld, leg=measured if measured is not None and measured < smallest_spec else None)
     if measured is None:
         measured, under = smallest_spec, Length(Decimal(0))
         assumptions.append("No smallest leg was recorded: the weld is taken at its specified size.")
@@ -285,8 +331,11 @@ def capacity_for_inspection(inspection, method: str = "LRFD") -> dict:
                            "weld: the whole length is taken.")
         under = weld.length
     snapshot["assumptions"] = assumptions
+    from_throat = inspection.min_size is None and inspection.min_size2 is None and inspection.throat is not None
     snapshot["inputs"] = _weld_inputs(weld, system, fexx, fexx_source) + [
-        {"label": "Smallest leg measured", "value": length_shown(measured, system)},
+        {"label": "Smallest leg measured" + (f" (from the throat a = {format_length(inspection.throat, system)} "
+                                             "measured)" if from_throat else ""),
+         "value": length_shown(measured, system)},
         {"label": "Length under size", "value": length_shown(under, system)},
     ]
     required = weld.required_strength
@@ -420,6 +469,8 @@ def normalize(snapshot: dict | None) -> dict | None:
     if not snapshot or not isinstance(snapshot, dict):
         return None
     if "trail" in snapshot:
+        snapshot.setdefault("not_counted", NOT_COUNTED)  # stored before the limits were said on every figure
+        snapshot.setdefault("defects_not_counted", [])
         return snapshot
     system = snapshot.get("system") if snapshot.get("system") in ("US", "SI") else "US"
     shaped = _snapshot("as_inspected", "As-inspected capacity (as stored)", str(snapshot.get("engine", "")), system,
@@ -466,6 +517,7 @@ def capacity_cards(*, weld=None, inspection=None, ncr=None, method: str = "LRFD"
         stored = normalize(ncr.capacity_calculation)
         if stored is not None:
             stored["stored"] = True
+            stored["defects_not_counted"] = stored["defects_not_counted"] or defects_not_counted(ncr.inspection)
             capacities.append(stored)
         else:
             capacities.append(capacity_for_inspection(ncr.inspection, method))
@@ -482,6 +534,16 @@ def capacity_cards(*, weld=None, inspection=None, ncr=None, method: str = "LRFD"
 
 
 def found_undersize(inspection, weld) -> bool:
-    """Did the inspection record a leg under the specified size? Only then is an as-inspected figure news."""
-    smallest = min(weld.size, weld.size2) if weld.size2 is not None else weld.size
-    return inspection.min_size is not None and inspection.min_size < smallest
+    """Did the inspection record a leg under the specified size (Inspection.smallest_leg against
+    Weld.smaller_leg)? Only then is an as-inspected figure news."""
+    measured = inspection.smallest_leg
+    return measured is not None and measured < weld.smaller_leg
+
+
+def defects_not_counted(inspection) -> list[str]:
+    """The criteria this inspection failed that the capacity figure does not count (a crack, undercut, ...), in the
+    findings' words."""
+    from inspections.observations import criterion_label
+
+    return [criterion_label(f.get("criterion", "")) for f in inspection.findings or []
+            if isinstance(f, dict) and not f.get("ok") and f.get("criterion") not in SIZE_CRITERIA]

@@ -25,13 +25,15 @@ from inspections.services import chain
 from procedures.models import WPS
 from procedures.models.wps import WPSState
 
-COLUMNS = ["piece_mark", "weld_mark", "joint", "size", "size2", "length", "count", "sides", "thickness1",
+COLUMNS = ["piece_mark", "weld_mark", "joint", "size", "size2", "throat", "length", "count", "sides", "thickness1",
            "thickness2", "position", "wps_number", "process"]
-REQUIRED = {"piece_mark", "weld_mark", "size", "length", "thickness1", "thickness2"}
+# The size: the leg (size) on AWS jobs; on ISO jobs the throat a, the leg z, or both, as the drawing gives them (the
+# form says which is missing). A file needs the columns it uses, so "throat", "size2" and "process" are optional.
+REQUIRED = {"piece_mark", "weld_mark", "length", "thickness1", "thickness2"}
 # CSV column -> WeldSpecForm field
-FORM_FIELD = {"weld_mark": "mark", "joint": "joint_type", "size": "size", "size2": "size2", "length": "length",
-              "count": "count", "sides": "sides", "thickness1": "thickness1", "thickness2": "thickness2",
-              "position": "position"}
+FORM_FIELD = {"weld_mark": "mark", "joint": "joint_type", "size": "size", "size2": "size2", "throat": "throat",
+              "length": "length", "count": "count", "sides": "sides", "thickness1": "thickness1",
+              "thickness2": "thickness2", "position": "position"}
 DEFAULTS = {"joint": "fillet", "count": "1", "sides": "arrow", "position": "F"}
 PROCESSES = {value.upper(): value for value, _ in WELD_PROCESS_CHOICES}
 MAX_BYTES = 1024 * 1024
@@ -239,9 +241,11 @@ def export_weld_map(job) -> str:
     writer = csv.writer(out, lineterminator="\r\n")
     writer.writerow(COLUMNS)
     for weld in welds:
+        leg_drawn = weld.size_on_drawing or weld.throat is None  # a leg derived from the throat is not exported
         writer.writerow([_safe(v) for v in (
-            weld.assembly.piece_mark, weld.mark, weld.joint_type, length.prepare_value(weld.size),
-            length.prepare_value(weld.size2) if weld.size2 else "", length.prepare_value(weld.length), weld.count,
+            weld.assembly.piece_mark, weld.mark, weld.joint_type, length.prepare_value(weld.size) if leg_drawn else "",
+            length.prepare_value(weld.size2) if weld.size2 else "",
+            length.prepare_value(weld.throat) if weld.throat else "", length.prepare_value(weld.length), weld.count,
             weld.sides, length.prepare_value(weld.thickness1), length.prepare_value(weld.thickness2), weld.position,
             weld.wps.number if weld.wps else "", weld.process)])
     return out.getvalue()

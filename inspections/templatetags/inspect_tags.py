@@ -1,8 +1,12 @@
-"""Template filters for the tablet pages: a length in the job's system, a weld's status in the shop's words."""
+"""Template filters for the tablet pages: a weld's size and length in its job's words, a weld's status in the shop's
+words, a finding's heading from the table of observations."""
 
 from django import template
+from django.db.models import QuerySet
+from django.template.defaultfilters import length as count
 
 from core.units import Length, format_length
+from inspections import observations, wording
 
 register = template.Library()
 
@@ -18,10 +22,27 @@ STATUS = {
 
 @register.filter
 def length(value, system="US"):
-    """3/16" on a US job, 4.76 mm on an SI job; empty for no value."""
+    """3/16" on a US job, 4.76 mm on an SI job; empty for no value. A list, a string or a queryset keeps
+    Django's meaning of |length (how many), which this filter's name would otherwise hide."""
+    if isinstance(value, (list, tuple, str, QuerySet)):
+        return count(value)
     if not isinstance(value, Length):
         return ""
     return format_length(value, system)
+
+
+@register.filter
+def run_length(value, system="US"):
+    """A length along a weld or member: 30'-0" from 2 ft on a US job (core.units.format_length_long)."""
+    if not isinstance(value, Length):
+        return ""
+    return wording.run_length(value, system)
+
+
+@register.filter
+def weld_size(weld):
+    """The specified size as the job writes it: 5/16", or on ISO jobs a4 z6 (inspections.wording)."""
+    return wording.weld_size(weld)
 
 
 @register.filter
@@ -34,13 +55,14 @@ def status_class(word):
     return STATUS.get(word, ("", "lw-st-none"))[1]
 
 
-CRITERIA = {
-    "undersize": "Undersize", "undercut": "Undercut", "porosity": "Porosity", "convexity": "Convexity",
-    "crack": "Cracks", "fusion": "Fusion", "crater": "Craters", "overlap": "Overlap", "arc_strike": "Arc strikes",
-    "throat": "Throat", "surface_pore": "Surface pores", "crater_pipe": "End crater pipe", "fit_up": "Fit-up",
-}
+@register.filter
+def criterion_label(name):
+    return observations.criterion_label(name)
 
 
 @register.filter
-def criterion_label(name):
-    return CRITERIA.get(name, str(name).replace("_", " ").capitalize())
+def criteria_words(key):
+    """A criteria set key as a person names the set (inspections.models.jobs.criteria_words)."""
+    from inspections.models.jobs import criteria_words as words
+
+    return words(key)

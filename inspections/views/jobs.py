@@ -16,6 +16,7 @@ from core.errors import Refused, Stale
 from core.roles import can, role_required
 from core.units import format_length
 from core.vocabulary import JointType
+from inspections import wording
 from inspections.forms.jobs import (
     AssemblyForm,
     JobForm,
@@ -32,6 +33,7 @@ from inspections.services import assemblies as steps
 from inspections.services import chain, weldmap_csv
 from inspections.services import welds as weld_steps
 from inspections.services.capacity import capacity_cards
+from inspections.services.flags import weld_flags, wps_flags_for_job
 from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
@@ -141,6 +143,7 @@ class WeldRow:
     status: object
     welders: list
     wps_approved: bool  # the WPS was in force on the weld date and covers the weld (the chain's WPS link)
+    flags: list = ()  # inspections.services.flags: e.g. under the cyclic minimum fillet size
     chain: object = None  # inspections.services.chain.WeldChain
 
 
@@ -149,17 +152,19 @@ def _length(value, system):
 
 
 def weld_rows(assembly, welds, chains=None):
-    """The weld map as the page shows it: every weld with its chain (status, WPS, welders), fixed queries."""
+    """The weld map as the page shows it: every weld with its chain (status, WPS, welders), fixed queries. Sizes
+    and lengths in the job's words (inspections.wording: a/z on ISO jobs, feet and inches for long US lengths)."""
     system = assembly.job.unit_system
+    iso = wording.throat_first(assembly.job)
     chains = chains if chains is not None else chain.check_assembly(assembly, welds)
     rows = []
     for weld in welds:
+        weld.assembly = assembly
         link = chains[weld.pk]
-        size = _length(weld.size, system) + (f" x {_length(weld.size2, system)}" if weld.size2 else "")
         thickness = f"{_length(weld.thickness1, system)} / {_length(weld.thickness2, system)}"
         welders = [steps.WelderCheck(c.welder, bool(c.allowed), tuple(c.reasons)) for c in link.welders.checks]
-        rows.append(WeldRow(weld, size, _length(weld.length, system), thickness, link.status, welders,
-                            link.wps.ok, link))
+        rows.append(WeldRow(weld, wording.size_text(weld, system, iso), wording.run_length(weld.length, system),
+                            thickness, link.status, welders, link.wps.ok, weld_flags(weld), link))
     return rows
 
 
@@ -212,12 +217,15 @@ def assembly_release(request, pk):
 
 # --- welds ------------------------------------------------------------------------------------------------
 
-def _save_weld(form):
+def _save_weld(request, form):
     """The weld as saved, its welders' continuity in step; None with the refusal on the form (stale or frozen)."""
     with transaction.atomic():
         weld = form.save_or_explain()
         if weld is not None and {"welders", "welded_on", "wps"} & set(form.changed_data):
             steps.record_production(weld)
+    if weld is not None:
+        for flag in getattr(form, "flags", []):
+            messages.warning(request, flag)
     return weld
 
 
@@ -231,7 +239,7 @@ def weld_create(request, pk):
     form = WeldForm(request.POST or None, assembly=assembly, instance=Weld(assembly=assembly))
     status = 200
     if request.method == "POST" and form.is_valid():
-        weld = _save_weld(form)
+        weld = _save_weld(request, form)
         if weld is not None:
             messages.success(request, f"Weld {weld.mark} added to {assembly.piece_mark}.")
             return redirect(assembly)
@@ -265,7 +273,7 @@ def weld_edit(request, pk):
     form = WeldForm(request.POST or None, assembly=assembly, instance=weld, spec_locked=locked)
     status = 200
     if request.method == "POST" and form.is_valid():
-        if _save_weld(form) is not None:
+        if _save_weld(request, form) is not None:
             messages.success(request, f"Weld {weld.mark} saved.")
             return redirect(assembly)
         status = 409
@@ -312,6 +320,7 @@ def weld_detail(request, pk):
     inspections = weld.inspections.select_related("inspector", "supersedes").order_by("-inspected_at", "-pk")
     return render(request, "inspections/weld_detail.html", {
         "weld": weld, "assembly": weld.assembly, "row": row, "inspections": inspections,
+        "wps_flags": wps_flags_for_job(weld.wps, weld.assembly.job),
         "ncrs": weld.ncrs.order_by("-raised_at"),
         "history": history.panel(weld),
         "capacities": capacity_cards(weld=weld) if weld.joint_type == JointType.FILLET else [],
@@ -338,7 +347,7 @@ def _check_context(assembly, weld, wps=None, welders=None, on=None):
         elif reason := wps.in_force_on(on):
             wps_errors = [reason]
     return {"wps": wps, "wps_approved": bool(wps and wps.state == WPSState.APPROVED), "wps_errors": wps_errors,
-            "checks": checks, "welders": welders, "on": on}
+            "checks": checks, "welders": welders, "on": on, "wps_flags": wps_flags_for_job(wps, assembly.job)}
 
 
 @require_safe

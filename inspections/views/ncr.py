@@ -32,21 +32,36 @@ def ncr_list(request):
     return render(request, "inspections/ncr_list.html", {"ncrs": ncrs, "show": show})
 
 
+def _description(ncr, findings) -> list[str]:
+    """The NCR's description without the lines that only repeat a finding listed below it with its source: each
+    sentence is printed once."""
+    messages = {f.get("message", "") for f in findings}
+    return [line for line in ncr.description.splitlines()
+            if line.strip() and not any(message and line.endswith(message) for message in messages)]
+
+
 def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
     forms = forms or {}
     repair = WeldRepair.objects.filter(ncr=ncr).select_related("wps", "recorded_by").prefetch_related(
         "welders").first()
     awaiting_repair = (ncr.state == NCRState.DISPOSITIONED and ncr.disposition == Disposition.REPAIR
                        and repair is None)
+    ncr.inspection.weld = ncr.weld  # the same row, loaded with its job and WPS: the capacity card reads it
+    findings = [f for f in (ncr.inspection.findings or []) if isinstance(f, dict) and not f.get("ok", True)]
+    events = list(history.panel(ncr))
+    for event in events:
+        if event.reason and event.reason.strip() == ncr.description.strip():
+            event.reason = "raised with the description above"  # shown, never saved: the record keeps it all
+    system = ncr.weld.assembly.job.unit_system
     context = {
         "repair": repair, "awaiting_repair": awaiting_repair,
         "may_record_repair": repair_steps.may_record(request.user),
         "repair_form": repair_form or (RepairRecordForm(ncr=ncr) if awaiting_repair else None),
         "ncr": ncr, "weld": ncr.weld, "assembly": ncr.weld.assembly, "job": ncr.weld.assembly.job,
-        "history": history.panel(ncr),
+        "history": events, "description": _description(ncr, findings),
         "capacities": capacity_cards(ncr=ncr) if ncr.weld.joint_type == JointType.FILLET else [],
         "forms": {kind: forms.get(kind) or cls(prefix=kind) for kind, cls in FORMS.items()},
-        "findings": [f for f in (ncr.inspection.findings or []) if isinstance(f, dict) and not f.get("ok", True)],
+        "findings": findings, "recorded": ncr.inspection.recorded(system),
     }
     return render(request, "inspections/ncr_detail.html", context, status=status)
 

@@ -10,7 +10,7 @@ from django.urls import reverse
 from django.utils.text import get_valid_filename
 from django.views.decorators.http import require_safe
 
-from core.pdf import pdf_response, render_pdf
+from core.pdf import paper_for, pdf_response, render_pdf
 from inspections.forms.strength import StrengthCalculatorForm
 from inspections.models import Inspection, Weld
 from inspections.services.capacity import capacity_for_inspection, capacity_for_weld
@@ -124,4 +124,4 @@ def _sheet_page(request, snapshot, back=None):
 
 def _sheet_pdf(snapshot, filename):
     return pdf_response(render_pdf("pdf/calculation_sheet.html", {"snapshot": snapshot},
-                                   get_valid_filename(filename)))
+                                   get_valid_filename(filename), paper=paper_for(snapshot.get("system"))))

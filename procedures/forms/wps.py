@@ -1,10 +1,10 @@
 """WPS and PQR forms: what an engineer types, read in the procedure's unit system; rules stay in the engines.
 
-Every length goes through LengthFormField and every temperature through TemperatureFormField (a bare
-number is refused there: 50 F is not 50 C). A filler classification is read by procedures.electrodes.decode,
-whose message says which part is wrong. A range whose minimum is above its maximum is refused beside the
-minimum. Anything else a reviewer would mark (prequalified limits) is a finding, shown in the review panel,
-not a form error: a draft may be saved while it is still wrong.
+Every length goes through LengthFormField and every temperature through TemperatureFormField; a bare number is
+read in the procedure's unit system (50 is 50 °F on a US WPS, 50 °C on an SI one), as lengths are. A filler
+classification is read by procedures.electrodes.decode, whose message says which part is wrong. A range whose
+minimum is above its maximum is refused beside the minimum. Anything else a reviewer would mark (prequalified
+limits) is a finding, shown in the review panel, not a form error: a draft may be saved while it is still wrong.
 """
 
 from crispy_forms.helper import FormHelper
@@ -14,7 +14,7 @@ from django.core.exceptions import ValidationError
 
 from core import units
 from core.fields import set_unit_system
-from core.forms import VersionedModelForm
+from core.forms import VersionedModelForm, read_decimal_comma
 from core.vocabulary import JointType, Position, Process, UnitSystem
 from procedures.electrodes import decode
 from procedures.models.wps import PQR, WPS
@@ -37,7 +37,9 @@ def _system_of(form, data, instance):
 
 
 def _positive(form):
-    """Amps and volts: read by core.units, which refuses zero, a sign, and figures no arc runs at."""
+    """Amps and volts: read by core.units, which refuses zero, a sign, and figures no arc runs at; a decimal comma
+    reads as a point, and a stored 250.0 A prints as 250 (core.forms.read_decimal_comma)."""
+    read_decimal_comma(form)
     for name, field in form.fields.items():
         parser = units.parse_amperage if "amperage" in name else units.parse_voltage if "voltage" in name else None
         if parser is not None:

@@ -323,10 +323,11 @@ class WPS(Guarded):
     def _temperature_text(self, temp):
         return _temperature_text(temp, self.unit_system)
 
-    def review_input(self, joint=None):
+    def review_input(self, joint=None, loading=None):
         """The dict procedures.prequalified.review() reads; a value the WPS does not give is left out.
 
         joint: "fillet" or "groove" (the engine judges one joint type at a time); None: the first listed.
+        loading: "static" or "cyclic" where a job is known (Job.loading): cyclic work has a minimum fillet size.
         """
         joints = self.joint_type_list
         joint = joint or (joints[0] if joints else None)
@@ -351,6 +352,7 @@ class WPS(Guarded):
             "travel_speed_min": self.travel_speed_min, "travel_speed_max": self.travel_speed_max,
             "wire_feed_speed_min": self.wire_feed_min, "wire_feed_speed_max": self.wire_feed_max,
             "unit_system": self.unit_system or None,
+            "loading": loading,
         }
         return {key: value for key, value in values.items() if value is not None}
 
@@ -361,10 +363,11 @@ class WPS(Guarded):
         except ValueError:
             return None  # incomplete or backwards ranges: review() reports those next to the fields
 
-    def findings(self, pqrs=None):
+    def findings(self, pqrs=None, loading=None):
         """Everything a reviewer would mark on this WPS, errors first: the prequalified review of each joint
         type, the heat input against the supporting PQRs, and the basis. pqrs: the supporting PQRs when
-        they are not saved yet (a form being typed); else self.pqrs.all() (prefetch it on busy pages)."""
+        they are not saved yet (a form being typed); else self.pqrs.all() (prefetch it on busy pages).
+        loading: the job's ("static" or "cyclic") where the WPS is reviewed for a job (Job.loading)."""
         found = []
         if not self.process:
             return [prequalified.Finding("incomplete", "warning", "Choose the welding process to start the review.",
@@ -372,7 +375,7 @@ class WPS(Guarded):
         if self.code in prequalified.KNOWN_CODES:
             for joint in self.joint_type_list or [None]:
                 try:
-                    found.extend(prequalified.review(self.review_input(joint), code=self.code))
+                    found.extend(prequalified.review(self.review_input(joint, loading), code=self.code))
                 except ValueError as exc:
                     found.append(prequalified.Finding("unreadable", "error", str(exc), "Legwork review"))
         else:

@@ -9,12 +9,13 @@ from django.contrib import messages
 from django.core.exceptions import PermissionDenied
 from django.core.paginator import Paginator
 from django.db.models import Prefetch, Q
+from django.forms.utils import pretty_name
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
 from core import history
 from core.errors import Refused
-from core.pdf import pdf_response, render_pdf
+from core.pdf import paper_for, pdf_response, render_pdf
 from core.roles import role_required
 from core.vocabulary import Process
 from procedures import printing
@@ -101,8 +102,8 @@ def _review_context(form):
                 setattr(candidate, name, None if field.null or not field.empty_strings_allowed else "")
         if "pqrs" not in errors:
             pqrs = list(form.cleaned_data.get("pqrs") or [])
-        labels = {name: field.label for name, field in form.fields.items()}
-        form_errors = [(labels.get(name, "Form"), message) for name, errs in errors.items() for message in errs]
+        labels = {name: field.label or pretty_name(name) for name, field in form.fields.items()}
+        form_errors = [(labels.get(name, "The form"), message) for name, errs in errors.items() for message in errs]
     elif candidate.pk is None:
         return {"findings": None}
     findings = candidate.findings(pqrs=pqrs)
@@ -239,7 +240,8 @@ def wps_return(request, pk):
 def wps_pdf(request, pk):
     wps = _get_wps(pk)
     filename = f"WPS-{wps.number}-rev{wps.revision}.pdf".replace(" ", "_").replace("/", "-")
-    return pdf_response(render_pdf("pdf/wps.html", printing.wps_document(wps), filename))
+    return pdf_response(render_pdf("pdf/wps.html", printing.wps_document(wps), filename,
+                                   paper=paper_for(wps.unit_system, wps.code)))
 
 
 # --- PQR -------------------------------------------------------------------------------------------

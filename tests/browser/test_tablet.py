@@ -1,5 +1,6 @@
 """The tablet flow in real headless Chromium: find the assembly, tap a weld, type a rejecting leg, watch the
-undersize criterion turn red, sign, attach a photo from the 'camera', see the NCR. At 768 px and 1280 px."""
+undersize criterion turn red, take a photo before signing (held, then attached), sign, attach another photo from
+the 'camera', see the NCR, go on to the next weld. At 768 px and 1280 px."""
 
 import pytest
 from selenium.webdriver.common.by import By
@@ -33,7 +34,7 @@ def test_an_inspector_rejects_an_undersize_fillet_and_sees_the_ncr(width, browse
     job = make.make_job(unit_system="US", criteria_key="aws-d1.1-2020-static")
     assembly = make.make_assembly(job=job, piece_mark=f"B7{width}")
     make.make_weld(assembly=assembly, mark="W1", size=L("1/4 in"), length=L("12 in"))
-    make.make_weld(assembly=assembly, mark="W2", size=L("5/16 in"), length=L("6 in"))
+    w2 = make.make_weld(assembly=assembly, mark="W2", size=L("5/16 in"), length=L("6 in"))
     browser.delete_all_cookies()
     browser.set_window_size(width, 1000)
     wait = WebDriverWait(browser, 10)
@@ -55,15 +56,24 @@ def test_an_inspector_rejects_an_undersize_fillet_and_sees_the_ncr(width, browse
     assert failing.value_of_css_property("border-left-color") == "rgba(179, 38, 30, 1)"  # --lw-fail
     assert "Rejected" in browser.find_element(By.CSS_SELECTOR, "#lw-findings .lw-verdict").text
     assert Inspection.objects.count() == 0
-    browser.save_screenshot(str(tmp_path / f"form-{width}.png"))
-    browser.save_screenshot(f"/tmp/legwork-tablet-form-{width}.png")
 
-    # Sign: the inspection page shows the verdict and the NCR it opened.
+    # A photo before signing: held with the draft (nothing signed), shown as a thumbnail.
+    before = tmp_path / "toe.png"
+    before.write_bytes(png_bytes((80, 60)))
+    browser.find_element(By.ID, "id_photo_caption").send_keys("north toe")
+    browser.find_element(By.CSS_SELECTOR, "#lw-inspect-form input[name=photo]").send_keys(str(before))
+    held = wait.until(ec.visibility_of_element_located((By.CSS_SELECTOR, "#lw-held .lw-held-photo img")))
+    wait.until(lambda d: d.execute_script("return arguments[0].complete && arguments[0].naturalWidth > 0", held))
+    assert Inspection.objects.count() == 0 and Photo.objects.count() == 0
+    browser.save_screenshot(str(tmp_path / f"form-{width}.png"))
+
+    # Sign: the inspection page shows the verdict, the photo taken before, and the NCR it opened.
     _tap(browser, browser.find_element(By.CSS_SELECTOR, "button.lw-sign"))
     ncr_link = wait.until(ec.visibility_of_element_located((By.CSS_SELECTOR, ".lw-ncr-box a")))
     inspection = Inspection.objects.get()
     ncr = NCR.objects.get()
     assert not inspection.accepted and ncr.inspection == inspection
+    assert [p.caption for p in inspection.photos.all()] == ["north toe"]
     ncr_text = ncr_link.text
     assert ncr.number in ncr_text
 
@@ -74,11 +84,16 @@ def test_an_inspector_rejects_an_undersize_fillet_and_sees_the_ncr(width, browse
     assert file_input.get_attribute("capture") == "environment"
     file_input.send_keys(str(photo))
     _tap(browser, browser.find_element(By.CSS_SELECTOR, ".lw-photo-form button[type=submit]"))
-    thumb = wait.until(ec.visibility_of_element_located((By.CSS_SELECTOR, ".lw-photo img")))
+    # two thumbnails now: the one taken before signing and this one (wait for the second, not the first)
+    wait.until(lambda d: len(d.find_elements(By.CSS_SELECTOR, "#photos .lw-photo img")) == 2)
+    thumb = browser.find_elements(By.CSS_SELECTOR, "#photos .lw-photo img")[-1]
     wait.until(lambda d: d.execute_script("return arguments[0].complete && arguments[0].naturalWidth > 0", thumb))
-    assert Photo.objects.filter(inspection=inspection).count() == 1
+    assert Photo.objects.filter(inspection=inspection).count() == 2
     assert browser.find_element(By.CSS_SELECTOR, ".lw-ncr-box a").text == ncr_text
-    browser.save_screenshot(f"/tmp/legwork-tablet-signed-{width}.png")
+
+    # Next weld: straight to W2's form.
+    _tap(browser, browser.find_element(By.CSS_SELECTOR, "[data-next='W2']"))
+    wait.until(ec.url_contains(f"/inspections/inspect/weld/{w2.pk}/"))
 
     # Back on the assembly, the weld card says why it holds the assembly.
     browser.get(f"{live_server.url}/inspections/a/{assembly.pk}/")

@@ -6,3 +6,6 @@ class CoreConfig(AppConfig):
 
     name = "core"
     verbose_name = "People, roles and history"
+
+    def ready(self):
+        from core import lookups  # noqa: F401 - registers the integer `in` lookup that ignores impossible ids

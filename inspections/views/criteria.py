@@ -7,6 +7,7 @@ from django.http import Http404
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_http_methods, require_safe
 
+from core.inputs import parse_id
 from core.roles import role_required
 from inspections import criteria as criteria_sets
 from inspections.criteria.base import Banded, Count, Fixed, Permission, Proportional, Ratio, Threshold
@@ -71,8 +72,8 @@ def criteria_client_detail(request, pk):
 def _base(choice):
     """(the base as derive takes it, its CriteriaSet) for a published key or 'client:<pk>'; None if unknown."""
     if choice.startswith(f"{CLIENT}:"):
-        pk = choice.partition(":")[2]
-        stored = ClientCriteriaSet.objects.filter(pk=int(pk)).first() if pk.isdigit() else None
+        pk = parse_id(choice.partition(":")[2])
+        stored = ClientCriteriaSet.objects.filter(pk=pk).first() if pk is not None else None
         return (stored.definition, stored.criteria_set()) if stored else None
     try:
         return choice, criteria_sets.get_criteria(choice)

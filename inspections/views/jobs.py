@@ -13,6 +13,7 @@ from django.views.decorators.http import require_http_methods, require_POST, req
 
 from core.errors import Refused
 from core.history import history_of
+from core.inputs import parse_id
 from core.roles import can, role_required
 from core.units import format_length
 from core.vocabulary import JointType
@@ -248,18 +249,18 @@ def weld_check(request, pk):
     """htmx: the qualification panel for what the weld form holds now (nothing is saved)."""
     assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
     weld = Weld(assembly=assembly)
-    existing = request.GET.get("weld", "")
-    if existing.isdigit():
-        weld = get_object_or_404(Weld.objects.select_related("wps"), pk=int(existing), assembly=assembly)
+    existing = parse_id(request.GET.get("weld", ""))
+    if existing is not None:
+        weld = get_object_or_404(Weld.objects.select_related("wps"), pk=existing, assembly=assembly)
     form = WeldForm(request.GET, assembly=assembly, instance=weld)
     form.is_valid()  # read what is readable; a half-filled form still gets an answer for its valid parts
     data = form.cleaned_data
     for name in ("joint_type", "position", "thickness1", "thickness2"):
         if data.get(name) is not None:
             setattr(weld, name, data[name])
-    wps_id = request.GET.get("wps", "")
-    wps = WPS.objects.filter(pk=int(wps_id)).first() if wps_id.isdigit() else None
-    ids = [int(v) for v in request.GET.getlist("welders") if v.isdigit()][:50]
+    wps_id = parse_id(request.GET.get("wps", ""))
+    wps = WPS.objects.filter(pk=wps_id).first() if wps_id is not None else None
+    ids = [i for i in (parse_id(v) for v in request.GET.getlist("welders")[:50]) if i is not None]
     welders = list(Welder.objects.filter(pk__in=ids).order_by("stamp"))
     context = _check_context(assembly, weld, wps=wps, welders=welders, on=data.get("welded_on"))
     if weld.thickness1 is None or weld.thickness2 is None:

@@ -11,6 +11,7 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
 from core.errors import Refused
+from core.inputs import parse_ids
 from core.roles import can, role_required
 from inspections import packets
 from inspections import traveler as travelers
@@ -97,9 +98,8 @@ def packet_list(request, pk):
 @require_POST
 def packet_start(request, pk):
     job = get_object_or_404(Job, pk=pk)
-    try:
-        chosen = [int(v) for v in request.POST.getlist("assemblies")][:2000]
-    except ValueError:
+    chosen = parse_ids(request.POST.getlist("assemblies"), limit=2000)
+    if chosen is None:
         return _packet_page(request, job, ["The assemblies chosen could not be read; choose them again."], [], 400)
     try:
         packet = packets.start_packet(job, chosen, request.user)

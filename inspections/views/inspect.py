@@ -224,7 +224,8 @@ def photo_add(request, pk):
 
 @require_safe
 def photo_file(request, pk, size="full"):
-    """A photo or its thumbnail, to logged-in users only (login is required everywhere), never cached publicly."""
+    """A photo or its thumbnail, to logged-in users only (login is required everywhere), never cached (no-store,
+    core.middleware.PrivacyHeaders: a shared tablet keeps no copy)."""
     photo = get_object_or_404(Photo, pk=pk)
     field = photo.thumbnail if size == "thumbnail" else photo.image
     try:
@@ -236,5 +237,4 @@ def photo_file(request, pk, size="full"):
     response = FileResponse(handle, content_type=content_type,
                             filename=f"inspection-{photo.inspection_id}-photo-{photo.pk}"
                                      f"{'-thumb' if size == 'thumbnail' else ''}.{extension}")
-    response["Cache-Control"] = "private, max-age=3600"
     return response

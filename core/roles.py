@@ -35,6 +35,7 @@ ACTIONS = {
     "assembly.release": "Release an assembly",
     "criteria.derive": "Derive a client's criteria set",
     "traveler.issue": "Issue travelers and job packets",
+    "signin.unlock": "Lift a sign-in pause after too many wrong passwords",
 }
 
 _ALLOWED = {
@@ -43,7 +44,7 @@ _ALLOWED = {
     Role.INSPECTOR: {"inspection.record", "ncr.raise", "weld.record", "assembly.submit"},
     Role.QA_LEAD: {
         "procedure.approve", "procedure.withdraw", "continuity.log", "ncr.raise", "ncr.disposition",
-        "assembly.release", "criteria.derive", "traveler.issue", "job.manage", "assembly.submit",
+        "assembly.release", "criteria.derive", "traveler.issue", "job.manage", "assembly.submit", "signin.unlock",
     },
     Role.VIEWER: set(),
 }

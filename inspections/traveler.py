@@ -30,6 +30,7 @@ from django.utils import timezone
 
 from core.pdf import RenderedPDF, render_pdf
 from core.roles import require
+from core.storage import files_or_nothing
 from core.units import Length, format_force, format_length
 from inspections import weld_symbols
 from inspections.models import Assembly, Inspection, InspectionStage, Photo, Weld
@@ -163,7 +164,8 @@ def gather(assembly_pk: int) -> dict:
     """Everything one assembly's traveler prints, in words, in a fixed number of queries (see the tests)."""
     from procedures import eligibility
 
-    assembly = (Assembly.objects.select_related("job__client_criteria", "released_by").get(pk=assembly_pk))
+    assembly = (Assembly.objects.select_related("job__client_criteria", "job__customer", "released_by")
+                .get(pk=assembly_pk))
     job = assembly.job
     system = job.unit_system
     welds = list(Weld.objects.filter(assembly=assembly).select_related("wps")
@@ -253,7 +255,7 @@ def gather(assembly_pk: int) -> dict:
         cautions.append("Strength figures are AISC 360-16 J2 available strengths (LRFD) for the engineer of "
                         "record to review; they do not approve a weld.")
     return {
-        "job": {"pk": job.pk, "number": job.number, "name": job.name, "customer": job.customer,
+        "job": {"pk": job.pk, "number": job.number, "name": job.name, "customer": job.customer.name,
                 "unit_system": job.get_unit_system_display(), "system": system},
         "assembly": {"pk": assembly.pk, "piece_mark": assembly.piece_mark, "drawing": assembly.drawing,
                      "drawing_revision": assembly.drawing_revision, "quantity": assembly.quantity,
@@ -407,7 +409,7 @@ def issue(assembly, user, *, snapshot: dict | None = None) -> tuple[Traveler, bo
         issued_at = timezone.now()
         rendered = render(snapshot, document_number=number, revision=revision, issued_at=issued_at,
                           issued_by=_person(user))
-        with transaction.atomic():
+        with files_or_nothing(), transaction.atomic():  # the PDF and its sidecar go with the row, or not at all
             # Lock the assembly: two QA leads issuing at once must not both write revision N.
             Assembly.objects.select_for_update().only("pk").get(pk=assembly.pk)
             now_latest = Traveler.objects.filter(assembly_id=assembly.pk).order_by("-revision").first()

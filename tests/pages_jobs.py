@@ -48,7 +48,7 @@ PAGES = {
     "inspections:criteria_list": (lambda make: {}, ALL_OK),
     "inspections:criteria_derive": (lambda make: {}, only("qa_lead")),
     "inspections:criteria_detail": (lambda make: {"key": "aws-d1.1-2020-static"}, ALL_OK),
-    "inspections:criteria_client_detail": (lambda make: {"pk": make_client_set(make).pk}, ALL_OK),
+    "inspections:criteria_client_detail": (lambda make: {"pk": _used_client_set(make).pk}, ALL_OK),
 }
 
 NOT_PAGES = {
@@ -56,6 +56,13 @@ NOT_PAGES = {
     "inspections:assembly_release": _assembly,
     "inspections:ncr_disposition": lambda make: {"pk": make.make_ncr().pk, "kind": "scrap"},
 }
+
+
+def _used_client_set(make):
+    """A client set one of the factory customer's jobs is judged by (what that customer's viewer may read)."""
+    cset = make_client_set(make, key=f"client-{make.customer_name[:20].lower().replace(' ', '-')}")
+    make.use_on_job(criteria=cset)
+    return cset
 
 
 def make_client_set(make, key="harlan-transit-static", overrides=None, version=1):

@@ -2,9 +2,9 @@
 
 from inspections.models.criteria import ClientCriteriaSet
 from inspections.models.inspection import Inspection, InspectionStage, Photo
-from inspections.models.jobs import Assembly, AssemblyState, Job, Weld
+from inspections.models.jobs import Assembly, AssemblyState, Customer, Job, Weld
 from inspections.models.ncr import NCR
 from inspections.models.traveler import JobPacket, PacketState, Traveler
 
-__all__ = ["NCR", "Assembly", "AssemblyState", "ClientCriteriaSet", "Inspection", "InspectionStage",
+__all__ = ["NCR", "Assembly", "AssemblyState", "ClientCriteriaSet", "Customer", "Inspection", "InspectionStage",
            "Job", "JobPacket", "PacketState", "Photo", "Traveler", "Weld"]

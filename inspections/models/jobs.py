@@ -9,10 +9,27 @@ from core.fields import ForceField, LengthField
 from core.vocabulary import WELD_POSITION_CHOICES, JointType, Position, UnitSystem
 
 
+class Customer(models.Model):
+    """Whom jobs are built for. A viewer account tied to a customer sees that customer's jobs and what hangs from
+    them, and nothing else (core.visibility)."""
+
+    name = models.CharField(max_length=120, unique=True)
+    viewers = models.ManyToManyField(
+        settings.AUTH_USER_MODEL, blank=True, related_name="customers",
+        help_text="Viewer accounts (the customer's people, or its third-party inspector) that see this customer's "
+                  "jobs")
+
+    class Meta:
+        ordering = ["name"]
+
+    def __str__(self):
+        return self.name
+
+
 class Job(models.Model):
     number = models.CharField(max_length=30, unique=True)
     name = models.CharField(max_length=120)
-    customer = models.CharField(max_length=120)
+    customer = models.ForeignKey(Customer, on_delete=models.PROTECT, related_name="jobs")
     unit_system = models.CharField(max_length=2, choices=UnitSystem.choices, default=UnitSystem.US)
     criteria_key = models.CharField(
         "criteria set", max_length=60, default="aws-d1.1-2020-static",

@@ -7,13 +7,17 @@ and saves nothing. Photos are served only through photo_file, never as public me
 from django.contrib import messages
 from django.core.exceptions import ValidationError
 from django.core.files.base import ContentFile
+from django.db import transaction
 from django.http import FileResponse, Http404
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
+from core import faults
 from core.errors import Refused
 from core.roles import can, role_required
+from core.storage import files_or_nothing
+from core.visibility import get_visible_or_404, visible
 from core.vocabulary import JointType
 from inspections.forms.inspect import CorrectionForm, FindAssemblyForm, InspectionForm, PhotoForm
 from inspections.models import Assembly, Inspection, Photo, Weld
@@ -36,7 +40,7 @@ def inspect_home(request):
     results = None
     if form.is_valid():
         q = form.cleaned_data["q"]
-        found = list(Assembly.objects.select_related("job").filter(piece_mark__istartswith=q)
+        found = list(visible(request.user, Assembly.objects.select_related("job").filter(piece_mark__istartswith=q))
                      .order_by("piece_mark", "job__number")[:SEARCH_LIMIT])
         exact = [a for a in found if a.piece_mark.lower() == q.lower()]
         if len(exact) == 1:
@@ -49,7 +53,7 @@ def inspect_home(request):
 @require_safe
 def inspect_assembly(request, pk):
     """One assembly's welds as cards (the URL a traveler's QR code carries). Four queries, whatever the welds."""
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
     welds = list(Weld.objects.filter(assembly=assembly).select_related("wps").order_by("mark"))
     statuses = weld_statuses([w.pk for w in welds])
     cards = [(weld, statuses[weld.pk]) for weld in welds]
@@ -59,8 +63,8 @@ def inspect_assembly(request, pk):
     })
 
 
-def _weld(pk, related=WELD_RELATED):
-    return get_object_or_404(Weld.objects.select_related(*related), pk=pk)
+def _weld(request, pk, related=WELD_RELATED):
+    return get_visible_or_404(request.user, Weld.objects.select_related(*related), pk=pk)
 
 
 @require_http_methods(["GET", "POST"])
@@ -70,14 +74,14 @@ def inspect_weld(request, pk):
     if request.method == "POST":
         # Signing needs the weld, its assembly, job and criteria; the WPS only shows if the form comes back with
         # errors (then read on demand), so the save does not join and convert the WPS row.
-        weld = _weld(pk, related=SIGN_RELATED)
+        weld = _weld(request, pk, related=SIGN_RELATED)
         form = InspectionForm(request.POST, weld=weld)
         if form.is_valid():
             inspection = _sign(request, form, weld)
             if inspection is not None:
                 return redirect(inspection)
     else:
-        weld = _weld(pk)
+        weld = _weld(request, pk)
         form = InspectionForm(weld=weld)
     return _form_page(request, form, weld)
 
@@ -119,7 +123,7 @@ def _form_page(request, form, weld, correcting=None):
 @role_required("inspection.record")
 def inspect_preview(request, pk):
     """The findings for what is typed so far (htmx partial). Judges only; saves nothing."""
-    weld = _weld(pk)
+    weld = _weld(request, pk)
     form = InspectionForm(request.POST, weld=weld)  # a correction's reason is asked on save, not here
     verdict = None
     if form.is_valid():
@@ -131,15 +135,15 @@ def inspect_preview(request, pk):
         "form": form, "verdict": verdict, "system": weld.assembly.job.unit_system, "preview": True})
 
 
-def _inspection(pk):
-    return get_object_or_404(
-        Inspection.objects.select_related("weld__assembly__job", "inspector", "supersedes__inspector",
+def _inspection(request, pk):
+    return get_visible_or_404(
+        request.user, Inspection.objects.select_related("weld__assembly__job", "inspector", "supersedes__inspector",
                                           "superseded_by__inspector"), pk=pk)
 
 
 @require_safe
 def inspection_detail(request, pk):
-    inspection = _inspection(pk)
+    inspection = _inspection(request, pk)
     return _detail_page(request, inspection, PhotoForm())
 
 
@@ -178,8 +182,8 @@ def _superseded_by(inspection):
 @role_required("inspection.record")
 def inspection_correct(request, pk):
     """Record a correction: a new inspection of the same weld that supersedes this one, with a reason."""
-    old = _inspection(pk)
-    weld = _weld(old.weld_id)
+    old = _inspection(request, pk)
+    weld = _weld(request, old.weld_id)
     if not old.is_current:
         messages.warning(request, "That inspection has already been corrected: this is the latest one.")
         return redirect(_chain(old)[1][-1])
@@ -203,7 +207,7 @@ def _initial_from(inspection):
 @role_required("inspection.record")
 def photo_add(request, pk):
     """Attach a photo (straight from the camera) to a signed inspection; cleaned before it is stored."""
-    inspection = _inspection(pk)
+    inspection = _inspection(request, pk)
     if not inspection.is_current:
         messages.warning(request, "Attach photos to the correction that supersedes this inspection.")
         return redirect(inspection)
@@ -212,12 +216,20 @@ def photo_add(request, pk):
         return _detail_page(request, inspection, form, status=400)
     clean = form.photo
     stem = f"{inspection.pk}-{clean.sha256[:16]}"
-    Photo.objects.create(
-        inspection=inspection, caption=form.cleaned_data["caption"], width=clean.width, height=clean.height,
-        content_type=clean.content_type, sha256=clean.sha256, uploaded_by=request.user,
-        image=ContentFile(clean.content, name=f"{stem}.{clean.extension}"),
-        thumbnail=ContentFile(clean.thumbnail, name=f"{stem}-thumb.jpg"),
-    )
+    try:
+        with files_or_nothing(), transaction.atomic():  # the photo, its thumbnail and the row: all or nothing
+            Photo.objects.create(
+                inspection=inspection, caption=form.cleaned_data["caption"], width=clean.width, height=clean.height,
+                content_type=clean.content_type, sha256=clean.sha256, uploaded_by=request.user,
+                image=ContentFile(clean.content, name=f"{stem}.{clean.extension}"),
+                thumbnail=ContentFile(clean.thumbnail, name=f"{stem}-thumb.jpg"),
+            )
+    except OSError as exc:  # disk full, folder not writable: said beside the photo, the caption kept
+        message = faults.storage_message(exc, "photo")
+        if message is None:
+            raise
+        form.add_error("image", message)
+        return _detail_page(request, inspection, form, status=503)
     messages.success(request, "Photo attached.")
     return redirect(reverse("inspections:inspection_detail", args=[inspection.pk]) + "#photos")
 
@@ -226,7 +238,7 @@ def photo_add(request, pk):
 def photo_file(request, pk, size="full"):
     """A photo or its thumbnail, to logged-in users only (login is required everywhere), never cached (no-store,
     core.middleware.PrivacyHeaders: a shared tablet keeps no copy)."""
-    photo = get_object_or_404(Photo, pk=pk)
+    photo = get_visible_or_404(request.user, Photo, pk=pk)
     field = photo.thumbnail if size == "thumbnail" else photo.image
     try:
         handle = field.open("rb")

@@ -16,6 +16,7 @@ from core.history import history_of
 from core.inputs import parse_id
 from core.roles import can, role_required
 from core.units import format_length
+from core.visibility import get_visible_or_404, visible
 from core.vocabulary import JointType
 from inspections.forms.jobs import (
     AssemblyForm,
@@ -40,7 +41,8 @@ def _open_ncr_count():
 
 @require_safe
 def job_list(request):
-    jobs = Job.objects.select_related("client_criteria").annotate(n_assemblies=Count("assemblies", distinct=True))
+    jobs = visible(request.user, Job.objects.select_related("client_criteria", "customer")).annotate(
+        n_assemblies=Count("assemblies", distinct=True))
     return render(request, "inspections/job_list.html", {"jobs": jobs, "search": PieceMarkSearchForm()})
 
 
@@ -57,7 +59,7 @@ def job_create(request):
 
 @require_safe
 def job_detail(request, pk):
-    job = get_object_or_404(Job.objects.select_related("client_criteria"), pk=pk)
+    job = get_visible_or_404(request.user, Job.objects.select_related("client_criteria", "customer"), pk=pk)
     search = PieceMarkSearchForm(request.GET or None)
     assemblies = (job.assemblies.annotate(n_welds=Count("welds", distinct=True), n_open_ncrs=_open_ncr_count())
                   .order_by("piece_mark"))
@@ -75,7 +77,7 @@ def assembly_find(request):
     query = search.cleaned_data["q"].strip() if search.is_valid() else ""
     found = []
     if query:
-        found = list(Assembly.objects.filter(piece_mark__icontains=query).select_related("job")
+        found = list(visible(request.user, Assembly.objects.filter(piece_mark__icontains=query)).select_related("job")
                      .order_by("piece_mark", "job__number")[:50])
         exact = [a for a in found if a.piece_mark.lower() == query.lower()]
         if len(exact) == 1:
@@ -86,7 +88,7 @@ def assembly_find(request):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def assembly_create(request, pk):
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     form = AssemblyForm(request.POST or None, job=job)
     if request.method == "POST" and form.is_valid():
         form.instance.job = job
@@ -142,12 +144,12 @@ def _assembly_page(request, assembly, release_errors=None, status=200):
 
 @require_safe
 def assembly_detail(request, pk):
-    assembly = get_object_or_404(Assembly.objects.select_related("job", "released_by"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job", "released_by"), pk=pk)
     return _assembly_page(request, assembly)
 
 
 def _step(request, pk, step, done):
-    assembly = get_object_or_404(Assembly.objects.select_related("job", "released_by"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job", "released_by"), pk=pk)
     form = StepForm(request.POST)
     reason = form.cleaned_data["reason"] if form.is_valid() else ""
     try:
@@ -184,7 +186,7 @@ def _save_weld(request, form):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def weld_create(request, pk):
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
     if assembly.is_closed:
         raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
                                "frozen.")
@@ -200,7 +202,7 @@ def weld_create(request, pk):
 @require_http_methods(["GET", "POST"])
 @role_required("job.manage", "weld.record")
 def weld_edit(request, pk):
-    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
+    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps"), pk=pk)
     assembly = weld.assembly
     if assembly.is_closed:
         raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
@@ -219,7 +221,8 @@ def weld_edit(request, pk):
 
 @require_safe
 def weld_detail(request, pk):
-    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps").prefetch_related("welders"), pk=pk)
+    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps")
+                              .prefetch_related("welders"), pk=pk)
     row = weld_rows(weld.assembly, [weld])[0]
     inspections = weld.inspections.select_related("inspector", "supersedes").order_by("-inspected_at", "-pk")
     return render(request, "inspections/weld_detail.html", {
@@ -247,7 +250,7 @@ def _check_context(assembly, weld, wps=None, welders=None, on=None):
 @role_required("job.manage", "weld.record")
 def weld_check(request, pk):
     """htmx: the qualification panel for what the weld form holds now (nothing is saved)."""
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
     weld = Weld(assembly=assembly)
     existing = parse_id(request.GET.get("weld", ""))
     if existing is not None:
@@ -274,7 +277,7 @@ def weld_check(request, pk):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def weldmap_import(request, pk):
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     preview = None
     form = WeldMapUploadForm()
     csv_text = ""
@@ -313,7 +316,7 @@ def weldmap_import(request, pk):
 
 @require_safe
 def weldmap_export(request, pk):
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     response = HttpResponse(weldmap_csv.export_weld_map(job), content_type="text/csv; charset=utf-8")
     safe_number = "".join(c if c.isalnum() or c in "-_" else "_" for c in job.number)
     response["Content-Disposition"] = f'attachment; filename="weld-map-{safe_number}.csv"'

@@ -2,7 +2,8 @@
 
 A person has one role. The QA lead approves and releases; the welding engineer drafts procedures and
 records welder tests; the inspector records inspections and raises NCRs; a viewer (a customer's or a
-third-party inspector's account) reads everything and changes nothing.
+third-party inspector's account) reads the jobs of the customers it is tied to, and what hangs from them
+(core.visibility decides which records), and changes nothing.
 """
 
 from functools import wraps

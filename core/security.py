@@ -7,6 +7,7 @@ the server no hashing), and the sign-in page says so. A QA lead lifts a pause fr
 are logged (logger "legwork.security", and axes' own).
 """
 
+import ipaddress
 import logging
 
 from django.conf import settings
@@ -17,14 +18,19 @@ from django.utils import timezone
 log = logging.getLogger("legwork.security")
 
 
-def client_ip(request) -> str:
+def client_ip(request) -> str | None:
     """The address a request came from: the socket's, or behind our own proxy (LEGWORK_BEHIND_PROXY) the last
-    address in X-Forwarded-For, which that proxy appended. Never an address the client could choose."""
-    if settings.LEGWORK_BEHIND_PROXY:
+    address in X-Forwarded-For, which that proxy appended. Never an address the client could choose; None when
+    there is no readable address (a request made inside the process, such as a test's force_login)."""
+    address = request.META.get("REMOTE_ADDR") if request is not None else None
+    if request is not None and settings.LEGWORK_BEHIND_PROXY:
         forwarded = [part.strip() for part in request.META.get("HTTP_X_FORWARDED_FOR", "").split(",") if part.strip()]
         if forwarded:
-            return forwarded[-1][:64]
-    return (request.META.get("REMOTE_ADDR") or "unknown")[:64]
+            address = forwarded[-1]
+    try:
+        return str(ipaddress.ip_address((address or "").strip()))
+    except ValueError:
+        return None
 
 
 def attempted_username(request, credentials) -> str:

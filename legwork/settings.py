@@ -121,7 +121,7 @@ CSRF_FAILURE_VIEW = "core.views.csrf_failure"
 # Sign-in throttling (django-axes): after LEGWORK_LOGIN_FAILURES wrong passwords for one user name from one address,
 # that pair is refused for LEGWORK_LOGIN_LOCKOUT_MINUTES without checking a password; a QA lead can lift it early
 # (core.views.lockouts). By the pair, not the address alone (a shop's tablets share one address) nor the user
-# alone (anyone could lock the QA lead out). docs/decisions/2026-12-05-hostile-input.md.
+# alone (anyone could lock the QA lead out). docs/decisions/2026-12-04-sign-ins-and-sessions.md.
 AUTHENTICATION_BACKENDS = ["axes.backends.AxesStandaloneBackend", "django.contrib.auth.backends.ModelBackend"]
 AXES_FAILURE_LIMIT = env_int("LEGWORK_LOGIN_FAILURES", 5)
 AXES_COOLOFF_TIME = timedelta(minutes=env_int("LEGWORK_LOGIN_LOCKOUT_MINUTES", 15))

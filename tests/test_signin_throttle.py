@@ -142,3 +142,13 @@ def test_force_login_does_not_count(users, client, settings):
         client.force_login(users["inspector"])
     assert client.get(reverse("home")).status_code == 200
     assert not AccessAttempt.objects.exists()
+
+
+def test_an_address_is_read_only_when_it_is_one(rf, settings):
+    from core.security import client_ip
+
+    assert client_ip(rf.get("/", REMOTE_ADDR="10.0.0.7")) == "10.0.0.7"
+    assert client_ip(rf.get("/", REMOTE_ADDR="")) is None
+    settings.LEGWORK_BEHIND_PROXY = True
+    assert client_ip(rf.get("/", REMOTE_ADDR="127.0.0.1", HTTP_X_FORWARDED_FOR="1.2.3.4, not-an-address")) is None
+    assert client_ip(rf.get("/", REMOTE_ADDR="127.0.0.1", HTTP_X_FORWARDED_FOR=" 2001:db8::1 ")) == "2001:db8::1"

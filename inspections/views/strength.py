@@ -1,7 +1,8 @@
 """The fillet weld calculator and the calculation sheets (HTML and PDF) of the calculator, a weld and an inspection.
 
 Reading is allowed to every signed-in role, the viewer included: nothing here changes a record, and a customer's
-or third-party inspector's account may check the same arithmetic the shop relies on. The figures come from
+or third-party inspector's account may check the same arithmetic the shop relies on (for its own customers'
+welds and inspections only: core.visibility). The figures come from
 inspections.strength through inspections.services.capacity; these views only gather and render.
 """
 

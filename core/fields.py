@@ -161,6 +161,7 @@ CEILINGS = {
 CEILING_TEXT = {"length": "100 m", "temperature": "1000 C", "force": "1,000,000 kN", "speed": "100 m/min",
                 "flow": "1000 L/min"}
 
+
 class QuantityInput(forms.TextInput):
     """A text box (fractions and units are text), with the numeric keypad hint where it helps."""
 

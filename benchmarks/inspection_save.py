@@ -99,11 +99,12 @@ def _seed(existing: int, welds_per_assembly: int = 10, per_weld: int = 10):
 
     from core.models import User
     from core.units import parse_length as L
-    from inspections.models import Assembly, Inspection, Job, Weld
+    from inspections.models import Assembly, Customer, Inspection, Job, Weld
     from inspections.services.inspect import findings_json, judge
 
     inspector = User.objects.create(username="bench-inspector", role="inspector", first_name="Bench")
-    job = Job.objects.create(number="J-BENCH", name="Benchmark framing", customer="Brannock Steelworks (bench)",
+    customer, _ = Customer.objects.get_or_create(name="Brannock Steelworks (bench)")
+    job = Job.objects.create(number="J-BENCH", name="Benchmark framing", customer=customer,
                              unit_system="US", criteria_key="aws-d1.1-2020-static")
     n_welds = max(1, existing // per_weld)
     n_assemblies = max(1, n_welds // welds_per_assembly)

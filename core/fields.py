@@ -3,6 +3,11 @@
 A length is stored as Decimal millimetres with 7 places (1/128 in exact) and comes back as a
 units.Length; a temperature as Decimal degrees Celsius (units.Temperature); a force as kN; a speed as
 mm/min; a gas flow as L/min. Forms accept what a person types in their job's system.
+
+Whatever is typed, a field answers with a value or a ValidationError shown beside it, never another exception:
+the parsers' ValueError, and the ArithmeticError family (decimal.InvalidOperation for a number with more digits
+than a Decimal context holds, OverflowError, ZeroDivisionError) become a message, NaN and Infinity are refused,
+and each quantity has a ceiling far above any shop value (CEILINGS) so a stored value always fits its column.
 """
 
 from decimal import Decimal
@@ -35,7 +40,10 @@ class _QuantityField(models.DecimalField):
         return name, path, args, kwargs
 
     def _wrap(self, value):
-        return self.quantity(**{self.attribute: Decimal(value)})
+        number = value if isinstance(value, Decimal) else Decimal(str(value))
+        if not number.is_finite():
+            raise ValidationError(f"'{value}' is not a number.", code="invalid")
+        return self.quantity(**{self.attribute: number})
 
     def from_db_value(self, value, expression, connection):
         if value is None:
@@ -72,7 +80,11 @@ class _QuantityField(models.DecimalField):
     def run_validators(self, value):
         # DecimalField's digit validator judges the stored number, rounded to the column's places.
         if isinstance(value, self.quantity):
-            value = getattr(value, self.attribute).quantize(Decimal(1).scaleb(-self.decimal_places))
+            try:
+                value = getattr(value, self.attribute).quantize(Decimal(1).scaleb(-self.decimal_places))
+            except ArithmeticError:
+                raise ValidationError("This number is too large to store: check the number and the unit.",
+                                      code="max_digits") from None
         super().run_validators(value)
 
     def value_to_string(self, obj):
@@ -87,11 +99,11 @@ class _QuantityField(models.DecimalField):
 
 
 def _is_number(text):
+    """A plain decimal number (as the database and fixtures hand it over); NaN and Infinity are not."""
     try:
-        Decimal(text)
+        return Decimal(text).is_finite()
     except ArithmeticError:
         return False
-    return True
 
 
 class LengthField(_QuantityField):
@@ -137,6 +149,19 @@ class FlowField(_QuantityField):
 
 # --- form fields ---------------------------------------------------------------------------------
 
+# The largest value a form accepts, in the base unit (common practice, no source: each is far above anything a
+# structural shop measures or sets, and far below what the column holds, 12 digits before the point).
+CEILINGS = {
+    "length": units.MAX_LENGTH_MM,  # 100 m, as core.units bounds a length
+    "temperature": Decimal("1000"),  # C; core.units refuses above it too
+    "force": Decimal("1000000"),  # kN; core.units refuses above it too
+    "speed": Decimal("100000"),  # mm/min: 100 m/min, several times the fastest wire feed
+    "flow": Decimal("1000"),  # L/min: shielding gas runs at tens of litres a minute
+}
+CEILING_TEXT = {"length": "100 m", "temperature": "1000 C", "force": "1,000,000 kN", "speed": "100 m/min",
+                "flow": "1000 L/min"}
+
+
 class QuantityInput(forms.TextInput):
     """A text box (fractions and units are text), with the numeric keypad hint where it helps."""
 
@@ -174,9 +199,20 @@ class _QuantityFormField(forms.CharField):
         if value in self.empty_values:
             return None
         try:
-            return type(self).parse(value, default_unit=self.default_unit())
+            parsed = type(self).parse(value, default_unit=self.default_unit())
+            number = self.base(parsed)
+            finite = number.is_finite()
         except ValueError as exc:
             raise ValidationError(str(exc), code="invalid") from None
+        except ArithmeticError:  # more digits than Decimal holds, an overflow: a number nobody measured
+            raise ValidationError(f"'{value}' is too large a number: check the number and the unit.",
+                                  code="invalid") from None
+        if not finite:
+            raise ValidationError(f"'{value}' is not a number.", code="invalid")
+        if number > CEILINGS[self.quantity_name]:
+            raise ValidationError(f"'{value}' is more than {CEILING_TEXT[self.quantity_name]}: check the number and "
+                                  "the unit.", code="max_value")
+        return parsed
 
     def validate(self, value):
         super().validate(value)
@@ -203,6 +239,8 @@ class LengthFormField(_QuantityFormField):
 
     A bare number is read in the job's system: inches on a US job, millimetres on an SI job.
     """
+
+    quantity_name = "length"
 
     parse = staticmethod(units.parse_length)
     format = staticmethod(units.format_length)
@@ -233,6 +271,8 @@ class TemperatureFormField(_QuantityFormField):
     """Preheat and interpass: '50 F', '10 C'; a bare number is read in the record's system, as a bare length is
     (50 is 50 °F on a US procedure, 50 °C on an SI one)."""
 
+    quantity_name = "temperature"
+
     parse = staticmethod(units.parse_temperature)
     format = staticmethod(units.format_temperature)
 
@@ -249,6 +289,7 @@ class TemperatureFormField(_QuantityFormField):
 
 
 class ForceFormField(_QuantityFormField):
+    quantity_name = "force"
     parse = staticmethod(units.parse_force)
     format = staticmethod(units.format_force)
 
@@ -260,6 +301,7 @@ class ForceFormField(_QuantityFormField):
 
 
 class SpeedFormField(_QuantityFormField):
+    quantity_name = "speed"
     parse = staticmethod(units.parse_speed)
     format = staticmethod(units.format_speed)
 
@@ -271,6 +313,7 @@ class SpeedFormField(_QuantityFormField):
 
 
 class FlowFormField(_QuantityFormField):
+    quantity_name = "flow"
     parse = staticmethod(units.parse_flow)
     format = staticmethod(units.format_flow)
 

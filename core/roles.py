@@ -2,7 +2,8 @@
 
 A person has one role. The QA lead approves and releases; the welding engineer drafts procedures and
 records welder tests; the inspector records inspections and raises NCRs; a viewer (a customer's or a
-third-party inspector's account) reads everything and changes nothing.
+third-party inspector's account) reads the jobs of the customers it is tied to, and what hangs from them
+(core.visibility decides which records), and changes nothing.
 """
 
 from functools import wraps
@@ -37,6 +38,7 @@ ACTIONS = {
     "traveler.issue": "Issue travelers and job packets",
     "records.verify": "Check a document or a printed chain head against the sealed records",
     "records.export": "Export a job's whole record (JSON and files)",
+    "signin.unlock": "Lift a sign-in pause after too many wrong passwords",
 }
 
 _ALLOWED = {
@@ -46,7 +48,7 @@ _ALLOWED = {
     Role.QA_LEAD: {
         "procedure.approve", "procedure.withdraw", "continuity.log", "ncr.raise", "ncr.disposition",
         "assembly.release", "criteria.derive", "traveler.issue", "job.manage", "assembly.submit",
-        "records.verify", "records.export",
+        "records.verify", "records.export", "signin.unlock",
     },
     # A viewer (a customer's or a third-party inspector's account) changes nothing, but may check a copy it holds.
     Role.VIEWER: {"records.verify"},

@@ -259,22 +259,26 @@ def _states(users, procedures):
     wps_steps.withdraw(retired, qa, "Brackets now welded to BSW-101; E6013 no longer stocked")
 
 
+# The demo viewer is the garage owner's account: it sees that customer's job and nothing of the other two.
+VIEWER_CUSTOMER = "Harlan County Transit Authority"
+
+
 def _jobs(users, procedures, welders, today):
-    from inspections.models import Job
+    from inspections.models import Customer, Job
 
     _states(users, procedures)
+    harlan, ostrander, nordvik = (Customer.objects.get_or_create(name=name)[0] for name in (
+        VIEWER_CUSTOMER, "Ostrander Mill Services", "Nordvik Havn (invented)"))
+    harlan.viewers.add(users[Role.VIEWER])
     garage = Job.objects.create(number=MARKER_JOB, name="Harlan Transit Garage, level 2 framing",
-                                customer="Harlan County Transit Authority", unit_system="US",
-                                criteria_key="aws-d1.1-2020-static")
+                                customer=harlan, unit_system="US", criteria_key="aws-d1.1-2020-static")
     runway = Job.objects.create(number="J-2422", name="Crane runway girders, bay 3",
-                                customer="Ostrander Mill Services", unit_system="US",
-                                criteria_key="aws-d1.1-2020-cyclic", fit_up_hold_point=True)
+                                customer=ostrander, unit_system="US", criteria_key="aws-d1.1-2020-cyclic",
+                                fit_up_hold_point=True)
     canopy = Job.objects.create(number="J-2431", name="Ferry terminal canopy, Nordvik quay",
-                                customer="Nordvik Havn (invented)", unit_system="SI",
-                                criteria_key="iso-5817-2014-C")
+                                customer=nordvik, unit_system="SI", criteria_key="iso-5817-2014-C")
     platform = Job.objects.create(number="J-2440", name="Mill platform and lifting lugs, line 2",
-                                  customer="Ostrander Mill Services", unit_system="SI",
-                                  criteria_key="aws-d1.1-2020-static")
+                                  customer=ostrander, unit_system="SI", criteria_key="aws-d1.1-2020-static")
     _garage(garage, users, procedures, welders, today)
     _runway(runway, users, procedures, welders, today)
     _canopy(canopy, users, procedures, welders, today)

@@ -25,10 +25,11 @@ from django.db import transaction
 from django.utils import timezone
 from django_tasks import task
 
-from core import seals
+from core import faults, seals
 from core.errors import Refused
 from core.pdf import render_pdf
 from core.roles import require
+from core.storage import files_or_nothing
 from core.transitions import transition
 from inspections import traveler as travelers
 from inspections.models import Assembly, JobPacket, PacketState
@@ -129,7 +130,7 @@ def build_packet_task(packet_pk: int) -> int:
 
 def build_packet(packet_pk: int) -> JobPacket:
     """Build a queued packet; on any failure the packet says so (failed, with the error) instead of hanging."""
-    packet = JobPacket.objects.select_related("job", "requested_by").get(pk=packet_pk)
+    packet = JobPacket.objects.select_related("job__customer", "requested_by").get(pk=packet_pk)
     try:
         start(packet, total=len(packet.assembly_pks) + 3)  # each assembly, the WPSs, the welders, cover and merge
     except Refused:
@@ -139,7 +140,9 @@ def build_packet(packet_pk: int) -> JobPacket:
         _build(packet, directory)
     except Exception as exc:  # noqa: BLE001 - any failure must reach the page, never leave it "building"
         log.exception("Packet %s failed", packet.pk)
-        fail(packet, f"{type(exc).__name__}: {exc}")
+        reason = faults.storage_problem(exc)  # a full disk is said in words, without the server's paths
+        fail(packet, f"{reason} The packet was not stored; build it again later." if reason
+             else f"{type(exc).__name__}: {exc}")
     finally:
         shutil.rmtree(directory, ignore_errors=True)
     packet.refresh_from_db()
@@ -181,7 +184,7 @@ def _build(packet: JobPacket, directory: Path):
     advance(packet, len(pks) + 1, "WPSs")
 
     for welder_pk in sorted(welder_pks, key=lambda pk: welder_pks[pk]["stamp"]):
-        content = _welder_summary(welder_pk, paper)
+        content = _welder_summary(welder_pk, packet.job, paper)
         parts.append(Part(f"Welder {welder_pks[welder_pk]['stamp']} {welder_pks[welder_pk]['name']}: "
                           "qualification summary", _spool(directory, f"welder-{welder_pk}.pdf", content),
                           travelers.page_count(content), "welder"))
@@ -199,13 +202,17 @@ def _build(packet: JobPacket, directory: Path):
 
     cover, index = _cover(context, parts)
     path, sha256, pages = _merge(directory, cover, parts)
-    with path.open("rb") as handle:
+    with path.open("rb") as handle, files_or_nothing():  # no stored file without its finished packet row
         finish(packet, File(handle, name=packet.filename), sha256, pages, index)
 
 
-def _welder_summary(welder_pk, paper=None) -> bytes:
-    """The welder's qualification summary as the welder pages print it (procedures.printing)."""
+def _welder_summary(welder_pk, job, paper=None) -> bytes:
+    """The welder's qualification summary as the welder pages print it (procedures.printing); production welds on
+    other customers' jobs are shown without their job (the packet goes to this job's customer)."""
     context = printing.welder_context(printing.welder_with_records(welder_pk))
+    context["continuity"] = [(entry, url, hidden or bool(entry.weld_id and entry.weld.assembly.job.customer_id
+                                                          != job.customer_id))
+                             for entry, url, hidden in context["continuity"]]
     return render_pdf("pdf/welder_summary.html", context, f"welder-{welder_pk}.pdf", paper=paper).content
 
 

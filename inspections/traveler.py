@@ -31,6 +31,7 @@ from core import seals
 from core.notation import trade
 from core.pdf import RenderedPDF, paper_for, render_pdf
 from core.roles import require
+from core.storage import files_or_nothing
 from core.units import Length, format_length
 from inspections import weld_symbols, wording
 from inspections.models import Assembly, Inspection, InspectionStage, Photo, Weld
@@ -164,7 +165,8 @@ def gather(assembly_pk: int) -> dict:
 
     The open items are the release blockers (inspections.services.chain, the same list release waits for), so a
     released traveler has none and one printed before release says what is still open."""
-    assembly = (Assembly.objects.select_related("job__client_criteria", "released_by").get(pk=assembly_pk))
+    assembly = (Assembly.objects.select_related("job__client_criteria", "job__customer", "released_by")
+                .get(pk=assembly_pk))
     job = assembly.job
     system = job.unit_system
     iso = wording.throat_first(job)
@@ -290,7 +292,7 @@ def gather(assembly_pk: int) -> dict:
         cautions.append("Strength figures are AISC 360-16 J2 available strengths (LRFD) for the engineer of "
                         "record to review; they do not approve a weld.")
     return {
-        "job": {"pk": job.pk, "number": job.number, "name": job.name, "customer": job.customer,
+        "job": {"pk": job.pk, "number": job.number, "name": job.name, "customer": job.customer.name,
                 "unit_system": job.get_unit_system_display(), "system": system,
                 "fit_up_hold_point": job.fit_up_hold_point},
         "assembly": {"pk": assembly.pk, "piece_mark": assembly.piece_mark, "drawing": assembly.drawing,
@@ -424,7 +426,9 @@ def issue(assembly, user, *, snapshot: dict | None = None) -> tuple[Traveler, bo
         issued_at = timezone.now()
         rendered = render(snapshot, document_number=number, revision=revision, issued_at=issued_at,
                           issued_by=_person(user))
-        with seals.sealing():  # the chain first (core.seals, lock order), then the assembly
+        # The chain first (core.seals, lock order), then the assembly; the PDF and its sidecar go with the row,
+        # or not at all (core.storage).
+        with files_or_nothing(), seals.sealing():
             # Lock the assembly: two QA leads issuing at once must not both write revision N.
             Assembly.objects.select_for_update().only("pk").get(pk=assembly.pk)
             now_latest = Traveler.objects.filter(assembly_id=assembly.pk).order_by("-revision").first()

@@ -6,6 +6,7 @@ usually DATABASE_URL.
 """
 
 import secrets
+from datetime import timedelta
 from pathlib import Path
 
 from django.core.exceptions import ImproperlyConfigured
@@ -49,6 +50,7 @@ INSTALLED_APPS = [
     "template_partials",
     "django_tasks",
     "django_tasks_db",
+    "axes",
     "core",
     "procedures",
     "inspections",
@@ -58,6 +60,8 @@ INSTALLED_APPS = [
 MIDDLEWARE = [
     "django.middleware.security.SecurityMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
+    "core.middleware.RequestLimits",  # before anything reads the body (core/middleware.py)
+    "core.middleware.PrivacyHeaders",
     "django.contrib.sessions.middleware.SessionMiddleware",
     "django.middleware.common.CommonMiddleware",
     "django.middleware.csrf.CsrfViewMiddleware",
@@ -67,6 +71,8 @@ MIDDLEWARE = [
     "django.contrib.messages.middleware.MessageMiddleware",
     "django.middleware.clickjacking.XFrameOptionsMiddleware",
     "csp.middleware.CSPMiddleware",
+    "core.middleware.FaultPages",
+    "axes.middleware.AxesMiddleware",  # last, as django-axes asks
 ]
 
 ROOT_URLCONF = "legwork.urls"
@@ -111,6 +117,27 @@ AUTH_USER_MODEL = "core.User"
 LOGIN_URL = "login"
 LOGIN_REDIRECT_URL = "home"
 LOGOUT_REDIRECT_URL = "login"
+CSRF_FAILURE_VIEW = "core.views.csrf_failure"
+
+# Sign-in throttling (django-axes): after LEGWORK_LOGIN_FAILURES wrong passwords for one user name from one address,
+# that pair is refused for LEGWORK_LOGIN_LOCKOUT_MINUTES without checking a password; a QA lead can lift it early
+# (core.views.lockouts). By the pair, not the address alone (a shop's tablets share one address) nor the user
+# alone (anyone could lock the QA lead out). docs/decisions/2026-12-04-sign-ins-and-sessions.md.
+AUTHENTICATION_BACKENDS = ["axes.backends.AxesStandaloneBackend", "django.contrib.auth.backends.ModelBackend"]
+AXES_FAILURE_LIMIT = env_int("LEGWORK_LOGIN_FAILURES", 5)
+AXES_COOLOFF_TIME = timedelta(minutes=env_int("LEGWORK_LOGIN_LOCKOUT_MINUTES", 15))
+AXES_LOCKOUT_PARAMETERS = [["username", "ip_address"]]
+AXES_RESET_ON_SUCCESS = True
+AXES_LOCKOUT_CALLABLE = "core.security.lockout_response"
+AXES_CLIENT_IP_CALLABLE = "core.security.client_ip"
+AXES_USERNAME_CALLABLE = "core.security.attempted_username"
+AXES_VERBOSE = True
+
+# Sessions: a tablet is shared by a crew, so a sign-in lasts a shift (LEGWORK_SESSION_HOURS from sign-in, not
+# renewed by activity), and with LEGWORK_SESSION_AT_BROWSER_CLOSE=1 also ends when the browser closes.
+SESSION_COOKIE_AGE = env_int("LEGWORK_SESSION_HOURS", 12) * 3600
+SESSION_EXPIRE_AT_BROWSER_CLOSE = env_bool("LEGWORK_SESSION_AT_BROWSER_CLOSE", False)
+SESSION_SAVE_EVERY_REQUEST = False
 
 AUTH_PASSWORD_VALIDATORS = [
     {"NAME": "django.contrib.auth.password_validation.UserAttributeSimilarityValidator"},
@@ -130,7 +157,8 @@ STATIC_ROOT = Path(env_str("LEGWORK_STATIC_ROOT", str(VAR_DIR / "static")))
 # Photos, reports and PDFs: never under STATIC and never served by URL; views check the user first.
 MEDIA_ROOT = Path(env_str("LEGWORK_MEDIA_ROOT", str(VAR_DIR / "media")))
 STORAGES = {
-    "default": {"BACKEND": "django.core.files.storage.FileSystemStorage"},
+    # Whole files or none: a full disk leaves no truncated file (core/storage.py).
+    "default": {"BACKEND": "core.storage.SafeFileSystemStorage"},
     "staticfiles": {
         "BACKEND": "whitenoise.storage.CompressedManifestStaticFilesStorage"
         if not DEBUG
@@ -155,10 +183,24 @@ TASKS = {
 DATA_UPLOAD_MAX_MEMORY_SIZE = 5 * 1024 * 1024
 FILE_UPLOAD_MAX_MEMORY_SIZE = 5 * 1024 * 1024
 LEGWORK_PHOTO_MAX_BYTES = env_int("LEGWORK_PHOTO_MAX_BYTES", 15 * 1024 * 1024)
-LEGWORK_PHOTO_MAX_PIXELS = env_int("LEGWORK_PHOTO_MAX_PIXELS", 40_000_000)
+# Pixels decoded at full size (PNG, WebP): about 3 bytes each, 4 with transparency (inspections/photos.py).
+LEGWORK_PHOTO_MAX_PIXELS = env_int("LEGWORK_PHOTO_MAX_PIXELS", 16_000_000)
+# A JPEG is decoded at a reduced scale (Pillow's draft mode), so a larger camera picture is read within bounds.
+LEGWORK_PHOTO_MAX_JPEG_PIXELS = env_int("LEGWORK_PHOTO_MAX_JPEG_PIXELS", 64_000_000)
 LEGWORK_REPORT_MAX_BYTES = env_int("LEGWORK_REPORT_MAX_BYTES", 10 * 1024 * 1024)  # welder test reports
 # A traveler or packet PDF dropped on the document check page: hashed as it arrives, never stored.
 LEGWORK_CHECK_MAX_BYTES = env_int("LEGWORK_CHECK_MAX_BYTES", 256 * 1024 * 1024)
+# A request body larger than this is refused before it is read (core.middleware.RequestLimits): the largest
+# upload plus room for the form around it.
+LEGWORK_MAX_REQUEST_BYTES = env_int(
+    "LEGWORK_MAX_REQUEST_BYTES", max(LEGWORK_PHOTO_MAX_BYTES, LEGWORK_REPORT_MAX_BYTES) + 1024 * 1024)
+
+# The browser features a page may use: the camera (photos at the weld) and nothing else.
+LEGWORK_PERMISSIONS_POLICY = (
+    "camera=(self), microphone=(), geolocation=(), payment=(), usb=(), serial=(), bluetooth=(), hid=(), midi=(), "
+    "accelerometer=(), gyroscope=(), magnetometer=(), display-capture=(), screen-wake-lock=(), "
+    "xr-spatial-tracking=(), publickey-credentials-get=(), idle-detection=(), browsing-topics=()"
+)
 
 CONTENT_SECURITY_POLICY = {
     "DIRECTIVES": {
@@ -185,13 +227,24 @@ if not DEBUG:
         # Preloading commits a whole domain to HTTPS in every browser; a shop's own server name rarely
         # should be. Off by default, on with LEGWORK_HSTS_PRELOAD=1.
         SILENCED_SYSTEM_CHECKS = ["security.W021"]
-    SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https") if env_bool("LEGWORK_BEHIND_PROXY", True) else None
+
+# Behind a TLS-terminating reverse proxy that sets X-Forwarded-Proto and X-Forwarded-For: only then are those
+# headers believed (for HTTPS detection and the address sign-in throttling counts by). Off by default: a client
+# could otherwise claim HTTPS, or a new address for every password it tries.
+LEGWORK_BEHIND_PROXY = env_bool("LEGWORK_BEHIND_PROXY", False)
+SECURE_PROXY_SSL_HEADER = ("HTTP_X_FORWARDED_PROTO", "https") if LEGWORK_BEHIND_PROXY else None
 
 LOGGING = {
     "version": 1,
     "disable_existing_loggers": False,
     "handlers": {"console": {"class": "logging.StreamHandler"}},
     "root": {"handlers": ["console"], "level": env_str("LEGWORK_LOG_LEVEL", "WARNING")},
+    # Security events (sign-in failures and lockouts, unlocks, refused uploads, faults) at INFO and above.
+    "loggers": {
+        "legwork.security": {"level": "INFO"},
+        "legwork.faults": {"level": "INFO"},
+        "axes": {"level": "WARNING"},
+    },
 }
 
 # Printed in the footer of every PDF (travelers, packets, WPSs, calculation sheets): the shop's name.

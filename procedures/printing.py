@@ -183,7 +183,8 @@ def welder_context(welder):
              for q in welder.qualifications.all()]
     return {
         "welder": welder, "status": status, "tests": tests, "today": today,
-        "continuity": [(entry, weld_url(entry.weld)) for entry in welder.continuity.all()],
+        # (entry, link, hidden): core.visibility.continuity_for hides other customers' jobs from a viewer
+        "continuity": [(entry, weld_url(entry.weld), False) for entry in welder.continuity.all()],
         "history": history.panel(welder, *welder.qualifications.all(), *welder.continuity.all()),
         "history_mixed": True,
     }

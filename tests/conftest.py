@@ -32,7 +32,10 @@ def make(db):
 
 @pytest.fixture
 def users(db, make):
-    return {role: make.make_user(role) for role in ROLES}
+    """One user per role; the viewer is the account of the factory's customer (it sees that customer's jobs)."""
+    made = {role: make.make_user(role) for role in ROLES}
+    make.make_customer(viewers=[made["viewer"]])
+    return made
 
 
 @pytest.fixture

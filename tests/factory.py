@@ -22,6 +22,17 @@ def L(text):  # noqa: N802 - reads like the unit it builds
 
 class Factory:
     password = "weld-demo-pass"
+    # Jobs are made for this customer unless told otherwise; conftest's viewer account is tied to it. The role
+    # matrix switches it to another customer to check that the viewer sees none of that one's records.
+    customer_name = "Harlan County Transit Authority"
+
+    def make_customer(self, name=None, viewers=()):
+        from inspections.models import Customer
+
+        customer, _ = Customer.objects.get_or_create(name=name or self.customer_name)
+        if viewers:
+            customer.viewers.add(*viewers)
+        return customer
 
     @staticmethod
     def put(record, **fields):
@@ -124,10 +135,12 @@ class Factory:
         from inspections.models import Job
 
         n = next(_counter)
-        fields = dict(number=f"J-{2400 + n}", name="Harlan Transit Garage, level 2 framing",
-                      customer="Harlan County Transit Authority", unit_system="US",
+        fields = dict(number=f"J-{2400 + n}", name="Harlan Transit Garage, level 2 framing", unit_system="US",
                       criteria_key="aws-d1.1-2020-static")
         fields.update(kwargs)
+        customer = fields.get("customer")
+        if not hasattr(customer, "pk"):  # a name, or nothing: the factory's current customer
+            fields["customer"] = self.make_customer(customer)
         return Job.objects.create(**fields)
 
     def make_assembly(self, job=None, **kwargs):
@@ -231,6 +244,29 @@ class Factory:
                 thumbnail=ContentFile(clean.thumbnail, name=f"{inspection.pk}-test-thumb.jpg"))
             seals.seal(photo, "photo.attached")
         return photo
+
+    def use_on_job(self, wps=None, welder=None, pqr=None, criteria=None):
+        """Put procedures, a welder or a client criteria set to use on a weld of a job of the factory's customer,
+        so that customer's viewer may see them (core.visibility); returns the weld."""
+        if pqr is not None:
+            wps = wps or self.make_wps()
+            wps.pqrs.add(pqr)
+        job = self.make_job(client_criteria=criteria, criteria_key=criteria.key) if criteria else None
+        weld = self.make_weld(assembly=self.make_assembly(job=job) if job else None, wps=wps)
+        if welder is not None:
+            weld.welders.add(welder)
+        return weld
+
+    def make_signin_pause(self, username="inspector-7", ip_address="127.0.0.1"):
+        """A sign-in paused after too many wrong passwords (a django-axes attempt at the failure limit)."""
+        from axes.models import AccessAttempt
+        from django.conf import settings
+        from django.utils import timezone
+
+        return AccessAttempt.objects.create(
+            username=username, ip_address=ip_address, user_agent="test", get_data="", post_data="", http_accept="*/*",
+            path_info="/accounts/login/", failures_since_start=settings.AXES_FAILURE_LIMIT,
+            attempt_time=timezone.now())
 
 
 def png_bytes(size=(40, 30), color=(200, 60, 20), fmt="PNG", **save):

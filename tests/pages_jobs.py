@@ -51,15 +51,31 @@ PAGES = {
     "inspections:criteria_list": (lambda make: {}, ALL_OK),
     "inspections:criteria_derive": (lambda make: {}, only("qa_lead")),
     "inspections:criteria_detail": (lambda make: {"key": "aws-d1.1-2020-static"}, ALL_OK),
-    "inspections:criteria_client_detail": (lambda make: {"pk": make_client_set(make).pk}, ALL_OK),
+    "inspections:criteria_client_detail": (lambda make: {"pk": _used_client_set(make).pk}, ALL_OK),
 }
+
+def _repair_waiting(make):
+    """An NCR dispositioned for repair, its repair not yet recorded as welded (the NCR page shows that form)."""
+    from inspections.services.ncr import disposition_repair
+
+    ncr = make.make_ncr()
+    disposition_repair(ncr, make.make_user("qa_lead"), make.approved_wps(), make.make_qualified_welder())
+    return ncr.pk
+
 
 NOT_PAGES = {
     "inspections:assembly_submit": _assembly,
     "inspections:assembly_release": _assembly,
     "inspections:ncr_disposition": lambda make: {"pk": make.make_ncr().pk, "kind": "scrap"},
-    "inspections:ncr_repair": lambda make: {"pk": make.make_ncr().pk},
+    "inspections:ncr_repair": lambda make: {"pk": _repair_waiting(make)},
 }
+
+
+def _used_client_set(make):
+    """A client set one of the factory customer's jobs is judged by (what that customer's viewer may read)."""
+    cset = make_client_set(make, key=f"client-{make.customer_name[:20].lower().replace(' ', '-')}")
+    make.use_on_job(criteria=cset)
+    return cset
 
 
 def make_client_set(make, key="harlan-transit-static", overrides=None, version=1):

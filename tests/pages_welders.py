@@ -4,11 +4,15 @@ from tests.test_role_matrix import ALL_OK, only
 
 
 def _welder(make):
-    return {"pk": make.make_welder().pk}
+    welder = make.make_welder()
+    make.use_on_job(welder=welder)  # the customer's viewer reads the welders on its jobs (core.visibility)
+    return {"pk": welder.pk}
 
 
 def _qualification(make):
-    return {"pk": make.make_qualification().pk}
+    qualification = make.make_qualification()
+    make.use_on_job(welder=qualification.welder)
+    return {"pk": qualification.pk}
 
 
 PAGES = {

@@ -1,23 +1,33 @@
-"""Role matrix rows for the WPS and PQR pages (tests/test_role_matrix.py walks them with every role)."""
+"""Role matrix rows for the WPS and PQR pages (tests/test_role_matrix.py walks them with every role).
+
+Each procedure is used on a weld of the factory customer's job, as the viewer (that customer's account) may read
+only the procedures used on its jobs (core.visibility)."""
 
 from procedures.models.wps import WPSState
 from tests.test_role_matrix import ALL_OK, only
 
 
+def _used(make, wps):
+    make.use_on_job(wps=wps)
+    return {"pk": wps.pk}
+
+
 def _draft(make):
-    return {"pk": make.make_wps().pk}
+    return _used(make, make.make_wps())
 
 
 def _submitted(make):
-    return {"pk": make.make_wps(state=WPSState.SUBMITTED).pk}
+    return _used(make, make.make_wps(state=WPSState.SUBMITTED))
 
 
 def _approved(make):
-    return {"pk": make.make_wps(state=WPSState.APPROVED).pk}
+    return _used(make, make.make_wps(state=WPSState.APPROVED))
 
 
 def _pqr(make):
-    return {"pk": make.make_pqr().pk}
+    pqr = make.make_pqr()
+    make.use_on_job(pqr=pqr)
+    return {"pk": pqr.pk}
 
 
 PAGES = {

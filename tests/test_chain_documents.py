@@ -93,7 +93,7 @@ def test_the_packet_cover_counts_released_and_not_released_assemblies(make, user
 def test_the_wps_page_shows_what_its_pqrs_support(client_as, make):
     wps = make.make_wps(basis="test")
     wps.pqrs.add(make.make_pqr(number="PQR-7100"))
-    page = client_as("viewer").get(wps.get_absolute_url())
+    page = client_as("inspector").get(wps.get_absolute_url())
     assert "What the PQRs support" in page.text
     envelope, error = wps.support_envelope()
     assert error == "" and [joint for joint, _ in envelope] == ["fillet"]

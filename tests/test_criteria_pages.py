@@ -49,7 +49,7 @@ def test_a_looser_limit_signed_by_an_engineer_is_kept_with_the_name(client_as):
     assert response.status_code == 302
     stored = ClientCriteriaSet.objects.get()
     assert stored.signed_by_engineer == "M. Ferreira, PE" and stored.criteria_set().loosened == ("undercut_thin",)
-    page = client_as("viewer").get(stored.get_absolute_url()).text
+    page = client_as("inspector").get(stored.get_absolute_url()).text
     assert "looser, signed" in page and "M. Ferreira, PE" in page
 
 

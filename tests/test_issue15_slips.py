@@ -38,7 +38,7 @@ def _page_size(content: bytes) -> tuple[int, int]:
 def test_counts_agree_with_their_nouns_on_the_home_page(make, client_as):
     make.make_wps(state=WPSState.SUBMITTED)
     make.make_ncr()
-    html = client_as("viewer").get(reverse("home")).content.decode()
+    html = client_as("qa_lead").get(reverse("home")).content.decode()
     assert "procedure waiting for approval" in html and "1 procedures" not in html.replace("\n", " ")
     assert "open NCR<" in html or "open NCR\n" in html or re.search(r"open NCR(?!s)", html)
 

@@ -144,7 +144,7 @@ def test_the_photo_view_sends_the_cleaned_file_with_a_disposition(make, client_a
     assert response.status_code == 200
     assert response["Content-Type"] == "image/png"
     assert response["Content-Disposition"].startswith("inline; filename=")
-    assert "private" in response["Cache-Control"]
+    assert response["Cache-Control"] == "no-store"  # a shared tablet's browser keeps no copy
     body = b"".join(response.streaming_content)
     assert hashlib.sha256(body).hexdigest() == photo.sha256
     thumb = client_as("viewer").get(reverse("inspections:photo_thumbnail", args=[photo.pk]))
@@ -198,3 +198,95 @@ def test_photos_go_on_the_current_inspection_only(make, client_as):
     upload = SimpleUploadedFile("weld.png", png_bytes(), content_type="image/png")
     response = client_as("inspector").post(reverse("inspections:photo_add", args=[old.pk]), {"image": upload})
     assert response.status_code == 302 and Photo.objects.count() == 0
+
+
+# --- every metadata and comment segment dropped; memory bounded by what is decoded ----------------------------
+
+JPEG_KEPT = {0xD8, 0xE0, 0xDB, 0xC0, 0xC1, 0xC2, 0xC4, 0xDD, 0xDA}  # SOI, JFIF, tables, frame, restart, scan
+
+
+def _jpeg_markers(data):
+    """The marker of every segment before the image data (a JPEG's metadata all sits there)."""
+    assert data[:2] == b"\xff\xd8"
+    markers, i = [0xD8], 2
+    while i < len(data):
+        assert data[i] == 0xFF
+        marker = data[i + 1]
+        markers.append(marker)
+        if marker == 0xDA:
+            return markers
+        i += 2 + struct.unpack(">H", data[i + 2:i + 4])[0]
+    return markers
+
+
+def _png_chunks(data):
+    chunks, i = [], 8
+    while i < len(data):
+        length, kind = struct.unpack(">I4s", data[i:i + 8])
+        chunks.append(kind.decode())
+        i += 12 + length
+    return chunks
+
+
+def _jpeg_with_everything(size=(64, 48)):
+    """A JPEG carrying a COM comment (a script in it), EXIF with GPS, an ICC profile and XMP."""
+    image = Image.new("RGB", size, (90, 90, 90))
+    exif = Image.Exif()
+    exif[0x010F] = "Brannock test camera"
+    out = io.BytesIO()
+    image.save(out, "JPEG", comment=b"<script>alert(1)</script>", exif=exif, icc_profile=b"\0" * 128 + b"ICCDATA",
+               xmp=b"<x:xmpmeta>inspector-secret</x:xmpmeta>")
+    return out.getvalue()
+
+
+def test_a_jpeg_keeps_no_comment_and_no_metadata_segment():
+    raw = _jpeg_with_everything()
+    assert {0xFE, 0xE1, 0xE2} <= set(_jpeg_markers(raw))  # the upload carries COM, APP1 (EXIF, XMP), APP2 (ICC)
+    clean = clean_photo(io.BytesIO(raw))
+    for stored in (clean.content, clean.thumbnail):
+        assert set(_jpeg_markers(stored)) <= JPEG_KEPT
+        assert b"<script>" not in stored and b"ICCDATA" not in stored and b"inspector-secret" not in stored
+    assert "comment" not in Image.open(io.BytesIO(clean.content)).info
+
+
+def test_a_png_keeps_only_its_pixels():
+    from PIL import PngImagePlugin
+
+    info = PngImagePlugin.PngInfo()
+    info.add_text("Comment", "<script>alert(1)</script>")
+    info.add_itxt("XML:com.adobe.xmp", "inspector-secret")
+    out = io.BytesIO()
+    Image.new("RGBA", (40, 30), (1, 2, 3, 128)).save(out, "PNG", pnginfo=info, icc_profile=b"\0" * 128)
+    assert {"tEXt", "iTXt", "iCCP"} <= set(_png_chunks(out.getvalue()))
+    clean = clean_photo(io.BytesIO(out.getvalue()))
+    assert set(_png_chunks(clean.content)) <= {"IHDR", "PLTE", "tRNS", "IDAT", "IEND"}
+    assert b"<script>" not in clean.content and b"inspector-secret" not in clean.content
+
+
+def test_a_jpeg_over_the_full_decode_limit_is_read_at_a_reduced_scale(settings):
+    settings.LEGWORK_PHOTO_MAX_PIXELS = 10_000  # 100 x 100
+    settings.LEGWORK_PHOTO_MAX_JPEG_PIXELS = 1_000_000
+    clean = clean_photo(io.BytesIO(png_bytes((400, 300), fmt="JPEG")))
+    # 1/2 scale (200 x 150) is still over the limit; 1/4 scale is 100 x 75: decoded and stored at that size
+    assert (clean.width, clean.height) == (100, 75)
+    assert Image.open(io.BytesIO(clean.content)).size == (100, 75)
+
+
+def test_a_png_over_the_full_decode_limit_is_refused_where_a_jpeg_of_the_same_size_is_read(settings):
+    settings.LEGWORK_PHOTO_MAX_PIXELS = 10_000
+    settings.LEGWORK_PHOTO_MAX_JPEG_PIXELS = 1_000_000
+    with pytest.raises(PhotoError, match="the limit is 10,000"):
+        clean_photo(io.BytesIO(png_bytes((400, 300))))
+    assert clean_photo(io.BytesIO(png_bytes((400, 300), fmt="JPEG"))).width == 100
+
+
+def test_a_jpeg_over_its_own_limit_is_refused_from_its_header(settings):
+    settings.LEGWORK_PHOTO_MAX_PIXELS = 10_000
+    settings.LEGWORK_PHOTO_MAX_JPEG_PIXELS = 100_000
+    with pytest.raises(PhotoError, match="pixels"):
+        clean_photo(io.BytesIO(png_bytes((400, 300), fmt="JPEG")))
+
+
+def test_the_defaults_decode_at_most_16_megapixels(settings):
+    assert settings.LEGWORK_PHOTO_MAX_PIXELS == 16_000_000
+    assert settings.LEGWORK_PHOTO_MAX_JPEG_PIXELS == 64_000_000  # read at 1/2 scale or less: 16 MP at most

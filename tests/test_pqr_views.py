@@ -57,14 +57,14 @@ def test_the_detail_shows_results_heat_input_and_the_procedures_it_supports(clie
     pqr = make.make_pqr(number="PQR-78")
     wps = make.make_wps(basis="test")
     wps.pqrs.add(pqr)
-    html = client_as("viewer").get(pqr.get_absolute_url()).content.decode()
+    html = client_as("inspector").get(pqr.get_absolute_url()).content.decode()
     assert "30 kJ/in" in html and "Macroetch" in html and wps.number in html
 
 
 def test_the_list_searches_and_runs_a_fixed_number_of_queries(client_as, make, django_assert_num_queries):
     for n in range(12):
         make.make_pqr(number=f"PQR-L{n}")
-    client = client_as("viewer")
+    client = client_as("inspector")
     with django_assert_num_queries(4):  # session, user, count, page
         response = client.get(reverse("procedures:pqr_list"), {"q": "PQR-L1"})
     assert [p.number for p in response.context["page"]] == ["PQR-L1", "PQR-L10", "PQR-L11"]

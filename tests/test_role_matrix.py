@@ -12,7 +12,7 @@ from django.urls import URLPattern, URLResolver, get_resolver, reverse
 
 from tests.conftest import ROLES
 
-OK, LOGIN, DENIED, GONE = 200, 302, 403, 405
+OK, LOGIN, DENIED, GONE, GONE_404 = 200, 302, 403, 405, 404
 ALL_OK = {role: OK for role in ROLES}
 
 
@@ -24,6 +24,7 @@ def only(*roles, other=DENIED):
 PAGES = {
     "home": (lambda make: {}, ALL_OK),
     "login": (lambda make: {}, ALL_OK),
+    "lockouts": (lambda make: make.make_signin_pause() and {}, only("qa_lead")),
 }
 
 # Patterns that a GET cannot reach as a page: POST-only actions, admin, logout. Name -> kwargs builder.
@@ -140,3 +141,44 @@ def test_every_state_changing_url_names_its_action():
     unnamed = sorted(name for name, actions in ACTIONS_OF.items() if not actions and name not in OPEN_POSTS
                      and name in NOT_PAGES)
     assert not unnamed, f"POST-only URLs without a role action: {unnamed}"
+
+
+# --- a second customer: its records are not found by the first customer's viewer ------------------------------
+
+def reverse_kwargs_needed(name):
+    """Whether the URL names a record (it takes arguments)."""
+    return bool(dict(_patterns()).get(name).pattern.converters)
+
+
+def _patterns(resolver=None, namespace=""):
+    resolver = resolver or get_resolver()
+    for entry in resolver.url_patterns:
+        if isinstance(entry, URLResolver):
+            if entry.namespace == "admin":
+                continue
+            yield from _patterns(entry, f"{namespace}{entry.namespace}:" if entry.namespace else namespace)
+        elif isinstance(entry, URLPattern) and entry.name:
+            yield f"{namespace}{entry.name}", entry
+
+
+OTHER_CUSTOMER = "Ostrander Mill Services"
+PUBLIC = {"inspections:criteria_detail"}  # the published criteria sets belong to no customer
+
+
+@pytest.mark.parametrize("name", sorted(n for n in PAGES if n not in PUBLIC and reverse_kwargs_needed(n)))
+def test_the_viewer_of_one_customer_does_not_find_another_customers_records(name, client_as, make, users):
+    """Every page of a record, its record made for a second customer: the first customer's viewer gets 404 where
+    it would read its own customer's record, and every shop role answers as in the matrix above."""
+    make.customer_name = OTHER_CUSTOMER
+    build, expected = PAGES[name]
+    url = reverse(name, kwargs=build(make))
+    for role in ROLES:
+        want = GONE_404 if role == "viewer" and expected[role] == OK else expected[role]
+        assert client_as(role).get(url).status_code == want, f"{role} GET {url} (a record of {OTHER_CUSTOMER})"
+
+
+def test_a_viewer_of_both_customers_reads_both(client_as, make, users):
+    make.customer_name = OTHER_CUSTOMER
+    make.make_customer(viewers=[users["viewer"]])
+    build, _ = PAGES["inspections:ncr_detail"]
+    assert client_as("viewer").get(reverse("inspections:ncr_detail", kwargs=build(make))).status_code == OK

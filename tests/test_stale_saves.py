@@ -109,7 +109,7 @@ def test_a_stale_instance_is_refused_by_the_model_too(make):
     mine, theirs = type(job).objects.get(pk=job.pk), type(job).objects.get(pk=job.pk)
     theirs.name = "Level 2 framing, revised"
     theirs.save()
-    mine.customer = "Someone overwriting"
+    mine.name = "Someone overwriting"
     with pytest.raises(Stale):
         mine.save()
     stored = type(job).objects.get(pk=job.pk)

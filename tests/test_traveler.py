@@ -53,7 +53,7 @@ def test_a_traveler_prints_the_header_welds_wps_and_page_numbers(make, users):
     content = read_stored(traveler)
     text, pages = pdf_text(content)
     assert traveler.pages == pages
-    for expected in ("Traveler · B12", assembly.job.number, assembly.job.customer, "E-212 rev 3", "W01", "W02",
+    for expected in ("Traveler · B12", assembly.job.number, assembly.job.customer.name, "E-212 rev 3", "W01", "W02",
                      "W03", f"{assembly.welds.first().wps.number} rev 0", "Caution", "ANSI Z49.1",
                      traveler.document_number, f"Page 1 of {pages}", traveler.snapshot_sha256[:16]):
         assert expected in text, expected

@@ -23,7 +23,7 @@ def _pdf(client, wps):
 def test_a_draft_prints_on_one_page_marked_not_approved(client_as, make):
     wps = make.make_wps(number="BSW-801", process="SMAW", electrode="E7018", electrode_diameter=L("1/8 in"),
                         current="DCEN", shielding_gas="")
-    reader, text = _pdf(client_as("viewer"), wps)
+    reader, text = _pdf(client_as("inspector"), wps)
     assert len(reader.pages) == 1
     assert "WPS BSW-801" in text
     assert "NOT APPROVED — DRAFT" in text
@@ -52,7 +52,7 @@ def test_a_superseded_wps_prints_do_not_use(client_as, make, users):
     new = wps_steps.new_revision(old, users["welding_engineer"])
     wps_steps.submit(new, users["welding_engineer"])
     wps_steps.approve(new, users["qa_lead"])
-    _, text = _pdf(client_as("viewer"), old)
+    _, text = _pdf(client_as("inspector"), old)
     assert "SUPERSEDED by revision 1" in text
 
 

@@ -36,7 +36,7 @@ def test_the_list_searches_number_title_and_electrode(client_as, make):
                   electrode="ER70S-6")
     make.make_wps(number="BSW-702", title="Stick, field repairs", process="SMAW", electrode="E7018",
                   electrode_diameter=L("1/8 in"), shielding_gas="")
-    client = client_as("viewer")
+    client = client_as("inspector")
     for q, expected in [("bsw-701", ["BSW-701"]), ("field repairs", ["BSW-702"]), ("er70s", ["BSW-701"])]:
         page = client.get(reverse("procedures:wps_list"), {"q": q}).context["page"]
         assert [w.number for w in page] == expected
@@ -67,7 +67,7 @@ def test_the_list_runs_a_fixed_number_of_queries(client_as, make, django_assert_
         wps = make.make_wps()
         wps_steps.submit(wps, make.make_user("welding_engineer"))
         wps_steps.approve(wps, approver)
-    client = client_as("viewer")
+    client = client_as("inspector")
     # session, user, count, page of rows (approver joined), distinct electrodes
     with django_assert_num_queries(5):
         response = client.get(reverse("procedures:wps_list"))
@@ -84,7 +84,7 @@ def test_a_bad_page_number_shows_the_last_page(client_as, make):
 
 def test_the_detail_shows_variables_in_the_wps_system_with_the_decoded_electrode(client_as, make):
     wps = make.make_wps(thickness_max=L("1-1/2 in"))
-    html = client_as("viewer").get(wps.get_absolute_url()).content.decode()
+    html = client_as("inspector").get(wps.get_absolute_url()).content.decode()
     assert "1/4&quot; to 1-1/2&quot;" in html or '1/4" to 1-1/2"' in html
     assert "AWS A5.20" in html  # decoded electrode
     assert "kJ/in" in html
@@ -93,7 +93,7 @@ def test_the_detail_shows_variables_in_the_wps_system_with_the_decoded_electrode
 
 def test_the_detail_of_an_si_wps_shows_millimetres(client_as, make):
     wps = make.make_wps(unit_system="SI", thickness_min=L("6 mm"), thickness_max=L("38 mm"))
-    html = client_as("viewer").get(wps.get_absolute_url()).content.decode()
+    html = client_as("inspector").get(wps.get_absolute_url()).content.decode()
     assert "6 mm to 38 mm" in html
     assert "kJ/mm" in html
 
@@ -115,6 +115,7 @@ def test_buttons_follow_the_role(client_as, make):
     assert b"Approve" in client_as("qa_lead").get(submitted.get_absolute_url()).content
     assert b">Approve<" not in client_as("welding_engineer").get(submitted.get_absolute_url()).content
     approved = make.make_wps(state=WPSState.APPROVED)
+    make.use_on_job(wps=approved)  # so the customer's viewer may read it
     assert b"Start a new revision" in client_as("welding_engineer").get(approved.get_absolute_url()).content
     assert b"Withdraw" in client_as("qa_lead").get(approved.get_absolute_url()).content
     viewer_page = client_as("viewer").get(approved.get_absolute_url()).content
@@ -339,7 +340,7 @@ def test_a_new_revision_opens_its_draft_and_approval_supersedes(client_as, make)
     old.refresh_from_db()
     new.refresh_from_db()
     assert (old.state, new.state) == (WPSState.SUPERSEDED, WPSState.APPROVED)
-    html = client_as("viewer").get(old.get_absolute_url()).content.decode()
+    html = client_as("inspector").get(old.get_absolute_url()).content.decode()
     assert "Superseded" in html and "Superseded by revision 1" in html
 
 

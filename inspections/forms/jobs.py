@@ -7,7 +7,7 @@ from core.fields import LengthFormField, set_unit_system
 from core.forms import VersionedModelForm, read_decimal_comma
 from core.vocabulary import WELD_PROCESS_CHOICES
 from inspections import wording
-from inspections.models import Assembly, ClientCriteriaSet, Job, Weld
+from inspections.models import Assembly, ClientCriteriaSet, Customer, Job, Weld
 from inspections.services import chain
 from inspections.services.flags import cyclic_fillet_flag
 from inspections.strength import leg_for_throat
@@ -30,26 +30,44 @@ def criteria_choices():
 
 
 class JobForm(VersionedModelForm):
+    customer = forms.CharField(
+        label="Customer", max_length=120,
+        widget=forms.TextInput(attrs={"list": "customer-names", "autocomplete": "off"}),
+        help_text="An existing customer's name, or a new one. Viewer accounts see the jobs of the customers they "
+                  "are tied to (in the admin).")
     criteria = forms.ChoiceField(label="Criteria set", help_text="The acceptance criteria every inspection on this "
                                  "job is judged by; verdicts keep the set and version they were judged by.")
 
     class Meta:
         model = Job
-        fields = ["number", "name", "customer", "unit_system", "fit_up_hold_point"]
+        fields = ["number", "name", "unit_system", "fit_up_hold_point"]
         labels = {"number": "Job number", "name": "Job name", "unit_system": "Units"}
+
+    field_order = ["number", "name", "customer", "unit_system", "criteria", "fit_up_hold_point"]
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
         self.fields["criteria"].choices = criteria_choices()
+        self.customer_names = list(Customer.objects.values_list("name", flat=True))
         if self.instance.pk:
             job = self.instance
+            self.initial["customer"] = job.customer.name
             self.initial["criteria"] = (f"{CLIENT}:{job.client_criteria_id}" if job.client_criteria_id
                                         else f"{BUILTIN}:{job.criteria_key}")
 
     def clean_number(self):
         return self.cleaned_data["number"].strip()
 
+    def clean_customer(self):
+        name = " ".join(self.cleaned_data["customer"].split())
+        if not name:
+            raise forms.ValidationError("Name the customer.", code="required")
+        return name
+
     def save(self, commit=True):
+        name = self.cleaned_data["customer"]  # the same customer whatever the case; a new name makes a new one
+        self.instance.customer = (Customer.objects.filter(name__iexact=name).first()
+                                  or Customer.objects.create(name=name))
         kind, _, value = self.cleaned_data["criteria"].partition(":")
         if kind == CLIENT:
             client = ClientCriteriaSet.objects.get(pk=value)

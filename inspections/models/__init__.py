@@ -2,10 +2,11 @@
 
 from inspections.models.criteria import ClientCriteriaSet
 from inspections.models.inspection import DraftPhoto, Inspection, InspectionDraft, InspectionStage, Photo
-from inspections.models.jobs import Assembly, AssemblyState, Job, Weld
+from inspections.models.jobs import Assembly, AssemblyState, Customer, Job, Weld
 from inspections.models.ncr import NCR
 from inspections.models.repair import WeldRepair
 from inspections.models.traveler import JobPacket, PacketState, Traveler
 
-__all__ = ["NCR", "Assembly", "AssemblyState", "ClientCriteriaSet", "DraftPhoto", "Inspection", "InspectionDraft",
-           "InspectionStage", "Job", "JobPacket", "PacketState", "Photo", "Traveler", "Weld", "WeldRepair"]
+__all__ = ["NCR", "Assembly", "AssemblyState", "ClientCriteriaSet", "Customer", "DraftPhoto", "Inspection",
+           "InspectionDraft", "InspectionStage", "Job", "JobPacket", "PacketState", "Photo", "Traveler", "Weld",
+           "WeldRepair"]

@@ -14,10 +14,32 @@ from core.vocabulary import WELD_POSITION_CHOICES, WELD_PROCESS_CHOICES, JointTy
 from inspections.strength import effective_throat
 
 
+class Customer(Guarded):
+    """Whom jobs are built for. A viewer account tied to a customer sees that customer's jobs and what hangs from
+    them, and nothing else (core.visibility)."""
+
+    name = models.CharField(max_length=120, unique=True)
+    viewers = models.ManyToManyField(
+        settings.AUTH_USER_MODEL, blank=True, related_name="customers",
+        help_text="Viewer accounts (the customer's people, or its third-party inspector) that see this customer's "
+                  "jobs")
+    version = models.PositiveIntegerField(default=1, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("customer", name=("name",))
+
+    class Meta:
+        ordering = ["name"]
+        base_manager_name = "objects"
+
+    def __str__(self):
+        return self.name
+
+
 class Job(Guarded):
     number = models.CharField(max_length=30, unique=True)
     name = models.CharField(max_length=120)
-    customer = models.CharField(max_length=120)
+    customer = models.ForeignKey(Customer, on_delete=models.PROTECT, related_name="jobs")
     unit_system = models.CharField(max_length=2, choices=UnitSystem.choices, default=UnitSystem.US)
     criteria_key = models.CharField(
         "criteria set", max_length=60, default="aws-d1.1-2020-static",

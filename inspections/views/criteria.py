@@ -4,11 +4,13 @@ from django.contrib import messages
 from django.db import IntegrityError, transaction
 from django.db.models import Max
 from django.http import Http404
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.views.decorators.http import require_http_methods, require_safe
 
 from core import history
+from core.inputs import parse_id
 from core.roles import role_required
+from core.visibility import get_visible_or_404, visible
 from inspections import criteria as criteria_sets
 from inspections.criteria.base import Banded, Count, Fixed, Permission, Proportional, Ratio, Threshold
 from inspections.forms.jobs import CLIENT, CriteriaDeriveForm, base_set_choices
@@ -48,7 +50,8 @@ def _limit_rows(cset):
 def criteria_list(request):
     return render(request, "inspections/criteria_list.html", {
         "published": criteria_sets.list_criteria(),
-        "clients": ClientCriteriaSet.objects.select_related("created_by").order_by("key", "-version"),
+        "clients": visible(request.user, ClientCriteriaSet.objects.select_related("created_by")
+                           .order_by("key", "-version")),
     })
 
 
@@ -63,7 +66,7 @@ def criteria_detail(request, key):
 
 @require_safe
 def criteria_client_detail(request, pk):
-    stored = get_object_or_404(ClientCriteriaSet.objects.select_related("created_by"), pk=pk)
+    stored = get_visible_or_404(request.user, ClientCriteriaSet.objects.select_related("created_by"), pk=pk)
     cset = stored.criteria_set()
     return render(request, "inspections/criteria_detail.html",
                   {"cset": cset, "stored": stored, "rows": _limit_rows(cset), "history": history.panel(stored)})
@@ -72,8 +75,8 @@ def criteria_client_detail(request, pk):
 def _base(choice):
     """(the base as derive takes it, its CriteriaSet) for a published key or 'client:<pk>'; None if unknown."""
     if choice.startswith(f"{CLIENT}:"):
-        pk = choice.partition(":")[2]
-        stored = ClientCriteriaSet.objects.filter(pk=int(pk)).first() if pk.isdigit() else None
+        pk = parse_id(choice.partition(":")[2])
+        stored = ClientCriteriaSet.objects.filter(pk=pk).first() if pk is not None else None
         return (stored.definition, stored.criteria_set()) if stored else None
     try:
         return choice, criteria_sets.get_criteria(choice)

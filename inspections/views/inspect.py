@@ -16,9 +16,11 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
-from core import history, seals
+from core import faults, history, seals
 from core.errors import RecordLocked, Refused
 from core.roles import can, role_required
+from core.storage import files_or_nothing
+from core.visibility import get_visible_or_404, visible
 from core.vocabulary import JointType
 from inspections import queue as inspection_queue
 from inspections.forms.inspect import CorrectionForm, FindAssemblyForm, InspectionForm, PhotoForm
@@ -44,7 +46,7 @@ def inspect_home(request):
     results = None
     if form.is_valid():
         q = form.cleaned_data["q"]
-        found = list(Assembly.objects.select_related("job").filter(piece_mark__istartswith=q)
+        found = list(visible(request.user, Assembly.objects.select_related("job").filter(piece_mark__istartswith=q))
                      .order_by("piece_mark", "job__number")[:SEARCH_LIMIT])
         exact = [a for a in found if a.piece_mark.lower() == q.lower()]
         if len(exact) == 1:
@@ -72,7 +74,7 @@ def inspect_assembly(request, pk):
 
     A weld whose WPS was not approved on the weld date, or does not cover the weld, shows as blocked with why
     (inspections.services.chain.wps_checks)."""
-    assembly = get_object_or_404(Assembly.objects.select_related("job__client_criteria"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job__client_criteria"), pk=pk)
     welds = list(Weld.objects.filter(assembly=assembly).select_related("wps").order_by("mark"))
     for weld in welds:
         weld.assembly = assembly
@@ -99,8 +101,8 @@ def _identical_passes(welds, statuses):
     return [group for group in groups.values() if len(group) > 1]
 
 
-def _weld(pk, related=WELD_RELATED):
-    return get_object_or_404(Weld.objects.select_related(*related), pk=pk)
+def _weld(request, pk, related=WELD_RELATED):
+    return get_visible_or_404(request.user, Weld.objects.select_related(*related), pk=pk)
 
 
 def _batch_of(weld, request):
@@ -143,7 +145,7 @@ def _posted(request) -> dict:
 def inspect_weld(request, pk):
     """The inspection form for one weld (or a pass over identical welds): preview as typed, keep for later, add
     photos, sign."""
-    weld = _weld(pk, related=SIGN_RELATED if request.method == "POST" else WELD_RELATED)
+    weld = _weld(request, pk, related=SIGN_RELATED if request.method == "POST" else WELD_RELATED)
     batch = _batch_of(weld, request)
     draft = service.draft_for(weld, request.user)
     if request.method == "GET":
@@ -273,7 +275,7 @@ def _form_page(request, form, weld, correcting=None, draft=None, photo_errors=()
 def inspect_preview(request, pk):
     """The findings for what is typed so far (htmx partial), with the fingerprint of that verdict for the sign
     button. Judges only; saves nothing."""
-    weld = _weld(pk)
+    weld = _weld(request, pk)
     form = InspectionForm(request.POST, weld=weld, batch=_batch_of(weld, request))
     if not form.typed_anything():  # the page has just opened: nothing to judge yet, nothing wrong either
         return render(request, "inspections/inspect_weld.html#preview", {
@@ -284,15 +286,16 @@ def inspect_preview(request, pk):
         "preview": True})
 
 
-def _inspection(pk):
-    return get_object_or_404(
-        Inspection.objects.select_related("weld__assembly__job__client_criteria", "weld__wps", "inspector",
-                                          "supersedes__inspector", "superseded_by__inspector"), pk=pk)
+def _inspection(request, pk):
+    return get_visible_or_404(
+        request.user, Inspection.objects.select_related(
+            "weld__assembly__job__client_criteria", "weld__wps", "inspector", "supersedes__inspector",
+            "superseded_by__inspector"), pk=pk)
 
 
 @require_safe
 def inspection_detail(request, pk):
-    inspection = _inspection(pk)
+    inspection = _inspection(request, pk)
     return _detail_page(request, inspection, PhotoForm())
 
 
@@ -304,7 +307,7 @@ def inspection_pdf(request, pk):
     from inspections import wording
     from inspections.traveler import _thumbnail_uri, job_paper
 
-    inspection = _inspection(pk)
+    inspection = _inspection(request, pk)
     weld, job = inspection.weld, inspection.weld.assembly.job
     system = job.unit_system
     findings = sorted((f for f in inspection.findings or [] if isinstance(f, dict)), key=lambda f: bool(f.get("ok")))
@@ -375,8 +378,8 @@ def _superseded_by(inspection):
 @role_required("inspection.record")
 def inspection_correct(request, pk):
     """Record a correction: a new inspection of the same weld that supersedes this one, with a reason."""
-    old = _inspection(pk)
-    weld = _weld(old.weld_id)
+    old = _inspection(request, pk)
+    weld = _weld(request, old.weld_id)
     if not old.is_current:
         messages.warning(request, "That inspection has already been corrected: this is the latest one.")
         return redirect(_chain(old)[1][-1])
@@ -401,7 +404,7 @@ def _initial_from(inspection):
 @role_required("inspection.record")
 def photo_add(request, pk):
     """Attach a photo (straight from the camera) to a signed inspection; cleaned before it is stored."""
-    inspection = _inspection(pk)
+    inspection = _inspection(request, pk)
     if not inspection.is_current:
         messages.warning(request, "Attach photos to the correction that supersedes this inspection.")
         return redirect(inspection)
@@ -418,13 +421,19 @@ def photo_add(request, pk):
     )
     try:
         # A photo is evidence: sealed with the stored files' SHA-256 (core.seals); refused once the assembly is
-        # released or scrapped (core.locking).
-        with seals.sealing():
+        # released or scrapped (core.locking). The photo, its thumbnail and the row: all or nothing.
+        with files_or_nothing(), seals.sealing():
             photo.save(user=request.user)
             seals.seal(photo, "photo.attached")
     except RecordLocked as exc:
         form.add_error(None, exc.messages)
         return _detail_page(request, inspection, form, status=409)
+    except OSError as exc:  # disk full, folder not writable: said beside the photo, the caption kept
+        message = faults.storage_message(exc, "photo")
+        if message is None:
+            raise
+        form.add_error("image", message)
+        return _detail_page(request, inspection, form, status=503)
     messages.success(request, "Photo attached.")
     return redirect(reverse("inspections:inspection_detail", args=[inspection.pk]) + "#photos")
 
@@ -441,8 +450,9 @@ def _send(field, name, content_type):
 
 @require_safe
 def photo_file(request, pk, size="full"):
-    """A photo or its thumbnail, to logged-in users only (login is required everywhere), never cached publicly."""
-    photo = get_object_or_404(Photo, pk=pk)
+    """A photo or its thumbnail, to logged-in users only (login is required everywhere), never cached (no-store,
+    core.middleware.PrivacyHeaders: a shared tablet keeps no copy)."""
+    photo = get_visible_or_404(request.user, Photo, pk=pk)
     field = photo.thumbnail if size == "thumbnail" else photo.image
     content_type = "image/jpeg" if size == "thumbnail" else photo.content_type
     extension = "jpg" if size == "thumbnail" else field.name.rsplit(".", 1)[-1]

@@ -13,8 +13,10 @@ from django.views.decorators.http import require_http_methods, require_POST, req
 
 from core import history
 from core.errors import Refused, Stale
+from core.inputs import parse_id
 from core.roles import can, role_required
 from core.units import format_length
+from core.visibility import get_visible_or_404, visible
 from core.vocabulary import JointType
 from inspections import wording
 from inspections.forms.jobs import (
@@ -44,7 +46,8 @@ def _open_ncr_count():
 
 @require_safe
 def job_list(request):
-    jobs = Job.objects.select_related("client_criteria").annotate(n_assemblies=Count("assemblies", distinct=True))
+    jobs = visible(request.user, Job.objects.select_related("client_criteria", "customer")).annotate(
+        n_assemblies=Count("assemblies", distinct=True))
     return render(request, "inspections/job_list.html", {"jobs": jobs, "search": PieceMarkSearchForm()})
 
 
@@ -62,7 +65,7 @@ def job_create(request):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def job_edit(request, pk):
-    job = get_object_or_404(Job.objects.select_related("client_criteria"), pk=pk)
+    job = get_visible_or_404(request.user, Job.objects.select_related("client_criteria"), pk=pk)
     form = JobForm(request.POST or None, instance=job)
     status = 200
     if request.method == "POST" and form.is_valid():
@@ -75,7 +78,7 @@ def job_edit(request, pk):
 
 @require_safe
 def job_detail(request, pk):
-    job = get_object_or_404(Job.objects.select_related("client_criteria"), pk=pk)
+    job = get_visible_or_404(request.user, Job.objects.select_related("client_criteria", "customer"), pk=pk)
     search = PieceMarkSearchForm(request.GET or None)
     assemblies = (job.assemblies.annotate(n_welds=Count("welds", distinct=True), n_open_ncrs=_open_ncr_count())
                   .order_by("piece_mark"))
@@ -94,7 +97,7 @@ def assembly_find(request):
     query = search.cleaned_data["q"].strip() if search.is_valid() else ""
     found = []
     if query:
-        found = list(Assembly.objects.filter(piece_mark__icontains=query).select_related("job")
+        found = list(visible(request.user, Assembly.objects.filter(piece_mark__icontains=query)).select_related("job")
                      .order_by("piece_mark", "job__number")[:50])
         exact = [a for a in found if a.piece_mark.lower() == query.lower()]
         if len(exact) == 1:
@@ -105,7 +108,7 @@ def assembly_find(request):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def assembly_create(request, pk):
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     form = AssemblyForm(request.POST or None, job=job)
     if request.method == "POST" and form.is_valid():
         form.instance.job = job
@@ -118,7 +121,7 @@ def assembly_create(request, pk):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def assembly_edit(request, pk):
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
     if request.method == "GET" and assembly.is_closed:
         messages.error(request, f"{assembly.piece_mark} is {assembly.get_state_display().lower()} and cannot be "
                                 "changed.")
@@ -186,12 +189,12 @@ def _assembly_page(request, assembly, release_errors=None, status=200):
 
 @require_safe
 def assembly_detail(request, pk):
-    assembly = get_object_or_404(Assembly.objects.select_related("job", "released_by"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job", "released_by"), pk=pk)
     return _assembly_page(request, assembly)
 
 
 def _step(request, pk, step, done):
-    assembly = get_object_or_404(Assembly.objects.select_related("job", "released_by"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job", "released_by"), pk=pk)
     form = StepForm(request.POST)
     reason = form.cleaned_data["reason"] if form.is_valid() else ""
     try:
@@ -232,7 +235,7 @@ def _save_weld(request, form):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def weld_create(request, pk):
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
     if assembly.is_closed:
         raise PermissionDenied(f"{assembly.piece_mark} is {assembly.get_state_display().lower()}: its weld map is "
                                "frozen.")
@@ -260,7 +263,7 @@ def _frozen_map(assembly):
 def weld_edit(request, pk):
     """Edit a weld: all of it before its first inspection; who welded it, when and to which WPS until its final
     visual inspection; after that only a revision (weld_revise) changes it."""
-    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
+    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps"), pk=pk)
     assembly = weld.assembly
     _frozen_map(assembly)
     if request.method == "GET" and weld.latest_final_id is not None:
@@ -287,7 +290,7 @@ def weld_edit(request, pk):
 def weld_revise(request, pk):
     """Revise an inspected weld (inspections.services.welds.revise): any of its data, with a reason; it goes back
     for inspection."""
-    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
+    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps"), pk=pk)
     assembly = weld.assembly
     _frozen_map(assembly)
     if request.method == "GET" and not weld.inspected:
@@ -315,7 +318,8 @@ def weld_revise(request, pk):
 
 @require_safe
 def weld_detail(request, pk):
-    weld = get_object_or_404(Weld.objects.select_related("assembly__job", "wps").prefetch_related("welders"), pk=pk)
+    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps")
+                              .prefetch_related("welders"), pk=pk)
     row = weld_rows(weld.assembly, [weld])[0]
     inspections = weld.inspections.select_related("inspector", "supersedes").order_by("-inspected_at", "-pk")
     return render(request, "inspections/weld_detail.html", {
@@ -354,20 +358,20 @@ def _check_context(assembly, weld, wps=None, welders=None, on=None):
 @role_required("job.manage", "weld.record")
 def weld_check(request, pk):
     """htmx: the qualification panel for what the weld form holds now (nothing is saved)."""
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
     weld = Weld(assembly=assembly)
-    existing = request.GET.get("weld", "")
-    if existing.isdigit():
-        weld = get_object_or_404(Weld.objects.select_related("wps"), pk=int(existing), assembly=assembly)
+    existing = parse_id(request.GET.get("weld", ""))
+    if existing is not None:
+        weld = get_object_or_404(Weld.objects.select_related("wps"), pk=existing, assembly=assembly)
     form = WeldForm(request.GET, assembly=assembly, instance=weld)
     form.is_valid()  # read what is readable; a half-filled form still gets an answer for its valid parts
     data = form.cleaned_data
     for name in ("joint_type", "position", "thickness1", "thickness2"):
         if data.get(name) is not None:
             setattr(weld, name, data[name])
-    wps_id = request.GET.get("wps", "")
-    wps = WPS.objects.filter(pk=int(wps_id)).first() if wps_id.isdigit() else None
-    ids = [int(v) for v in request.GET.getlist("welders") if v.isdigit()][:50]
+    wps_id = parse_id(request.GET.get("wps", ""))
+    wps = WPS.objects.filter(pk=wps_id).first() if wps_id is not None else None
+    ids = [i for i in (parse_id(v) for v in request.GET.getlist("welders")[:50]) if i is not None]
     welders = list(Welder.objects.filter(pk__in=ids).order_by("stamp"))
     context = _check_context(assembly, weld, wps=wps, welders=welders, on=data.get("welded_on"))
     if weld.thickness1 is None or weld.thickness2 is None:
@@ -381,7 +385,7 @@ def weld_check(request, pk):
 @role_required("job.manage")
 @require_http_methods(["GET", "POST"])
 def weldmap_import(request, pk):
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     preview = None
     form = WeldMapUploadForm()
     csv_text = ""
@@ -420,7 +424,7 @@ def weldmap_import(request, pk):
 
 @require_safe
 def weldmap_export(request, pk):
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     response = HttpResponse(weldmap_csv.export_weld_map(job), content_type="text/csv; charset=utf-8")
     safe_number = "".join(c if c.isalnum() or c in "-_" else "_" for c in job.number)
     response["Content-Disposition"] = f'attachment; filename="weld-map-{safe_number}.csv"'

@@ -3,12 +3,13 @@
 from django.contrib import messages
 from django.db.models import Case, IntegerField, Value, When
 from django.http import Http404
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
 from core import history
 from core.errors import Refused
 from core.roles import role_required
+from core.visibility import get_visible_or_404, visible
 from core.vocabulary import JointType
 from inspections.forms.jobs import RepairForm, RepairRecordForm, ScrapForm, UseAsIsForm, add_step_errors
 from inspections.models import NCR, WeldRepair
@@ -23,7 +24,7 @@ FORMS = {"repair": RepairForm, "use_as_is": UseAsIsForm, "scrap": ScrapForm}
 @require_safe
 def ncr_list(request):
     show = request.GET.get("show", "open")
-    ncrs = (NCR.objects.select_related("weld__assembly__job", "raised_by")
+    ncrs = (visible(request.user, NCR.objects.select_related("weld__assembly__job", "raised_by"))
             .annotate(open_first=Case(When(state=NCRState.CLOSED, then=Value(1)), default=Value(0),
                                       output_field=IntegerField()))
             .order_by("open_first", "-raised_at", "-pk"))
@@ -66,22 +67,22 @@ def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
     return render(request, "inspections/ncr_detail.html", context, status=status)
 
 
-def _get(pk):
-    return get_object_or_404(NCR.objects.select_related(
+def _get(request, pk):
+    return get_visible_or_404(request.user, NCR.objects.select_related(
         "weld__assembly__job", "weld__wps", "inspection__inspector", "raised_by", "repair_wps", "repair_welder",
         "dispositioned_by", "closed_by_inspection"), pk=pk)
 
 
 @require_safe
 def ncr_detail(request, pk):
-    return _ncr_page(request, _get(pk))
+    return _ncr_page(request, _get(request, pk))
 
 
 @role_required("weld.record", "job.manage")
 @require_POST
 def ncr_repair(request, pk):
     """Record the NCR's repair as welded: who, to which WPS, when (checked like the original weld)."""
-    ncr = _get(pk)
+    ncr = _get(request, pk)
     form = RepairRecordForm(request.POST, ncr=ncr)
     if form.is_valid():
         data = form.cleaned_data
@@ -93,7 +94,7 @@ def ncr_repair(request, pk):
         else:
             messages.success(request, f"{ncr}: repair recorded. A final re-inspection of the weld closes the NCR.")
             return redirect(ncr)
-    return _ncr_page(request, _get(pk), status=400, repair_form=form)
+    return _ncr_page(request, _get(request, pk), status=400, repair_form=form)
 
 
 @role_required("ncr.disposition")
@@ -101,7 +102,7 @@ def ncr_repair(request, pk):
 def ncr_disposition(request, pk, kind):
     if kind not in FORMS:
         raise Http404("No such disposition.")
-    ncr = _get(pk)
+    ncr = _get(request, pk)
     form = FORMS[kind](request.POST, prefix=kind)
     if form.is_valid():
         data = form.cleaned_data
@@ -119,4 +120,4 @@ def ncr_disposition(request, pk, kind):
         else:
             messages.success(request, f"{ncr} dispositioned.")
             return redirect(ncr)
-    return _ncr_page(request, _get(pk), forms={kind: form}, status=400)
+    return _ncr_page(request, _get(request, pk), forms={kind: form}, status=400)

@@ -13,7 +13,7 @@ from django.conf import settings
 from django.core.files.uploadedfile import UploadedFile
 from django.core.files.uploadhandler import FileUploadHandler, StopUpload
 from django.http import FileResponse
-from django.shortcuts import get_object_or_404, render
+from django.shortcuts import render
 from django.utils import timezone
 from django.views.decorators.csrf import csrf_exempt, csrf_protect
 from django.views.decorators.http import require_http_methods, require_safe
@@ -21,6 +21,7 @@ from django.views.decorators.http import require_http_methods, require_safe
 from core import seals
 from core.models import Seal
 from core.roles import role_required
+from core.visibility import get_visible_or_404
 from inspections import export
 from inspections.models import Job, JobPacket, PacketState, Traveler
 
@@ -144,7 +145,7 @@ def _sealed(record) -> dict:
 @require_safe
 def job_export(request, pk):
     """The job's whole record as a zip: JSON tables and the stored files (docs/export-format.md)."""
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     handle = tempfile.TemporaryFile()  # removed when the response closes it
     export.write_zip(job, handle, exported_by=request.user)
     handle.seek(0)

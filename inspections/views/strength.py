@@ -1,16 +1,18 @@
 """The fillet weld calculator and the calculation sheets (HTML and PDF) of the calculator, a weld and an inspection.
 
 Reading is allowed to every signed-in role, the viewer included: nothing here changes a record, and a customer's
-or third-party inspector's account may check the same arithmetic the shop relies on. The figures come from
+or third-party inspector's account may check the same arithmetic the shop relies on (for its own customers'
+welds and inspections only: core.visibility). The figures come from
 inspections.strength through inspections.services.capacity; these views only gather and render.
 """
 
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.urls import reverse
 from django.utils.text import get_valid_filename
 from django.views.decorators.http import require_safe
 
 from core.pdf import paper_for, pdf_response, render_pdf
+from core.visibility import get_visible_or_404
 from inspections.forms.strength import StrengthCalculatorForm
 from inspections.models import Inspection, Weld
 from inspections.services.capacity import capacity_for_inspection, capacity_for_weld
@@ -78,39 +80,39 @@ def _with_method(snapshot, method):
     return snapshot
 
 
-def _weld(pk):
-    return get_object_or_404(Weld.objects.select_related("assembly__job", "wps"), pk=pk)
+def _weld(request, pk):
+    return get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps"), pk=pk)
 
 
-def _inspection(pk):
-    return get_object_or_404(Inspection.objects.select_related("weld__assembly__job", "weld__wps", "inspector"),
-                             pk=pk)
+def _inspection(request, pk):
+    return get_visible_or_404(request.user, Inspection.objects.select_related(
+        "weld__assembly__job", "weld__wps", "inspector"), pk=pk)
 
 
 @require_safe
 def weld_capacity(request, pk):
-    weld = _weld(pk)
+    weld = _weld(request, pk)
     snapshot = _with_method(capacity_for_weld(weld, _method(request)), _method(request))
     return _sheet_page(request, snapshot, back=(weld.get_absolute_url(), f"Weld {weld.mark}"))
 
 
 @require_safe
 def weld_capacity_pdf(request, pk):
-    weld = _weld(pk)
+    weld = _weld(request, pk)
     snapshot = capacity_for_weld(weld, _method(request))
     return _sheet_pdf(snapshot, f"capacity-{weld.assembly.job.number}-{weld.assembly.piece_mark}-{weld.mark}.pdf")
 
 
 @require_safe
 def inspection_capacity(request, pk):
-    inspection = _inspection(pk)
+    inspection = _inspection(request, pk)
     snapshot = _with_method(capacity_for_inspection(inspection, _method(request)), _method(request))
     return _sheet_page(request, snapshot, back=(inspection.get_absolute_url(), "the inspection"))
 
 
 @require_safe
 def inspection_capacity_pdf(request, pk):
-    inspection = _inspection(pk)
+    inspection = _inspection(request, pk)
     snapshot = capacity_for_inspection(inspection, _method(request))
     weld = inspection.weld
     return _sheet_pdf(snapshot, f"capacity-{weld.assembly.job.number}-{weld.assembly.piece_mark}-{weld.mark}-"

@@ -7,12 +7,14 @@ sends the stored bytes with their SHA-256 in the X-Content-SHA256 header.
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
 from django.http import FileResponse, Http404, HttpResponse
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
-from core import history
+from core import faults, history
 from core.errors import Refused
+from core.inputs import parse_ids
 from core.roles import can, role_required
+from core.visibility import get_visible_or_404
 from inspections import packets
 from inspections import traveler as travelers
 from inspections.models import Assembly, Job, JobPacket, PacketState, Traveler
@@ -33,7 +35,7 @@ def _file_response(field, filename, sha256, inline=True):
 @require_safe
 def traveler_list(request, pk):
     """Every issued revision of the assembly's traveler, newest first, and whether the records changed since."""
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
     revisions = list(assembly.travelers.select_related("generated_by").order_by("-revision"))
     latest = revisions[0] if revisions else None
     changed = None
@@ -48,8 +50,15 @@ def traveler_list(request, pk):
 @role_required("traveler.issue")
 @require_POST
 def traveler_issue(request, pk):
-    assembly = get_object_or_404(Assembly.objects.select_related("job"), pk=pk)
-    traveler, created = travelers.issue(assembly, request.user)
+    assembly = get_visible_or_404(request.user, Assembly.objects.select_related("job"), pk=pk)
+    try:
+        traveler, created = travelers.issue(assembly, request.user)
+    except OSError as exc:  # disk full, folder not writable: no traveler row, no part of a PDF
+        message = faults.storage_message(exc, "traveler")
+        if message is None:
+            raise
+        messages.error(request, message)
+        return redirect("inspections:traveler_list", pk=assembly.pk)
     if created:
         messages.success(request, f"Issued {traveler.document_number} ({traveler.pages} pages).")
     else:
@@ -60,14 +69,14 @@ def traveler_issue(request, pk):
 
 @require_safe
 def traveler_download(request, pk):
-    traveler = get_object_or_404(Traveler, pk=pk)
+    traveler = get_visible_or_404(request.user, Traveler, pk=pk)
     return _file_response(traveler.file, traveler.filename, traveler.sha256, inline=request.GET.get("dl") != "1")
 
 
 @require_safe
 def traveler_sha256(request, pk):
     """The sidecar line, as `sha256sum -c` reads it."""
-    traveler = get_object_or_404(Traveler, pk=pk)
+    traveler = get_visible_or_404(request.user, Traveler, pk=pk)
     response = HttpResponse(f"{traveler.sha256}  {traveler.filename}\n", content_type="text/plain; charset=utf-8")
     response["Content-Disposition"] = f'attachment; filename="{traveler.filename}.sha256"'
     return response
@@ -91,17 +100,16 @@ def _packet_page(request, job, errors=None, chosen=None, status=200):
 
 @require_safe
 def packet_list(request, pk):
-    job = get_object_or_404(Job, pk=pk)
+    job = get_visible_or_404(request.user, Job, pk=pk)
     return _packet_page(request, job)
 
 
 @role_required("traveler.issue")
 @require_POST
 def packet_start(request, pk):
-    job = get_object_or_404(Job, pk=pk)
-    try:
-        chosen = [int(v) for v in request.POST.getlist("assemblies")][:2000]
-    except ValueError:
+    job = get_visible_or_404(request.user, Job, pk=pk)
+    chosen = parse_ids(request.POST.getlist("assemblies"), limit=2000)
+    if chosen is None:
         return _packet_page(request, job, ["The assemblies chosen could not be read; choose them again."], [], 400)
     try:
         packet = packets.start_packet(job, chosen, request.user)
@@ -110,25 +118,25 @@ def packet_start(request, pk):
     return redirect(packet)
 
 
-def _packet(pk):
-    return get_object_or_404(JobPacket.objects.select_related("job", "requested_by"), pk=pk)
+def _packet(request, pk):
+    return get_visible_or_404(request.user, JobPacket.objects.select_related("job", "requested_by"), pk=pk)
 
 
 @require_safe
 def packet_detail(request, pk):
-    packet = _packet(pk)
+    packet = _packet(request, pk)
     return render(request, "inspections/packet_detail.html", {"packet": packet, "history": history.panel(packet)})
 
 
 @require_safe
 def packet_progress(request, pk):
     """The progress block alone; htmx polls it every second until the packet is done or failed."""
-    return render(request, "inspections/packet_progress.html", {"packet": _packet(pk)})
+    return render(request, "inspections/packet_progress.html", {"packet": _packet(request, pk)})
 
 
 @require_safe
 def packet_download(request, pk):
-    packet = _packet(pk)
+    packet = _packet(request, pk)
     if packet.state != PacketState.DONE:
         raise Http404("The packet is not built yet.")
     if not packet.file:

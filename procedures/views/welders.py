@@ -11,15 +11,19 @@ from pathlib import PurePath
 
 from django.contrib import messages
 from django.core.exceptions import ValidationError
+from django.db import transaction
 from django.http import FileResponse, Http404
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.utils import timezone
 from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods, require_safe
 
+from core import faults
 from core.errors import Refused
 from core.pdf import pdf_response, render_pdf
 from core.roles import role_required
+from core.storage import files_or_nothing
+from core.visibility import continuity_for, get_visible_or_404, require_visible, visible
 from core.vocabulary import Process
 from procedures import eligibility, printing
 from procedures.eligibility import State
@@ -30,11 +34,18 @@ from procedures.services import welders as welder_steps
 ACTIVE_CHOICES = [("yes", "Active"), ("no", "Inactive"), ("all", "All")]
 
 
-def _welder(pk):
+def _welder(request, pk):
+    require_visible(request.user, Welder, pk)
     try:
         return printing.welder_with_records(pk)
     except Welder.DoesNotExist:
         raise Http404("No such welder.")
+
+
+def _welder_context(request, welder):
+    context = printing.welder_context(welder)
+    context["continuity"] = continuity_for(request.user, context["continuity"])
+    return context
 
 
 @require_safe
@@ -47,7 +58,7 @@ def welder_list(request):
         filters["process"] = ""
     if filters["active"] not in dict(ACTIVE_CHOICES):
         filters["active"] = "yes"
-    welders = Welder.objects.prefetch_related("qualifications", "continuity")
+    welders = visible(request.user, Welder.objects.prefetch_related("qualifications", "continuity"))
     if filters["active"] != "all":
         welders = welders.filter(active=filters["active"] == "yes")
     today = timezone.localdate()
@@ -83,7 +94,7 @@ def welder_create(request):
 @require_http_methods(["GET", "POST"])
 def welder_edit(request, pk):
     """Correct a welder's name, employer or stamp (the stamp only until records bear it), by version."""
-    welder = get_object_or_404(Welder, pk=pk)
+    welder = get_visible_or_404(request.user, Welder, pk=pk)
     form = WelderForm(request.POST or None, instance=welder)
     status = 200
     if request.method == "POST" and form.is_valid():
@@ -97,7 +108,7 @@ def welder_edit(request, pk):
 
 @require_safe
 def welder_detail(request, pk):
-    welder = _welder(pk)
+    welder = _welder(request, pk)
     check_form, check = None, None
     if "thickness" in request.GET:  # the "could this welder make this weld?" box was filled in
         check_form = WeldCheckForm(request.GET)
@@ -105,13 +116,13 @@ def welder_detail(request, pk):
             data = check_form.cleaned_data
             check = eligibility.check_welder(welder, data["demand"], data["on"])
     return render(request, "procedures/welder_detail.html", {
-        **printing.welder_context(welder), "check_form": check_form or WeldCheckForm(), "check": check})
+        **_welder_context(request, welder), "check_form": check_form or WeldCheckForm(), "check": check})
 
 
 @role_required("welder.manage")
 @require_http_methods(["GET", "POST"])
 def qualification_create(request, pk):
-    welder = get_object_or_404(Welder, pk=pk)
+    welder = get_visible_or_404(request.user, Welder, pk=pk)
     if not welder.active:
         messages.error(request, f"{welder} is inactive: reactivate the welder before recording a test.")
         return redirect(welder)
@@ -120,21 +131,33 @@ def qualification_create(request, pk):
         qualification = form.save(commit=False)
         qualification.welder = welder
         qualification.recorded_by = request.user
-        qualification.save()
+        try:
+            with files_or_nothing(), transaction.atomic():  # the report file goes with the row, or neither
+                qualification.save()
+        except OSError as exc:  # disk full, folder not writable: said beside the report, the rest kept
+            message = faults.storage_message(exc, "test report")
+            if message is None:
+                raise
+            form.add_error("report", message)
+            return _qualification_page(request, form, welder, status=503)
         messages.success(request, f"Test recorded: {qualification.process} {qualification.test_position} of "
                                   f"{qualification.test_date:%Y-%m-%d}.")
         return redirect(welder)
+    return _qualification_page(request, form, welder)
+
+
+def _qualification_page(request, form, welder, status=200):
     return render(request, "procedures/welder_form.html", {
         "form": form, "welder": welder, "title": f"Record a qualification test for {welder}",
         "submit": "Record test", "multipart": True,
         "intro": "The ranges this test qualifies and the date it lapses are worked out from it; they are not typed.",
-    })
+    }, status=status)
 
 
 @require_safe
 def qualification_report(request, pk):
     """The attached test report, only to a signed-in user (LoginRequiredMiddleware), never from a public URL."""
-    qualification = get_object_or_404(Qualification, pk=pk)
+    qualification = get_visible_or_404(request.user, Qualification, pk=pk)
     if not qualification.report:
         raise Http404("No report attached.")
     try:
@@ -151,7 +174,7 @@ def qualification_report(request, pk):
 @role_required("continuity.log")
 @require_http_methods(["GET", "POST"])
 def continuity_create(request, pk):
-    welder = get_object_or_404(Welder, pk=pk)
+    welder = get_visible_or_404(request.user, Welder, pk=pk)
     form = ContinuityForm(request.POST or None, welder=welder)
     if request.method == "POST" and form.is_valid():
         data = form.cleaned_data
@@ -169,7 +192,7 @@ def continuity_create(request, pk):
 
 
 def _state_change(request, pk, active):
-    welder = get_object_or_404(Welder, pk=pk)
+    welder = get_visible_or_404(request.user, Welder, pk=pk)
     form = ReasonForm(request.POST or None)
     if request.method == "POST" and form.is_valid():
         try:
@@ -204,8 +227,8 @@ def welder_reactivate(request, pk):
 @require_safe
 def welder_pdf(request, pk):
     """The printable qualification summary: each test, its ranges, its lapse date, the continuity behind it."""
-    welder = _welder(pk)
-    context = printing.welder_context(welder)
+    welder = _welder(request, pk)
+    context = _welder_context(request, welder)
     rendered = render_pdf("pdf/welder_summary.html", context,
                           f"welder-{slugify(welder.stamp) or welder.pk}-qualifications-{context['today']:%Y%m%d}.pdf")
     return pdf_response(rendered)

@@ -10,13 +10,14 @@ from django.core.exceptions import PermissionDenied
 from django.core.paginator import Paginator
 from django.db.models import Prefetch, Q
 from django.forms.utils import pretty_name
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
 from core import history
 from core.errors import Refused
 from core.pdf import paper_for, pdf_response, render_pdf
 from core.roles import role_required
+from core.visibility import get_visible_or_404, visible
 from core.vocabulary import Process
 from procedures import printing
 from procedures.forms.wps import PQRForm, ReasonForm, WPSForm
@@ -34,8 +35,8 @@ def _wps_queryset():
     )
 
 
-def _get_wps(pk):
-    return get_object_or_404(_wps_queryset(), pk=pk)
+def _get_wps(request, pk):
+    return get_visible_or_404(request.user, _wps_queryset(), pk=pk)
 
 
 def _refuse_unless_editable(request, wps):
@@ -52,7 +53,7 @@ def _refuse_unless_editable(request, wps):
 @require_safe
 def wps_list(request):
     """All procedures, searchable by number, title and electrode; filtered by state, process, electrode, metal."""
-    wps = WPS.objects.select_related("approved_by")
+    wps = visible(request.user, WPS.objects.select_related("approved_by"))
     q = request.GET.get("q", "").strip()[:80]
     if q:
         wps = wps.filter(Q(number__icontains=q) | Q(title__icontains=q) | Q(electrode__icontains=q))
@@ -71,7 +72,7 @@ def wps_list(request):
     if filters["base_metal"]:
         wps = wps.filter(base_metals__icontains=filters["base_metal"])
     page = Paginator(wps.order_by("number", "-revision"), PAGE_SIZE).get_page(request.GET.get("page"))
-    electrodes = WPS.objects.order_by("electrode").values_list("electrode", flat=True).distinct()
+    electrodes = visible(request.user, WPS.objects.order_by("electrode")).values_list("electrode", flat=True).distinct()
     return render(request, "procedures/wps_list.html", {
         "page": page, "q": q, "filters": filters, "states": WPSState.choices, "processes": Process.choices,
         "electrodes": list(electrodes), "query": _query_without_page(request),
@@ -80,7 +81,7 @@ def wps_list(request):
 
 @require_safe
 def wps_detail(request, pk):
-    return render(request, "procedures/wps_detail.html", printing.wps_context(_get_wps(pk)))
+    return render(request, "procedures/wps_detail.html", printing.wps_context(_get_wps(request, pk)))
 
 
 # --- draft and edit, with the live review panel -----------------------------------------------------
@@ -130,7 +131,7 @@ def wps_create(request):
 @require_http_methods(["GET", "POST"])
 @role_required("procedure.draft")
 def wps_edit(request, pk):
-    wps = get_object_or_404(WPS, pk=pk)
+    wps = get_visible_or_404(request.user, WPS, pk=pk)
     if request.method == "GET":
         refused = _refuse_unless_editable(request, wps)
         if refused:
@@ -156,7 +157,7 @@ def wps_edit(request, pk):
 @role_required("procedure.draft")
 def wps_review(request, pk=None):
     """The review panel for what the engineer has typed so far (htmx posts the form here as they type)."""
-    instance = get_object_or_404(WPS, pk=pk) if pk else WPS()
+    instance = get_visible_or_404(request.user, WPS, pk=pk) if pk else WPS()
     if pk and not instance.is_editable:
         raise PermissionDenied(f"{instance} is {instance.get_state_display().lower()}; it is not reviewed as a draft.")
     form = WPSForm(request.POST, instance=instance)
@@ -178,21 +179,21 @@ def _transition(request, wps, move, done):
 @require_POST
 @role_required("procedure.submit")
 def wps_submit(request, pk):
-    wps = get_object_or_404(WPS, pk=pk)
+    wps = get_visible_or_404(request.user, WPS, pk=pk)
     return _transition(request, wps, lambda: wps_steps.submit(wps, request.user), f"{wps} submitted for approval.")
 
 
 @require_POST
 @role_required("procedure.approve")
 def wps_approve(request, pk):
-    wps = get_object_or_404(WPS, pk=pk)
+    wps = get_visible_or_404(request.user, WPS, pk=pk)
     return _transition(request, wps, lambda: wps_steps.approve(wps, request.user), f"{wps} approved.")
 
 
 @require_POST
 @role_required("procedure.draft")
 def wps_new_revision(request, pk):
-    wps = get_object_or_404(WPS, pk=pk)
+    wps = get_visible_or_404(request.user, WPS, pk=pk)
     try:
         revision = wps_steps.new_revision(wps, request.user)
     except Refused as exc:
@@ -204,7 +205,7 @@ def wps_new_revision(request, pk):
 
 def _reason_page(request, pk, action, state, title, verb, move):
     """A page asking why (withdraw, return to the engineer): GET shows the form, POST acts."""
-    wps = get_object_or_404(WPS, pk=pk)
+    wps = get_visible_or_404(request.user, WPS, pk=pk)
     if wps.state != state:
         messages.error(request, f"{wps} is {wps.get_state_display().lower()}; nothing to {verb}.")
         return redirect(wps)
@@ -238,7 +239,7 @@ def wps_return(request, pk):
 
 @require_safe
 def wps_pdf(request, pk):
-    wps = _get_wps(pk)
+    wps = _get_wps(request, pk)
     filename = f"WPS-{wps.number}-rev{wps.revision}.pdf".replace(" ", "_").replace("/", "-")
     return pdf_response(render_pdf("pdf/wps.html", printing.wps_document(wps), filename,
                                    paper=paper_for(wps.unit_system, wps.code)))
@@ -248,7 +249,7 @@ def wps_pdf(request, pk):
 
 @require_safe
 def pqr_list(request):
-    pqrs = PQR.objects.order_by("number")
+    pqrs = visible(request.user, PQR.objects.order_by("number"))
     q = request.GET.get("q", "").strip()[:80]
     if q:
         pqrs = pqrs.filter(Q(number__icontains=q) | Q(electrode__icontains=q) | Q(base_metal__icontains=q))
@@ -258,8 +259,8 @@ def pqr_list(request):
 
 @require_safe
 def pqr_detail(request, pk):
-    pqr = get_object_or_404(PQR, pk=pk)
-    procedures = list(pqr.procedures.order_by("number", "-revision"))
+    pqr = get_visible_or_404(request.user, PQR, pk=pk)
+    procedures = list(visible(request.user, pqr.procedures.order_by("number", "-revision")))
     return render(request, "procedures/pqr_detail.html", {
         "pqr": pqr, "procedures": procedures, "rows": printing.pqr_rows(pqr), "history": history.panel(pqr),
         "in_use": any(p.state != WPSState.DRAFT for p in procedures)})
@@ -286,7 +287,7 @@ def pqr_create(request):
 @role_required("procedure.draft")
 def pqr_edit(request, pk):
     """Correct a PQR while no procedure beyond a draft names it (then it records a test that happened)."""
-    pqr = get_object_or_404(PQR, pk=pk)
+    pqr = get_visible_or_404(request.user, PQR, pk=pk)
     if request.method == "GET" and PQR.lock.frozen_row(pqr):
         messages.error(request, PQR.lock.refusal(pqr, "changed"))
         return redirect(pqr)

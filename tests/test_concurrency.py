@@ -62,11 +62,11 @@ def test_eight_inspectors_rejecting_welds_of_one_job_at_once_get_consecutive_num
 
 
 def test_two_people_saving_one_record_at_once_one_wins_and_nothing_is_overwritten(make):
-    job = make.make_job(customer="Harlan County Transit Authority")
+    job = make.make_job(name="Harlan Transit Garage, level 2 framing")
     copies = [Job.objects.get(pk=job.pk), Job.objects.get(pk=job.pk)]  # both opened at version 1
-    copies[0].customer, copies[1].customer = "Harlan Transit (A)", "Harlan Transit (B)"
+    copies[0].name, copies[1].name = "Level 2 framing (A)", "Level 2 framing (B)"
 
     errors = _together(lambda i: copies[i].save(), 2)
     assert len(errors) == 1 and isinstance(errors[0], Stale)
     stored = Job.objects.get(pk=job.pk)
-    assert stored.version == 2 and stored.customer in ("Harlan Transit (A)", "Harlan Transit (B)")
+    assert stored.version == 2 and stored.name in ("Level 2 framing (A)", "Level 2 framing (B)")

@@ -3,6 +3,7 @@
 import pytest
 from django.core.exceptions import PermissionDenied
 from django.urls import reverse
+from django.utils import timezone
 
 from core.errors import Refused
 from core.history import history_of
@@ -92,7 +93,7 @@ def test_refresh_rejects_and_comes_back_when_the_ncr_closes(make, users, assembl
     event = history_of(assembly).get(action="state")
     assert event.user == rejected.inspector and event.from_state == AssemblyState.IN_FABRICATION
     ncr = rejected.ncrs.get()
-    disposition_use_as_is(ncr, users["qa_lead"], "A. Engineer, PE", rejected.inspected_at.date())
+    disposition_use_as_is(ncr, users["qa_lead"], "A. Engineer, PE", timezone.localdate(rejected.inspected_at))
     assert refresh_assembly_state(assembly, users["inspector"]) == AssemblyState.AWAITING_INSPECTION
     assert refresh_assembly_state(assembly, users["inspector"]) == AssemblyState.AWAITING_INSPECTION
     assert history_of(assembly).filter(action="state").count() == 2

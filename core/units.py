@@ -82,11 +82,29 @@ def _cap(text: str) -> str:
     return text[:1].upper() + text[1:]
 
 
+_RAISED, _LOWERED = "⁰¹²³⁴⁵⁶⁷⁸⁹", "₀₁₂₃₄₅₆₇₈₉"
+_SMALL_DIGITS = _RAISED + _LOWERED
+# ¹⁄₁₆ as some keyboards write a fraction: read as 1/16.
+_SMALL_FRACTION = re.compile(f"([{_RAISED}]+)[\u2044/]([{_LOWERED}]+)")
+# A raised digit after a letter is a unit's exponent (in², N/mm²); anywhere else NFKC would read 5² as 52.
+_STRAY_SMALL_DIGIT = re.compile(f"(?<![A-Za-z{_SMALL_DIGITS}])[{_SMALL_DIGITS}]")
+
+
+def _small_fraction(match) -> str:
+    plain = str.maketrans(_SMALL_DIGITS, "0123456789" * 2)
+    return f" {match.group(1).translate(plain)}/{match.group(2).translate(plain)}"
+
+
 def _normalise(text: str) -> str:
     """Unicode a keyboard or a pasted note may carry, as plain text: vulgar fractions, full-width digits,
-    non-breaking spaces, fraction and division slashes, primes, minus signs, and the degree look-alikes."""
+    non-breaking spaces, fraction and division slashes, primes, minus signs, and the degree look-alikes.
+    A raised or lowered digit that is not a unit's exponent or part of a fraction is refused, not read."""
     for mark, plain in _VULGAR.items():  # before NFKC, which would turn 1½ into 11⁄2
         text = text.replace(mark, f" {plain}")
+    text = _SMALL_FRACTION.sub(_small_fraction, text)
+    if _STRAY_SMALL_DIGIT.search(text):
+        raise UnitError(f"'{text.strip()}' has a raised or lowered digit (such as ²): write the number in plain "
+                        "digits.")
     # before NFKC, which turns the ordinal indicator º into the letter o and the ring above ˚ into a space
     text = text.replace("\u00ba", "\u00b0").replace("\u02da", "\u00b0")
     text = unicodedata.normalize("NFKC", text)  # full-width digits, non-breaking spaces

@@ -315,3 +315,20 @@ def test_every_parser_answers_any_input_with_a_value_or_a_value_error(parse, val
         parse(value)
     except ValueError as exc:  # UnitError is a ValueError; anything else (InvalidOperation, OverflowError) fails
         assert str(exc) and "InvalidOperation" not in str(exc)
+
+
+@pytest.mark.parametrize("text", ["5²", "5² in", "²", "1²/4", "3/8²", "6₃ mm"])
+def test_a_raised_or_lowered_digit_is_refused_not_read_as_a_plain_one(text):
+    """NFKC makes 5² the digits 52: read so, a slip of the keyboard would store 52 in."""
+    with pytest.raises(UnitError, match="raised or lowered digit"):
+        parse_length(text, "in")
+
+
+@pytest.mark.parametrize("text, mm", [("¹⁄₁₆ in", "1.5875"), ("1 ¹⁄₂ in", "38.1"), ("1¹⁄₂ in", "38.1")])
+def test_a_fraction_in_small_digits_reads_as_the_fraction(text, mm):
+    assert parse_length(text).mm == Decimal(mm)
+
+
+def test_a_units_exponent_is_still_read():
+    assert units.parse_stress("345 N/mm²")[0].mpa == Decimal(345)
+    assert units.parse_area("2 in²").mm2 == Decimal("1290.32")

@@ -58,7 +58,7 @@ def welder_list(request):
         filters["process"] = ""
     if filters["active"] not in dict(ACTIVE_CHOICES):
         filters["active"] = "yes"
-    welders = visible(request.user, Welder.objects.prefetch_related("qualifications", "continuity"))
+    welders = visible(request.user, Welder.objects.prefetch_related("qualifications", "continuity_runs"))
     if filters["active"] != "all":
         welders = welders.filter(active=filters["active"] == "yes")
     today = timezone.localdate()

@@ -2,10 +2,11 @@
 
 Every range and date rule lives in procedures.qualification (the engine). This module only gathers the facts
 the engine asks for (the test records, and the continuity runs that keep them alive: procedures.continuity keeps
-them from the entries), with a fixed number of queries and rows whatever the number of welders, welds and entries, and hands back the engine's Eligibility and status objects.
+them from the entries), with a fixed number of queries and rows whatever the number of welders, welds and
+entries, and hands back the engine's Eligibility and status objects.
 
 - check_welder(welder, weld_or_demand, on): one welder, one weld.
-- check_welds(welds, on): every welder of every weld (weld map, travelers): four queries at most.
+- check_welds(welds, on): every welder of every weld (weld map, travelers): five queries at most.
 - eligible_welders(weld, welders, on): which of these welders may make this weld.
 - welder_status(welder, on) / welder_statuses(welders, on): qualified, lapsing, lapsed, inactive or untested.
 - check_work(works): welders of any welding (original welds and repairs) on their own days, fixed queries.

@@ -5,7 +5,6 @@ memory), ISO 9606-1:2012 9.2. Invented scenario (Brannock Steelworks)."""
 
 from datetime import date, timedelta
 
-import pytest
 from django.db import connection
 from django.test.utils import CaptureQueriesContext
 from django.urls import reverse

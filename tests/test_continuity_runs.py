@@ -137,3 +137,33 @@ def test_the_assembly_page_keeps_its_queries_when_the_welders_history_grows(clie
     long = _queries(client, url)
     assert len(long) == len(short)
     assert "qualified" in client.get(url).text
+
+
+def test_the_welder_page_lists_its_history_a_page_at_a_time_in_fixed_queries(client_as, make):
+    client = client_as("qa_lead")
+    welder = make.make_qualified_welder()
+    url = reverse("procedures:welder_detail", args=[welder.pk])
+    today = date.today()
+    _history(welder, [today - timedelta(days=n) for n in range(1, 4)])
+    short = _queries(client, url)
+    _history(welder, [today - timedelta(days=n) for n in range(4, 130)])
+    long = _queries(client, url)
+    assert len(long) == len(short)
+    response = client.get(url, {"page": "3"})
+    assert len(response.context["continuity"]) == 29 and "Page 3 of 3" in response.text
+    assert "without a six-month gap" in response.text  # the run, summarised
+
+
+def test_the_job_page_lists_its_assemblies_a_page_at_a_time_in_fixed_queries(client_as, make):
+    from inspections.models import Assembly
+
+    client = client_as("inspector")
+    job = make.make_job()
+    url = reverse("inspections:job_detail", args=[job.pk])
+    make.make_sound_weld(make.make_assembly(job))
+    short = _queries(client, url)
+    Assembly.objects.bulk_create([Assembly(job=job, piece_mark=f"K{n:03d}", drawing="E-9") for n in range(80)])
+    long = _queries(client, url)
+    assert len(long) == len(short)
+    response = client.get(url, {"page": "2"})
+    assert len(response.context["page"]) == 31 and "K079" in response.text

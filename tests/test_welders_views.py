@@ -89,7 +89,8 @@ def test_the_list_shows_each_state_and_filters_by_it(client_as, make, users):
     assert stamps(continuity="lapsed") == {"S-03": "lapsed"}
     assert set(stamps(process="FCAW")) == {"S-01", "S-02", "S-03"}
     assert set(stamps(process="SMAW")) == set()
-    assert stamps(state="nonsense", process="<script>", active="maybe", continuity="x", o="?") == stamps()  # bad filters are ignored
+    # bad filters are ignored
+    assert stamps(state="nonsense", process="<script>", active="maybe", continuity="x", o="?") == stamps()
 
 
 # --- detail ---------------------------------------------------------------------------------------------------

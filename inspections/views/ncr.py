@@ -58,14 +58,17 @@ def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
         if event.reason and event.reason.strip() == ncr.description.strip():
             event.reason = "raised with the description above"  # shown, never saved: the record keeps it all
     system = ncr.weld.assembly.job.unit_system
+    # the repair forms offer the WPSs that cover the weld and the welders qualified for it (a bounded list)
+    choices = repair_steps.repair_choices(ncr) if ncr.state == NCRState.OPEN or awaiting_repair else None
     context = {
         "repair": repair, "awaiting_repair": awaiting_repair,
         "may_record_repair": repair_steps.may_record(request.user),
-        "repair_form": repair_form or (RepairRecordForm(ncr=ncr) if awaiting_repair else None),
+        "repair_form": repair_form or (RepairRecordForm(ncr=ncr, choices=choices) if awaiting_repair else None),
         "ncr": ncr, "weld": ncr.weld, "assembly": ncr.weld.assembly, "job": ncr.weld.assembly.job,
         "history": events, "description": _description(ncr, findings),
         "capacities": capacity_cards(ncr=ncr) if ncr.weld.joint_type == JointType.FILLET else [],
-        "forms": {kind: forms.get(kind) or cls(prefix=kind) for kind, cls in FORMS.items()},
+        "forms": {kind: forms.get(kind) or cls(prefix=kind, **({"choices": choices} if kind == "repair" else {}))
+                  for kind, cls in FORMS.items()},
         "findings": findings, "recorded": ncr.inspection.recorded(system),
     }
     return render(request, "inspections/ncr_detail.html", context, status=status)

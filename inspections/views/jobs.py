@@ -7,7 +7,6 @@ from django.core.exceptions import PermissionDenied
 from django.db import transaction
 from django.db.models import Count, F, OuterRef, Subquery
 from django.db.models.functions import Coalesce
-from django.http import HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
@@ -439,7 +438,5 @@ def weldmap_import(request, pk):
 @require_safe
 def weldmap_export(request, pk):
     job = get_visible_or_404(request.user, Job, pk=pk)
-    response = HttpResponse(weldmap_csv.export_weld_map(job), content_type="text/csv; charset=utf-8")
     safe_number = "".join(c if c.isalnum() or c in "-_" else "_" for c in job.number)
-    response["Content-Disposition"] = f'attachment; filename="weld-map-{safe_number}.csv"'
-    return response
+    return lists.stream_csv(weldmap_csv.export_lines(job), f"weld-map-{safe_number}.csv")

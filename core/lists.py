@@ -22,8 +22,11 @@ import django_filters
 from django import forms
 from django.core.exceptions import ValidationError
 from django.core.paginator import Paginator
+from django.forms.utils import flatatt
 from django.http import StreamingHttpResponse
 from django.shortcuts import render
+from django.utils.html import format_html
+from django.utils.safestring import mark_safe
 
 PAGE_SIZE = 50  # the contract: 50 rows a page
 CSV_CHUNK = 2000  # rows fetched at a time by the CSV stream
@@ -65,13 +68,29 @@ def date_range(field_name, label):
         widget=django_filters.widgets.DateRangeWidget(attrs={"type": "date", "class": "form-control"}))
 
 
+class FastSelect(forms.Select):
+    """A <select> written by string joins rather than a template per option: a filter of 500 procedures or 200
+    welders renders in a millisecond instead of tens (Django's Select renders each option through a template)."""
+
+    def render(self, name, value, attrs=None, renderer=None):
+        attrs = self.build_attrs(self.attrs, attrs)
+        chosen = {str(v) for v in (value if isinstance(value, (list, tuple)) else [value]) if v is not None}
+        options = "".join(
+            format_html('<option value="{}"{}>{}</option>', key, " selected" if str(key) in chosen else "", label)
+            for key, label in ((str(k.value if hasattr(k, "value") else k), text) for k, text in self.choices))
+        return format_html('<select name="{}"{}>{}</select>', name, flatatt(attrs), mark_safe(options))
+
+
 class ListFilterSet(django_filters.FilterSet):
-    """Base of every list page's FilterSet: Bootstrap classes on the widgets, nothing required."""
+    """Base of every list page's FilterSet: Bootstrap classes on the widgets, nothing required, selects written
+    fast (FastSelect)."""
 
     def __init__(self, data=None, *args, **kwargs):
         super().__init__(data, *args, **kwargs)
         for field in self.form.fields.values():
             field.required = False
+            if type(field.widget) is forms.Select:
+                field.widget = FastSelect(attrs=field.widget.attrs, choices=field.widget.choices)
             widget = field.widget
             widgets = getattr(widget, "widgets", [widget])
             for w in widgets:

@@ -8,7 +8,7 @@ from django.views.decorators.http import require_POST, require_safe
 
 from core import history, lists
 from core.errors import Refused
-from core.roles import role_required
+from core.roles import can, role_required
 from core.visibility import get_visible_or_404, visible
 from core.vocabulary import JointType
 from inspections.forms.jobs import RepairForm, RepairRecordForm, ScrapForm, UseAsIsForm, add_step_errors
@@ -59,7 +59,9 @@ def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
             event.reason = "raised with the description above"  # shown, never saved: the record keeps it all
     system = ncr.weld.assembly.job.unit_system
     # the repair forms offer the WPSs that cover the weld and the welders qualified for it (a bounded list)
-    choices = repair_steps.repair_choices(ncr) if ncr.state == NCRState.OPEN or awaiting_repair else None
+    wanted = ((ncr.state == NCRState.OPEN and can(request.user, "ncr.disposition"))
+              or (awaiting_repair and repair_steps.may_record(request.user)))
+    choices = repair_steps.repair_choices(ncr) if wanted else None
     context = {
         "repair": repair, "awaiting_repair": awaiting_repair,
         "may_record_repair": repair_steps.may_record(request.user),

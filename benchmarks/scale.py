@@ -71,9 +71,9 @@ def setup(kind):
     import django
 
     django.setup()
-    from django.core.management import call_command
-
     import io
+
+    from django.core.management import call_command
 
     call_command("migrate", verbosity=0)
     call_command("collectstatic", verbosity=0, interactive=False)  # DEBUG off serves from the manifest
@@ -276,10 +276,12 @@ def export_figures():
         def write(self, text):
             return len(text)
 
-    def bare():
+    from inspections.services.weldmap_csv import EXPORT_FIELDS
+
+    def bare():  # the same rows and columns, lengths written as stored (no formatting), no request
         writer = csv.writer(Null())
-        for row in Weld.objects.filter(assembly__job=job).values_list(
-                "assembly__piece_mark", "mark", "joint_type", "size", "length", "count").iterator(chunk_size=2000):
+        for row in Weld.objects.filter(assembly__job=job).order_by("assembly__piece_mark", "mark").values_list(
+                *EXPORT_FIELDS).iterator(chunk_size=2000):
             writer.writerow(row)
         return 0
 

@@ -110,7 +110,9 @@ class Inspection(Guarded):
 
     class Meta:
         ordering = ["-inspected_at", "-pk"]
-        indexes = [models.Index(fields=["weld", "-inspected_at"])]
+        indexes = [models.Index(fields=["weld", "-inspected_at"]),
+                   # the inspections list, newest first, a page at a time (core.lists): no sort of every row
+                   models.Index(fields=["-inspected_at", "-id"], name="inspection_newest_first")]
         base_manager_name = "objects"
 
     def __str__(self):

@@ -22,9 +22,11 @@ import django_filters
 from django import forms
 from django.core.exceptions import ValidationError
 from django.core.paginator import Paginator
+from django.db.models import QuerySet
 from django.forms.utils import flatatt
 from django.http import StreamingHttpResponse
 from django.shortcuts import render
+from django.utils.functional import cached_property
 from django.utils.html import format_html
 from django.utils.safestring import mark_safe
 
@@ -143,9 +145,27 @@ def wants_csv(request) -> bool:
     return request.GET.get("format") == "csv"
 
 
+COUNT_CAP = 5000  # a list counts its rows up to here ("5,000+"): counting 300,000 joined rows costs more than the page
+
+
+class CappedPaginator(Paginator):
+    """Counts a queryset only up to COUNT_CAP + 1 rows (COUNT over a LIMIT subquery), so the count stays as cheap as
+    the page however many rows match; past the cap the pager says "5,000+" and the CSV gives every row."""
+
+    @cached_property
+    def count(self):
+        if isinstance(self.object_list, QuerySet):
+            return self.object_list[:COUNT_CAP + 1].count()
+        return len(self.object_list)
+
+    @property
+    def capped(self):
+        return self.count > COUNT_CAP
+
+
 def paginate(request, rows, per_page=PAGE_SIZE):
-    """A Paginator page of a queryset or list; a page number that cannot be read gives the first or last page."""
-    return Paginator(rows, per_page).get_page(request.GET.get("page"))
+    """A page of a queryset or list; a page number that cannot be read gives the first or last page."""
+    return CappedPaginator(rows, per_page).get_page(request.GET.get("page"))
 
 
 def list_page(request, filterset, template, context=None, *, columns=None, filename="list.csv", rows=None):

@@ -189,3 +189,17 @@ def test_a_date_at_the_ends_of_the_calendar_is_a_field_error_not_a_server_error(
     response = get(client_as("qa_lead"), "inspections:inspection_list", signed_after="0001-01-01",
                    signed_before="9999-12-31")
     assert "Give a date between 1900 and 2999." in response.text
+
+
+def test_a_long_list_counts_up_to_the_cap_and_says_so(client_as, make, monkeypatch):
+    from core import lists
+
+    monkeypatch.setattr(lists, "COUNT_CAP", 60)
+    job = make.make_job()
+    Assembly.objects.bulk_create([Assembly(job=job, piece_mark=f"D{n:03d}", drawing="E-1") for n in range(130)])
+    client = client_as("inspector")
+    with CaptureQueriesContext(connection) as ctx:
+        response = get(client, "inspections:assembly_list", job=job.pk)
+    assert "over 60 records: narrow the filters, or take the CSV" in response.text
+    assert any("LIMIT 61" in q["sql"] for q in ctx.captured_queries)  # the count stops at the cap
+    assert len(csv_rows(get(client, "inspections:assembly_list", job=job.pk, format="csv"))) == 130

@@ -142,7 +142,8 @@ def build(scale):
     jobs = list(Job.objects.filter(number__startswith="J-3"))
     # half the assemblies on the first job: one big job's weld map for the export (the rest spread over the others)
     assemblies = Assembly.objects.bulk_create([Assembly(
-        job=jobs[0] if i % 2 else jobs[i % len(jobs)], piece_mark=f"M{i:05d}", drawing=f"E-{i % 400}", drawing_revision="1",
+        job=jobs[0] if i % 2 else jobs[i % len(jobs)], piece_mark=f"M{i:05d}", drawing=f"E-{i % 400}",
+        drawing_revision="1",
         state=AssemblyState.AWAITING_INSPECTION if i % 3 else AssemblyState.IN_FABRICATION)
         for i in range(n["assemblies"])], batch_size=1000)
     assemblies = list(Assembly.objects.filter(piece_mark__startswith="M").order_by("pk"))

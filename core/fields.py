@@ -258,11 +258,16 @@ class LengthFormField(_QuantityFormField):
         return value
 
 
-@functools.lru_cache(maxsize=4096)
 def exact_length_text(length, system):
     """Form text that parses back to the same stored value (a fraction only when exact). Memoised on the stored
     length: a weld map repeats a few dozen sizes and thicknesses, so an export of 100,000 welds works out each
-    distinct text once instead of running the fraction arithmetic per cell."""
+    distinct text once instead of running the fraction arithmetic per cell (keyed on the stored Decimal)."""
+    return _exact_length_text(length.mm, system)
+
+
+@functools.lru_cache(maxsize=4096)
+def _exact_length_text(mm, system):
+    length = units.Length(mm)
     if system == "US":
         whole, num, den, exact = units.inch_fraction(length.inch)
         if exact:

@@ -7,7 +7,7 @@ import tracemalloc
 import pytest
 from django.urls import reverse
 
-from core.fields import exact_length_text
+from core.fields import _exact_length_text, exact_length_text
 from core.units import parse_length
 from inspections.models import Weld
 from tests.factory import L
@@ -47,11 +47,11 @@ def test_the_weld_map_export_streams_at_steady_memory(client_as, make):
 
 
 def test_lengths_are_formatted_once_per_distinct_value():
-    exact_length_text.cache_clear()
+    _exact_length_text.cache_clear()
     quarter = parse_length("1/4 in")
     for _ in range(1000):
         assert exact_length_text(quarter, "US") == '1/4"'
-    info = exact_length_text.cache_info()
+    info = _exact_length_text.cache_info()
     assert info.misses == 1 and info.hits == 999
 
 

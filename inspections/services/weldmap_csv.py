@@ -270,8 +270,9 @@ def export_lines(job):
         for piece, mark, joint, size, drawn, size2, throat, length, count, sides, t1, t2, position, wps, process \
                 in itertools.chain([first] if first else [], welds):
             leg_drawn = drawn or throat is None  # a leg derived from the throat is not exported
-            yield [_safe(v) for v in (piece, mark, joint, text(size) if leg_drawn else "", text(size2), text(throat),
-                                      text(length), count, sides, text(t1), text(t2), position, wps or "", process)]
+            # only the typed text (marks, WPS number) can start like a formula; lengths and choices cannot
+            yield [_safe(piece), _safe(mark), joint, text(size) if leg_drawn else "", text(size2), text(throat),
+                   text(length), count, sides, text(t1), text(t2), position, _safe(wps), process]
 
     return lists.csv_lines(COLUMNS, rows())
 

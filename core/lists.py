@@ -100,6 +100,11 @@ class ListFilterSet(django_filters.FilterSet):
                 w.attrs.setdefault("class", css)
 
 
+def sort_by(fields):
+    """The `o` parameter: sort by these (field, parameter name) pairs, `-name` the other way round."""
+    return django_filters.OrderingFilter(fields=fields, label="Sort", empty_label="As listed")
+
+
 class _Echo:
     """A file-like object whose write() hands back what it is given: csv.writer then yields lines."""
 

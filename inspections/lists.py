@@ -6,7 +6,7 @@ import django_filters
 from django.db import connection
 from django.db.models import Exists, OuterRef, Q
 
-from core.lists import Column, ListFilterSet, date_range
+from core.lists import Column, ListFilterSet, date_range, sort_by
 from core.visibility import visible
 from core.vocabulary import Process
 from inspections.models import NCR, Assembly, AssemblyState, Inspection, InspectionStage, Job, Weld
@@ -66,8 +66,7 @@ def criterion_filter(prefix):
 class JobFilter(ListFilterSet):
     q = django_filters.CharFilter(label="Search", method="search", max_length=80)
     created = date_range("created_at", "Opened")
-    o = django_filters.OrderingFilter(fields=(("number", "number"), ("name", "name"), ("created_at", "created")),
-                                      label="Sort")
+    o = sort_by((("number", "number"), ("name", "name"), ("created_at", "created")))
 
     class Meta:
         model = Job
@@ -112,8 +111,8 @@ class AssemblyFilter(ListFilterSet):
     state = django_filters.ChoiceFilter(choices=AssemblyState.choices, empty_label="Any")
     waiting = django_filters.ChoiceFilter(choices=WAITING, method="waiting_at", empty_label="Any",
                                           label="Waiting for")
-    o = django_filters.OrderingFilter(fields=(("id", "created"), ("piece_mark", "piece_mark"),
-                                              ("job__number", "job"), ("state", "state")), label="Sort")
+    o = sort_by((("id", "created"), ("piece_mark", "piece_mark"),
+                                              ("job__number", "job"), ("state", "state")))
 
     class Meta:
         model = Assembly
@@ -138,7 +137,7 @@ class NCRFilter(ListFilterSet):
     welder = welder_filter("weld__welders")
     criterion = criterion_filter("inspection__")
     opened = date_range("raised_at", "Opened")
-    o = django_filters.OrderingFilter(fields=(("raised_at", "opened"), ("number", "number")), label="Sort")
+    o = sort_by((("raised_at", "opened"), ("number", "number")))
 
     class Meta:
         model = NCR
@@ -158,13 +157,13 @@ class InspectionFilter(ListFilterSet):
     welder = welder_filter("weld__welders")
     wps = django_filters.ModelChoiceFilter(field_name="weld__wps", queryset=_wpss, empty_label="Any", label="WPS")
     process = django_filters.ChoiceFilter(field_name="weld__wps__process", choices=Process.choices,
-                                          empty_label="Any")
+                                          empty_label="Any", label="Process")
     stage = django_filters.ChoiceFilter(choices=InspectionStage.choices, empty_label="Any")
     verdict = django_filters.ChoiceFilter(choices=[("accepted", "Accepted"), ("rejected", "Rejected")],
-                                          method="with_verdict", empty_label="Any")
+                                          method="with_verdict", empty_label="Any", label="Verdict")
     criterion = criterion_filter("")
     signed = date_range("inspected_at", "Signed")
-    o = django_filters.OrderingFilter(fields=(("inspected_at", "signed"),), label="Sort")
+    o = sort_by((("inspected_at", "signed"),))
 
     class Meta:
         model = Inspection
@@ -186,8 +185,7 @@ INSPECTION_COLUMNS = [Column("Signed", "inspected_at", lambda d: d.isoformat(tim
 class TravelerFilter(ListFilterSet):
     job = job_filter("assembly__job")
     issued = date_range("generated_at", "Issued")
-    o = django_filters.OrderingFilter(fields=(("generated_at", "issued"), ("document_number", "number")),
-                                      label="Sort")
+    o = sort_by((("generated_at", "issued"), ("document_number", "number")))
 
     class Meta:
         model = Traveler
@@ -203,8 +201,7 @@ class PacketFilter(ListFilterSet):
     job = job_filter("job")
     state = django_filters.ChoiceFilter(choices=PacketState.choices, empty_label="Any")
     requested = date_range("requested_at", "Requested")
-    o = django_filters.OrderingFilter(fields=(("requested_at", "requested"), ("document_number", "number")),
-                                      label="Sort")
+    o = sort_by((("requested_at", "requested"), ("document_number", "number")))
 
     class Meta:
         model = JobPacket

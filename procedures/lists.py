@@ -3,7 +3,7 @@
 import django_filters
 from django.db.models import Q
 
-from core.lists import Column, ListFilterSet
+from core.lists import Column, ListFilterSet, sort_by
 from core.vocabulary import Process
 from procedures.eligibility import State
 from procedures.models import PQR, WPS, Welder
@@ -29,8 +29,8 @@ class WPSFilter(ListFilterSet):
     electrode = django_filters.CharFilter(lookup_expr="iexact", max_length=40)
     base_metal = django_filters.CharFilter(field_name="base_metals", lookup_expr="icontains", max_length=80,
                                            label="Base metal")
-    o = django_filters.OrderingFilter(fields=(("number", "number"), ("process", "process"), ("state", "state"),
-                                              ("approved_at", "approved")), label="Sort")
+    o = sort_by((("number", "number"), ("process", "process"), ("state", "state"),
+                                              ("approved_at", "approved")))
 
     class Meta:
         model = WPS
@@ -47,8 +47,7 @@ class PQRFilter(ListFilterSet):
     q = django_filters.CharFilter(label="Search", method=_search(("number", "electrode", "base_metal")),
                                   max_length=80)
     process = django_filters.ChoiceFilter(choices=Process.choices, empty_label="Any")
-    o = django_filters.OrderingFilter(fields=(("number", "number"), ("test_date", "tested"), ("process", "process")),
-                                      label="Sort")
+    o = sort_by((("number", "number"), ("test_date", "tested"), ("process", "process")))
 
     class Meta:
         model = PQR
@@ -72,7 +71,7 @@ class WelderFilter(ListFilterSet):
                                           method="with_process", label="Process qualified")
     active = django_filters.ChoiceFilter(choices=[("1", "Active"), ("0", "Inactive")], empty_label="All",
                                          method="on_the_list", label="On the list")
-    o = django_filters.OrderingFilter(fields=(("stamp", "stamp"), ("name", "name")), label="Sort")
+    o = sort_by((("stamp", "stamp"), ("name", "name")))
 
     class Meta:
         model = Welder

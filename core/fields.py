@@ -10,6 +10,7 @@ than a Decimal context holds, OverflowError, ZeroDivisionError) become a message
 and each quantity has a ceiling far above any shop value (CEILINGS) so a stored value always fits its column.
 """
 
+import functools
 from decimal import Decimal
 
 from django import forms
@@ -253,12 +254,20 @@ class LengthFormField(_QuantityFormField):
 
     def prepare_value(self, value):
         if isinstance(value, units.Length):
-            return _exact_length_text(value, self.system)
+            return exact_length_text(value, self.system)
         return value
 
 
-def _exact_length_text(length, system):
-    """Form text that parses back to the same stored value (a fraction only when exact)."""
+def exact_length_text(length, system):
+    """Form text that parses back to the same stored value (a fraction only when exact). Memoised on the stored
+    length: a weld map repeats a few dozen sizes and thicknesses, so an export of 100,000 welds works out each
+    distinct text once instead of running the fraction arithmetic per cell (keyed on the stored Decimal)."""
+    return _exact_length_text(length.mm, system)
+
+
+@functools.lru_cache(maxsize=4096)
+def _exact_length_text(mm, system):
+    length = units.Length(mm)
     if system == "US":
         whole, num, den, exact = units.inch_fraction(length.inch)
         if exact:

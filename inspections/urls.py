@@ -5,6 +5,7 @@ from django.urls import path  # noqa: F401
 from inspections.views import criteria as criteria_views
 from inspections.views import inspect as inspect_views
 from inspections.views import jobs as job_views
+from inspections.views import lists as list_views
 from inspections.views import ncr as ncr_views
 from inspections.views import records as record_views
 from inspections.views import strength as strength_views
@@ -22,7 +23,11 @@ urlpatterns = [
     path("jobs/<int:pk>/assemblies/new/", job_views.assembly_create, name="assembly_create"),
     path("jobs/<int:pk>/weld-map/import/", job_views.weldmap_import, name="weldmap_import"),
     path("jobs/<int:pk>/weld-map.csv", job_views.weldmap_export, name="weldmap_export"),
+    path("assemblies/", list_views.assembly_list, name="assembly_list"),
     path("assemblies/find/", job_views.assembly_find, name="assembly_find"),
+    path("inspections/", list_views.inspection_list, name="inspection_list"),
+    path("travelers/", list_views.traveler_index, name="traveler_index"),
+    path("packets/", list_views.packet_index, name="packet_index"),
     path("assemblies/<int:pk>/", job_views.assembly_detail, name="assembly_detail"),
     path("assemblies/<int:pk>/edit/", job_views.assembly_edit, name="assembly_edit"),
     path("assemblies/<int:pk>/submit/", job_views.assembly_submit, name="assembly_submit"),

@@ -48,6 +48,7 @@ INSTALLED_APPS = [
     "crispy_forms",
     "crispy_bootstrap5",
     "template_partials",
+    "django_filters",
     "django_tasks",
     "django_tasks_db",
     "axes",

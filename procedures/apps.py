@@ -4,3 +4,8 @@ from django.apps import AppConfig
 class ProceduresConfig(AppConfig):
     name = "procedures"
     verbose_name = "Procedures and welders"
+
+    def ready(self):
+        from procedures import continuity
+
+        continuity.connect()

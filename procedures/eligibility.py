@@ -1,11 +1,12 @@
 """The Django side of "may this welder make this weld": database rows in, the engine's answer out.
 
 Every range and date rule lives in procedures.qualification (the engine). This module only gathers the facts
-the engine asks for (the test records, and the continuity entries that keep them alive), with a fixed number of
-queries whatever the number of welders and welds, and hands back the engine's Eligibility and status objects.
+the engine asks for (the test records, and the continuity runs that keep them alive: procedures.continuity keeps
+them from the entries), with a fixed number of queries and rows whatever the number of welders, welds and
+entries, and hands back the engine's Eligibility and status objects.
 
 - check_welder(welder, weld_or_demand, on): one welder, one weld.
-- check_welds(welds, on): every welder of every weld (weld map, travelers): four queries at most.
+- check_welds(welds, on): every welder of every weld (weld map, travelers): five queries at most.
 - eligible_welders(weld, welders, on): which of these welders may make this weld.
 - welder_status(welder, on) / welder_statuses(welders, on): qualified, lapsing, lapsed, inactive or untested.
 - check_work(works): welders of any welding (original welds and repairs) on their own days, fixed queries.
@@ -19,15 +20,16 @@ from __future__ import annotations
 from collections import defaultdict
 from collections.abc import Iterable
 from dataclasses import dataclass
-from datetime import date
+from datetime import date, timedelta
 
 from django.db import IntegrityError, transaction
 from django.db.models import prefetch_related_objects
 from django.utils import timezone
 
 from core.units import Length, format_length
+from procedures import continuity
 from procedures import qualification as engine
-from procedures.models import ContinuityEntry, Qualification, Welder
+from procedures.models import ContinuityEntry, ContinuityRun, Qualification, Welder
 
 WARN_DAYS = 30  # the list flags a qualification that lapses within this many days
 
@@ -112,59 +114,84 @@ def _better(a: RecordStatus, b: RecordStatus) -> bool:
 @dataclass
 class _Records:
     qualifications: list
-    uses: dict  # process -> sorted list of dates
+    runs: dict  # process -> [(first use, last use)] oldest first (ContinuityRun rows)
+    near: dict  # process -> sorted dates of use close before the days asked about that fall inside a run
 
 
-def _load(welders: Iterable[Welder]) -> dict[int, _Records]:
-    """Test records and continuity dates of these welders: prefetched caches if present, else two queries."""
+# The last use on or before a day inside a run lies at most six calendar months (184 days) before it: the runs'
+# rule (qualification.continuity_runs). The window read around such days, with a margin.
+_NEAR_DAYS = 190
+
+
+def _load(welders: Iterable[Welder], days: Iterable[date] = ()) -> dict[int, _Records]:
+    """Test records and continuity runs of these welders: prefetched caches if present, else two queries; a third
+    reads the dates of use just before any asked day that falls inside a run (a check of a past weld by a welder
+    who kept welding), bounded by the spread of the days asked, never the whole history."""
     welders = list({w.pk: w for w in welders}.values())
+    days = sorted(set(days))
     loaded = {}
     missing = []
     for welder in welders:
         cache = getattr(welder, "_prefetched_objects_cache", {})
-        if "qualifications" in cache and "continuity" in cache:
-            loaded[welder.pk] = _records(cache["qualifications"], cache["continuity"])
+        if "qualifications" in cache and "continuity_runs" in cache:
+            loaded[welder.pk] = _records(cache["qualifications"], cache["continuity_runs"])
         else:
             missing.append(welder.pk)
     if missing:
-        quals, uses = defaultdict(list), defaultdict(list)
+        quals, runs = defaultdict(list), defaultdict(list)
         for q in Qualification.objects.filter(welder_id__in=missing).order_by("-test_date", "-pk"):
             quals[q.welder_id].append(q)
-        for entry in ContinuityEntry.objects.filter(welder_id__in=missing).only("welder_id", "process", "date"):
-            uses[entry.welder_id].append(entry)
+        for run in ContinuityRun.objects.filter(welder_id__in=missing):
+            runs[run.welder_id].append(run)
         for pk in missing:
-            loaded[pk] = _records(quals[pk], uses[pk])
+            loaded[pk] = _records(quals[pk], runs[pk])
+    inside = {(pk, process) for pk, records in loaded.items() for process, spans in records.runs.items()
+              if any(first <= day < last for first, last in spans for day in days)}
+    if inside:
+        asked = [day for day in days if any(first <= day < last for pk, process in inside
+                                            for first, last in loaded[pk].runs[process])]
+        entries = ContinuityEntry.objects.filter(
+            welder_id__in={pk for pk, _ in inside}, date__gte=asked[0] - timedelta(days=_NEAR_DAYS),
+            date__lte=asked[-1]).values_list("welder_id", "process", "date").order_by("date")
+        for pk, process, day in entries:
+            if (pk, process) in inside:
+                loaded[pk].near.setdefault(process, []).append(day)
     return loaded
 
 
-def _records(qualifications, entries) -> _Records:
-    uses = defaultdict(list)
-    for entry in entries:
-        uses[entry.process].append(entry.date)
+def _records(qualifications, runs) -> _Records:
+    by_process = defaultdict(list)
+    for run in runs:
+        by_process[run.process].append((run.first_use, run.last_use))
     return _Records(sorted(qualifications, key=lambda q: (q.test_date, q.pk), reverse=True),
-                    {process: sorted(days) for process, days in uses.items()})
+                    {process: sorted(spans) for process, spans in by_process.items()}, {})
 
 
-def _last_use(qualification: Qualification, days: list[date], on: date) -> date | None:
+def _last_use(qualification: Qualification, runs: list, near: list[date], on: date) -> date | None:
     """The end of the unbroken chain of uses of the process since the test, up to the day asked about.
 
     The engine wants the last use of an unbroken chain (QualificationFacts.last_use_of_process). Whether each use
-    keeps the chain alive is the engine's continuity_until; a use after a gap does not revive a lapsed test.
+    keeps the chain alive is the engine's continuity_until; a use after a gap does not revive a lapsed test. The
+    chain lives in one run (qualification.continuity_runs): the one holding the test date, or the first after it
+    if it starts within continuity_until of the test. Inside that run, the last use on or before the day is read
+    from `near` (the dates loaded around the days asked about).
     """
-    current, last = qualification.test_date, None
-    for day in days:
-        if day < qualification.test_date:
+    test = qualification.test_date
+    for first, last in runs:
+        if last < test:
             continue
-        if day > on:
-            break
-        if day > engine.continuity_until(current, qualification.code):
-            break
-        current = last = day
-    return last
+        if first > on or (first >= test and first > engine.continuity_until(test, qualification.code)):
+            return None
+        if last <= on:
+            return last
+        before = [day for day in near if test <= day <= on]
+        return before[-1] if before else None
+    return None
 
 
-def facts(qualification: Qualification, uses: list[date] | None = None, on: date | None = None):
-    """The engine's QualificationFacts for a test record (ValueError if the record cannot be read)."""
+def facts(qualification: Qualification, runs: list | None = None, on: date | None = None, near=()):
+    """The engine's QualificationFacts for a test record (ValueError if the record cannot be read); runs are the
+    welder's continuity runs of the record's process, near the dates of use loaded around the day."""
     on = on or timezone.localdate()
     return engine.QualificationFacts(
         process=qualification.process,
@@ -174,7 +201,7 @@ def facts(qualification: Qualification, uses: list[date] | None = None, on: date
         test_date=qualification.test_date,
         passed=qualification.result == Qualification.Result.PASS,
         electrode=qualification.electrode or None,
-        last_use_of_process=_last_use(qualification, uses or [], on),
+        last_use_of_process=_last_use(qualification, runs or [], list(near), on),
         code=qualification.code,
         welder=qualification.welder.stamp if _welder_cached(qualification) else "",
         iso_revalidation=qualification.iso_revalidation or None,
@@ -195,7 +222,7 @@ def _facts_for(welder: Welder, records: _Records, on: date):
     for q in records.qualifications:
         q.welder = welder  # already loaded: label records by stamp without another query
         try:
-            good.append((q, facts(q, records.uses.get(q.process, []), on)))
+            good.append((q, facts(q, records.runs.get(q.process, []), on, records.near.get(q.process, ()))))
         except ValueError as exc:
             bad.append((q, f"Test record of {q.test_date.isoformat()} ({q.process} {q.test_position}) cannot be "
                            f"read: {exc}"))
@@ -298,7 +325,7 @@ def check_welder(welder: Welder, weld_or_demand, on: date | None = None) -> engi
     demands, refusal = _demands_or_refusal(weld_or_demand)
     if refusal:
         return refusal
-    return _check(welder, _load([welder])[welder.pk], demands, on)
+    return _check(welder, _load([welder], [on])[welder.pk], demands, on)
 
 
 @dataclass(frozen=True)
@@ -347,7 +374,7 @@ def check_welds(welds, on: date | None = None) -> dict[int, WeldCheck]:
     prefetch_related_objects([w for w in welds if not _m2m_cached(w)], "welders")
     prefetch_related_objects([w for w in welds if not type(w).wps.is_cached(w)], "wps")
     welders = [welder for weld in welds for welder in weld.welders.all()]
-    records = _load(welders)
+    records = _load(welders, {_day(on, weld) for weld in welds})
     result = {}
     for weld in welds:
         day = _day(on, weld)
@@ -375,7 +402,7 @@ def check_work(works) -> dict[object, WeldCheck]:
     """Every welder of every piece of work on its own day: {work.key: WeldCheck}, two queries for the welders'
     test records and continuity whatever the number of works (none when those are prefetched)."""
     works = list(works)
-    records = _load([welder for work in works for welder in work.welders])
+    records = _load([welder for work in works for welder in work.welders], {work.on for work in works})
     result, memo = {}, {}
     for work in works:
         demands, refusal = _demands_or_refusal(work.weld)
@@ -396,7 +423,7 @@ def eligible_welders(weld_or_demand, welders=None, on: date | None = None) -> li
         welders = Welder.objects.filter(active=True)
     welders = list(welders)
     demands, refusal = _demands_or_refusal(weld_or_demand)
-    records = _load(welders) if refusal is None else {}
+    records = _load(welders, [on]) if refusal is None else {}
     checks = [WelderCheck(w, refusal or _check(w, records[w.pk], demands, on)) for w in welders]
     return sorted(checks, key=lambda c: (not c.allowed, c.welder.stamp))
 
@@ -432,14 +459,14 @@ def _status(welder: Welder, records: _Records, on: date, warn_days: int) -> Weld
 def welder_status(welder: Welder, on: date | None = None, warn_days: int = WARN_DAYS) -> WelderStatus:
     """Qualified (in continuity), lapsing within warn_days, lapsed, inactive or untested, on a day (default today)."""
     on = on or timezone.localdate()
-    return _status(welder, _load([welder])[welder.pk], on, warn_days)
+    return _status(welder, _load([welder], [on])[welder.pk], on, warn_days)
 
 
 def welder_statuses(welders, on: date | None = None, warn_days: int = WARN_DAYS) -> dict[int, WelderStatus]:
     """welder_status for many welders: two queries (none when qualifications and continuity are prefetched)."""
     on = on or timezone.localdate()
     welders = list(welders)
-    records = _load(welders)
+    records = _load(welders, [on])
     return {w.pk: _status(w, records[w.pk], on, warn_days) for w in welders}
 
 
@@ -462,7 +489,8 @@ def record_production(weld) -> list[ContinuityEntry]:
             return []
         welder_ids = set(weld.welders.values_list("pk", flat=True))
         existing.exclude(welder_id__in=welder_ids, process=wps.process).delete()
-        existing.filter(process=wps.process).exclude(date=weld.welded_on).update(date=weld.welded_on)
+        if existing.filter(process=wps.process).exclude(date=weld.welded_on).update(date=weld.welded_on):
+            continuity.refresh(welder_ids)  # a queryset update sends no signal: keep the runs in step here
         have = set(existing.filter(process=wps.process).values_list("welder_id", flat=True))
         for welder_id in sorted(welder_ids - have):
             try:

@@ -12,7 +12,7 @@ from core import history, units
 from core.vocabulary import JointType, Process
 from procedures import eligibility
 from procedures.electrodes import decode
-from procedures.models.welders import ContinuityEntry, Qualification, Welder
+from procedures.models.welders import ContinuityEntry, ContinuityRun, Qualification, Welder
 from procedures.models.wps import WPS, WPSState
 
 
@@ -162,30 +162,38 @@ def pqr_rows(pqr):
 
 # --- welders ------------------------------------------------------------------------------------------
 
-def welder_with_records(pk):
-    """One welder with everything its page shows, in a fixed number of queries."""
-    queryset = Welder.objects.prefetch_related(
-        Prefetch("qualifications", queryset=Qualification.objects.select_related("wps", "recorded_by")
-                 .order_by("-test_date", "-pk")),
-        Prefetch("continuity", queryset=ContinuityEntry.objects.select_related(
-            "weld__assembly__job", "entered_by").order_by("-date", "-pk")),
-    )
-    return queryset.get(pk=pk)
+def welder_with_records(pk, continuity=True):
+    """One welder with everything its page shows, in a fixed number of queries; continuity=False leaves the
+    continuity history out (the page shows it a page at a time: welder_context(continuity=...))."""
+    prefetches = [Prefetch("qualifications", queryset=Qualification.objects.select_related("wps", "recorded_by")
+                           .order_by("-test_date", "-pk")),
+                  Prefetch("continuity_runs", queryset=ContinuityRun.objects.order_by("-last_use"))]
+    if continuity:
+        prefetches.append(Prefetch("continuity", queryset=continuity_entries()))
+    return Welder.objects.prefetch_related(*prefetches).get(pk=pk)
 
 
-def welder_context(welder):
-    """What the welder page and the printed qualification summary show."""
+def continuity_entries():
+    """Continuity entries newest first, with what their lines print."""
+    return ContinuityEntry.objects.select_related("weld__assembly__job", "entered_by").order_by("-date", "-pk")
+
+
+def welder_context(welder, continuity=None):
+    """What the welder page and the printed qualification summary show; continuity: the entries to list (default
+    every one, as the printed summary lists them)."""
     today = timezone.localdate()
     status = eligibility.welder_status(welder, on=today)
     by_pk = {r.qualification.pk: r for r in status.records}
     tests = [{"q": q, "ranges": eligibility.describe(q), "status": by_pk[q.pk].status,
               "thickness": eligibility.length_text(q.test_thickness, q.unit_system)}
              for q in welder.qualifications.all()]
+    entries = list(welder.continuity.all() if continuity is None else continuity)
     return {
         "welder": welder, "status": status, "tests": tests, "today": today,
+        "runs": list(welder.continuity_runs.all()),
         # (entry, link, hidden): core.visibility.continuity_for hides other customers' jobs from a viewer
-        "continuity": [(entry, weld_url(entry.weld), False) for entry in welder.continuity.all()],
-        "history": history.panel(welder, *welder.qualifications.all(), *welder.continuity.all()),
+        "continuity": [(entry, weld_url(entry.weld), False) for entry in entries],
+        "history": history.panel(welder, *welder.qualifications.all(), *entries),
         "history_mixed": True,
     }
 

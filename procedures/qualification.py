@@ -296,6 +296,21 @@ def continuity_until(last_use, code=AWS) -> date:
     return add_months(_plain_date(last_use, "Last use of the process"), CONTINUITY_MONTHS)
 
 
+def continuity_runs(days) -> list[tuple[date, date]]:
+    """The unbroken runs in a welder's uses of one process: [(first use, last use)], oldest first.
+
+    Within a run each use falls on or before continuity_until of the use before it (same rule and source as
+    continuity_until: six calendar months, both codes); a longer gap starts a new run. A qualification's chain of
+    continuity therefore lives in at most one run: the one that holds its test date, or the first one after it."""
+    runs: list[list[date]] = []
+    for day in sorted(set(days)):
+        if runs and day <= continuity_until(runs[-1][1]):
+            runs[-1][1] = day
+        else:
+            runs.append([day, day])
+    return [(first, last) for first, last in runs]
+
+
 # ISO 9606-1:2012 9.3 revalidation routes (published): months until revalidation is due; None = no fixed date.
 ISO_REVALIDATION_MONTHS = {
     "a": 36,  # a) a new test every 3 years

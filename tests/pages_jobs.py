@@ -41,6 +41,8 @@ PAGES = {
     "inspections:weldmap_import": (_job, MANAGERS),
     "inspections:weldmap_export": (_job, ALL_OK),
     "inspections:assembly_find": (lambda make: {}, ALL_OK),
+    "inspections:assembly_list": (lambda make: {}, ALL_OK),
+    "inspections:inspection_list": (lambda make: {}, ALL_OK),
     "inspections:assembly_detail": (_assembly, ALL_OK),
     "inspections:weld_create": (_assembly, MANAGERS),
     "inspections:weld_check": (_assembly, RECORDERS),

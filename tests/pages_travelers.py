@@ -77,6 +77,8 @@ def _packet(make, done=False):
 
 PAGES = {
     "inspections:traveler_list": (lambda make: {"pk": make.make_assembly().pk}, ALL_OK),
+    "inspections:traveler_index": (lambda make: {}, ALL_OK),
+    "inspections:packet_index": (lambda make: {}, ALL_OK),
     "inspections:traveler_download": (lambda make: {"pk": _issued(make).pk}, ALL_OK),
     "inspections:traveler_sha256": (lambda make: {"pk": _issued(make).pk}, ALL_OK),
     "inspections:packet_list": (lambda make: {"pk": make.make_job().pk}, ALL_OK),

@@ -75,7 +75,7 @@ def test_a_database_failure_inside_a_view_is_the_same_503(signed_in, monkeypatch
     def broken(*args, **kwargs):
         raise OperationalError("database is locked")
 
-    monkeypatch.setattr(job_views.weldmap_csv, "export_weld_map", broken)
+    monkeypatch.setattr(job_views.weldmap_csv, "export_lines", broken)
     response = client.get(reverse("inspections:weldmap_export", args=[job.pk]))
     assert response.status_code == 503 and "nothing you sent was saved" in response.content.decode()
 
@@ -239,7 +239,7 @@ def test_an_unexpected_failure_is_a_branded_500_without_detail(signed_in, monkey
     def broken(*args, **kwargs):
         raise RuntimeError("secret internal detail at /srv/legwork/settings.py")
 
-    monkeypatch.setattr(job_views.weldmap_csv, "export_weld_map", broken)
+    monkeypatch.setattr(job_views.weldmap_csv, "export_lines", broken)
     response = signed_in("inspector").get(reverse("inspections:weldmap_export", args=[job.pk]))
     text = response.content.decode()
     assert response.status_code == 500 and "Something went wrong" in text and "secret" not in text and _plain(text)

@@ -119,9 +119,11 @@ def test_the_ncr_page_reads_a_fixed_number_of_queries(make, weld, client_as, dja
         assert client.get(url).status_code == 200
 
 
-# session, user, the NCR with its weld, assembly, job, WPS, inspection and people, its history, and the repair WPS
-# list and welder list of the disposition forms (the capacity card reads what is loaded)
-NCR_PAGE_OPEN = 7
-# dispositioned for repair: no disposition forms, but the repair record and the form to record it (its WPS and
-# welder lists)
-NCR_PAGE_DISPOSITIONED = 7
+# session, user, the NCR with its weld, assembly, job, WPS, inspection and people, its history, and the repair
+# choices of the disposition forms (inspections.services.repairs.repair_choices: the approved WPSs that cover the
+# weld, their successors when any, the welders qualified for it; an empty choice list asks nothing more)
+NCR_PAGE_OPEN = 6
+# dispositioned for repair: no disposition forms, but the repair record and the form to record it, offering the
+# covering WPSs (two queries) and the welders qualified for the repair (active welders, their tests, their
+# continuity runs and the entries near today), then its two lists
+NCR_PAGE_DISPOSITIONED = 12

@@ -151,3 +151,30 @@ def test_the_disposition_names_a_wps_that_covers_the_weld(make, users):
     with pytest.raises(Refused) as refused:
         disposition_repair(ncr, users["qa_lead"], flat, make.make_qualified_welder())
     assert "position OH" in refused.value.message_dict["repair_wps"][0]
+
+
+def test_the_repair_forms_offer_only_covering_procedures_and_qualified_welders_in_fixed_queries(
+        client_as, make, users, ncr):
+    from django.db import connection
+    from django.test.utils import CaptureQueriesContext
+
+    client = client_as("inspector")
+    url = reverse("inspections:ncr_detail", args=[ncr.pk])
+
+    def offered():
+        with CaptureQueriesContext(connection) as ctx:
+            form = client.get(url).context["repair_form"]
+        return ({w.pk for w in form.fields["wps"].queryset}, {w.pk for w in form.fields["welders"].queryset},
+                len(ctx.captured_queries))
+
+    wps_ids, welder_ids, queries = offered()
+    assert ncr.repair_wps_id in wps_ids and ncr.repair_welder_id in welder_ids
+    groove_only = make.make_wps(state=WPSState.APPROVED, positions="OH")  # does not cover a weld made flat
+    untested = make.make_welder(stamp="B-81")
+    for _ in range(5):
+        make.make_wps(state=WPSState.APPROVED)
+        make.make_qualified_welder()
+    more_wps, more_welders, more_queries = offered()
+    assert groove_only.pk not in more_wps and untested.pk not in more_welders
+    assert len(more_wps) == len(wps_ids) + 5 and len(more_welders) == len(welder_ids) + 5
+    assert more_queries == queries

@@ -60,7 +60,7 @@ def test_the_list_takes_a_fixed_number_of_queries(client_as, make, django_assert
     with django_assert_num_queries(5):  # session, user, welders, their tests, their continuity
         response = client.get(url("welder_list"))
     assert response.status_code == 200
-    assert len(response.context["rows"]) == n
+    assert len(response.context["page"]) == n
 
 
 def test_the_list_shows_each_state_and_filters_by_it(client_as, make, users):
@@ -77,15 +77,20 @@ def test_the_list_shows_each_state_and_filters_by_it(client_as, make, users):
 
     def stamps(**params):
         response = client.get(url("welder_list"), params)
-        return {row.welder.stamp: row.state for row in response.context["rows"]}
+        return {row.welder.stamp: row.state for row in response.context["page"]}
 
     assert stamps() == {"S-01": "qualified", "S-02": "lapsing", "S-03": "lapsed", "S-04": "untested"}
     assert stamps(state="lapsing") == {"S-02": "lapsing"}
-    assert stamps(active="no") == {"S-05": "inactive"}
-    assert set(stamps(active="all")) == {"S-01", "S-02", "S-03", "S-04", "S-05"}
+    assert stamps(active="0") == {"S-05": "inactive"}
+    assert set(stamps(active="")) == {"S-01", "S-02", "S-03", "S-04", "S-05"}
+    # the list contract's words: current, lapsing (within 30 days), lapsed
+    assert stamps(continuity="current") == {"S-01": "qualified"}
+    assert stamps(continuity="lapsing") == {"S-02": "lapsing"}
+    assert stamps(continuity="lapsed") == {"S-03": "lapsed"}
     assert set(stamps(process="FCAW")) == {"S-01", "S-02", "S-03"}
     assert set(stamps(process="SMAW")) == set()
-    assert stamps(state="nonsense", process="<script>", active="maybe") == stamps()  # bad filters are ignored
+    # bad filters are ignored
+    assert stamps(state="nonsense", process="<script>", active="maybe", continuity="x", o="?") == stamps()
 
 
 # --- detail ---------------------------------------------------------------------------------------------------

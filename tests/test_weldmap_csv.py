@@ -183,7 +183,8 @@ def test_the_export_downloads_as_csv(client_as, job):
     assert response["Content-Type"].startswith("text/csv")
     assert 'filename="weld-map-J-8800.csv"' in response["Content-Disposition"]
     # the export writes every column, the throat a included; files without it (HEADER) still import
-    assert response.content.decode().startswith(",".join(weldmap_csv.COLUMNS) + "\r\n")
+    assert response.streaming  # rows go out as they are read (core.lists.stream_csv)
+    assert b"".join(response.streaming_content).decode().startswith(",".join(weldmap_csv.COLUMNS) + "\r\n")
 
 
 # --- ISO drawings give the throat a, the leg z, or both (issue 15) -------------------------------------------

@@ -68,8 +68,8 @@ def test_the_list_runs_a_fixed_number_of_queries(client_as, make, django_assert_
         wps_steps.submit(wps, make.make_user("welding_engineer"))
         wps_steps.approve(wps, approver)
     client = client_as("inspector")
-    # session, user, count, page of rows (approver joined), distinct electrodes
-    with django_assert_num_queries(5):
+    # session, user, count, page of rows (approver joined): core.lists
+    with django_assert_num_queries(4):
         response = client.get(reverse("procedures:wps_list"))
     assert response.status_code == 200
 

@@ -330,10 +330,22 @@ class RepairForm(forms.Form):
     disposition_notes = forms.CharField(label="Repair instructions", widget=forms.Textarea(attrs={"rows": 3}),
                                         max_length=2000)
 
-    def __init__(self, *args, **kwargs):
+    def __init__(self, *args, choices=None, **kwargs):
+        """choices: (WPSs, welders) to offer (inspections.services.repairs.repair_choices); default every approved
+        WPS and active welder."""
         super().__init__(*args, **kwargs)
-        self.fields["repair_wps"].queryset = WPS.objects.approved().order_by("number", "-revision")
-        self.fields["repair_welder"].queryset = Welder.objects.filter(active=True).order_by("stamp")
+        wps, welders = _offered(choices, WPS.objects.approved(), Welder.objects.filter(active=True))
+        self.fields["repair_wps"].queryset = wps.order_by("number", "-revision")
+        self.fields["repair_welder"].queryset = welders.order_by("stamp")
+
+
+def _offered(choices, wps, welders, keep=()):
+    """Narrow the WPS and welder querysets to the offered ones (and the ones already named, `keep`)."""
+    if choices is None:
+        return wps, welders
+    wps_ids = {w.pk for w in choices[0]} | {pk for pk in keep[:1] if pk}
+    welder_ids = {w.pk for w in choices[1]} | {pk for pk in keep[1:] if pk}
+    return wps.filter(pk__in=wps_ids), welders.filter(pk__in=welder_ids)
 
 
 class RepairRecordForm(forms.Form):
@@ -346,11 +358,13 @@ class RepairRecordForm(forms.Form):
     notes = forms.CharField(label="What was done", widget=forms.Textarea(attrs={"rows": 2}), max_length=2000,
                             required=False)
 
-    def __init__(self, *args, ncr=None, **kwargs):
+    def __init__(self, *args, ncr=None, choices=None, **kwargs):
         super().__init__(*args, **kwargs)
-        self.fields["wps"].queryset = WPS.objects.exclude(state__in=[WPSState.DRAFT, WPSState.SUBMITTED]).order_by(
-            "number", "-revision")
-        self.fields["welders"].queryset = Welder.objects.filter(active=True).order_by("stamp")
+        keep = (ncr.repair_wps_id, ncr.repair_welder_id) if ncr is not None else ()
+        wps, welders = _offered(choices, WPS.objects.exclude(state__in=[WPSState.DRAFT, WPSState.SUBMITTED]),
+                                Welder.objects.filter(active=True), keep)
+        self.fields["wps"].queryset = wps.order_by("number", "-revision")
+        self.fields["welders"].queryset = welders.order_by("stamp")
         if ncr is not None and not self.is_bound:
             self.initial.update(wps=ncr.repair_wps_id, welders=[ncr.repair_welder_id] if ncr.repair_welder_id else [],
                                 welded_on=timezone.localdate())

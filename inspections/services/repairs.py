@@ -97,3 +97,38 @@ def record_repair(ncr, user, *, wps, welders, welded_on, notes=""):
         eligibility.record_repair(repair)
     ncr.refresh_from_db()
     return repair
+
+
+# --- what the repair forms offer ---------------------------------------------------------------------------------
+
+CHOICES = 40  # how many covering WPSs and qualified welders a repair form lists at most (a bounded list)
+
+
+def repair_choices(ncr, on=None, wps=None):
+    """(WPSs, welders) a repair of the NCR's weld may name on `on` (default today): approved WPSs that cover the
+    weld (chain.wps_check, of the same code as the weld's WPS when it has one) and active welders qualified and in
+    continuity for the weld made to `wps` (default the NCR's repair WPS, else the weld's own). At most CHOICES
+    each, in number and stamp order; the step checks whatever is sent again (repair_problems), so the list only
+    spares the QA lead the 500 procedures and 200 welders that cannot be used."""
+    from procedures.models import WPS, Welder
+
+    on = on or timezone.localdate()
+    weld, job = ncr.weld, ncr.weld.assembly.job
+    candidates = WPS.objects.approved().order_by("number", "-revision")
+    if weld.wps_id is not None:
+        candidates = candidates.filter(code=weld.wps.code)
+    candidates = list(candidates)  # two queries whatever the number of procedures (this and their successors)
+    chain.prime_successors(candidates)
+    covering = []
+    for candidate in candidates:
+        if not chain.wps_check(weld, candidate, job, on).errors:
+            covering.append(candidate)
+            if len(covering) == CHOICES:
+                break
+    target = wps or ncr.repair_wps or weld.wps
+    welders = []
+    if target is not None:
+        checks = eligibility.eligible_welders(chain.repaired_weld(weld, target, on),
+                                              Welder.objects.filter(active=True).order_by("stamp"), on)
+        welders = [c.welder for c in checks if c.allowed][:CHOICES]
+    return covering[:CHOICES], welders

@@ -10,14 +10,15 @@ formula (OWASP "CSV injection": a leading = + - @, tab or carriage return gets a
 
 import csv
 import io
+import itertools
 from dataclasses import dataclass, field
 
 from django.db import IntegrityError, transaction
 from django.utils import timezone
 
-from core import history
+from core import history, lists
 from core.errors import Refused
-from core.fields import LengthFormField
+from core.fields import exact_length_text
 from core.vocabulary import WELD_PROCESS_CHOICES
 from inspections.forms.jobs import WeldSpecForm
 from inspections.models import Assembly, Weld
@@ -39,6 +40,7 @@ PROCESSES = {value.upper(): value for value, _ in WELD_PROCESS_CHOICES}
 MAX_BYTES = 1024 * 1024
 MAX_ROWS = 5000
 MAX_CELL = 200
+SHOWN_BAD = 200  # rows with problems listed on the preview page; the summary counts them all
 FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 
 
@@ -65,6 +67,21 @@ class Preview:
     @property
     def bad_rows(self):
         return [r for r in self.rows if r.errors]
+
+    @property
+    def shown_bad_rows(self):
+        """The rows with problems a preview page lists (the first SHOWN_BAD; the count says how many more)."""
+        return self.bad_rows[:SHOWN_BAD]
+
+    @property
+    def summary(self):
+        """[(piece mark, welds ready, rows with problems)] in file order: the preview's summary of the whole file."""
+        found = {}
+        for row in self.rows:
+            piece = row.values.get("piece_mark", "")
+            ready, bad = found.get(piece, (0, 0))
+            found[piece] = (ready, bad + 1) if row.errors else (ready + 1, bad)
+        return [(piece, ready, bad) for piece, (ready, bad) in found.items()]
 
 
 def _decode(data: bytes) -> str:
@@ -232,20 +249,34 @@ def _safe(value) -> str:
     return "'" + text if text.startswith(FORMULA_STARTS) else text
 
 
+EXPORT_FIELDS = ("assembly__piece_mark", "mark", "joint_type", "size", "size_on_drawing", "size2", "throat", "length",
+                 "count", "sides", "thickness1", "thickness2", "position", "wps__number", "process")
+
+
+def export_lines(job):
+    """The job's weld map as CSV lines in the import's shape, lengths in the job's system: read with values_list in
+    chunks (no model objects) and each distinct length formatted once (core.fields.exact_length_text), so a
+    100,000-weld export streams at steady memory."""
+    system = job.unit_system
+    welds = (Weld.objects.filter(assembly__job=job).order_by("assembly__piece_mark", "mark")
+             .values_list(*EXPORT_FIELDS).iterator(chunk_size=lists.CSV_CHUNK))
+
+    def text(length):
+        return exact_length_text(length, system) if length is not None else ""
+
+    first = next(welds, None)  # the query runs now: a database that fails answers 503 before the response starts
+
+    def rows():
+        for piece, mark, joint, size, drawn, size2, throat, length, count, sides, t1, t2, position, wps, process \
+                in itertools.chain([first] if first else [], welds):
+            leg_drawn = drawn or throat is None  # a leg derived from the throat is not exported
+            # only the typed text (marks, WPS number) can start like a formula; lengths and choices cannot
+            yield [_safe(piece), _safe(mark), joint, text(size) if leg_drawn else "", text(size2), text(throat),
+                   text(length), count, sides, text(t1), text(t2), position, _safe(wps), process]
+
+    return lists.csv_lines(COLUMNS, rows())
+
+
 def export_weld_map(job) -> str:
-    """The job's weld map as CSV text in the import's shape, lengths in the job's system."""
-    length = LengthFormField(system=job.unit_system)
-    welds = (Weld.objects.filter(assembly__job=job).select_related("assembly", "wps")
-             .order_by("assembly__piece_mark", "mark"))
-    out = io.StringIO()
-    writer = csv.writer(out, lineterminator="\r\n")
-    writer.writerow(COLUMNS)
-    for weld in welds:
-        leg_drawn = weld.size_on_drawing or weld.throat is None  # a leg derived from the throat is not exported
-        writer.writerow([_safe(v) for v in (
-            weld.assembly.piece_mark, weld.mark, weld.joint_type, length.prepare_value(weld.size) if leg_drawn else "",
-            length.prepare_value(weld.size2) if weld.size2 else "",
-            length.prepare_value(weld.throat) if weld.throat else "", length.prepare_value(weld.length), weld.count,
-            weld.sides, length.prepare_value(weld.thickness1), length.prepare_value(weld.thickness2), weld.position,
-            weld.wps.number if weld.wps else "", weld.process)])
-    return out.getvalue()
+    """The whole export as one text (tests, small jobs); pages stream export_lines."""
+    return "".join(export_lines(job))

@@ -108,7 +108,7 @@ def _weld(request, pk, related=WELD_RELATED):
 def _batch_of(weld, request):
     """The identical welds of the same assembly named by ?with=pk,pk (GET) or the posted 'with' (POST)."""
     raw = request.POST.get("with") if request.method == "POST" else request.GET.get("with")
-    ids = [int(part) for part in (raw or "").split(",") if part.strip().isdigit()][:50]
+    ids = [int(part) for part in (raw or "").split(",") if part.strip().isdigit() and len(part.strip()) <= 18][:50]
     if not ids:
         return []
     others = [w for w in Weld.objects.filter(assembly_id=weld.assembly_id, pk__in=ids).exclude(pk=weld.pk)

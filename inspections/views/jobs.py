@@ -5,13 +5,13 @@ from dataclasses import dataclass
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
 from django.db import transaction
-from django.db.models import Count, Q
-from django.http import HttpResponse
+from django.db.models import Count, F, OuterRef, Subquery
+from django.db.models.functions import Coalesce
 from django.shortcuts import get_object_or_404, redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
-from core import history
+from core import history, lists
 from core.errors import Refused, Stale
 from core.inputs import parse_id
 from core.roles import can, role_required
@@ -29,7 +29,8 @@ from inspections.forms.jobs import (
     WeldRevisionForm,
     add_step_errors,
 )
-from inspections.models import Assembly, Job, Weld
+from inspections.lists import JOB_COLUMNS, JobFilter
+from inspections.models import NCR, Assembly, Job, Weld
 from inspections.models.ncr import NCRState
 from inspections.services import assemblies as steps
 from inspections.services import chain, weldmap_csv
@@ -40,15 +41,27 @@ from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
 
+def _count(queryset):
+    """A correlated COUNT subquery: worked out only for the rows of the page shown, never for every row."""
+    return Coalesce(Subquery(queryset.order_by().values("assembly").annotate(n=Count("pk")).values("n")), 0)
+
+
+def _weld_count():
+    return _count(Weld.objects.filter(assembly=OuterRef("pk")))
+
+
 def _open_ncr_count():
-    return Count("welds__ncrs", filter=~Q(welds__ncrs__state=NCRState.CLOSED), distinct=True)
+    return _count(NCR.objects.filter(weld__assembly=OuterRef("pk")).exclude(state=NCRState.CLOSED)
+                  .annotate(assembly=F("weld__assembly")))
 
 
 @require_safe
 def job_list(request):
     jobs = visible(request.user, Job.objects.select_related("client_criteria", "customer")).annotate(
-        n_assemblies=Count("assemblies", distinct=True))
-    return render(request, "inspections/job_list.html", {"jobs": jobs, "search": PieceMarkSearchForm()})
+        n_assemblies=Count("assemblies", distinct=True)).order_by("number")
+    return lists.list_page(request, JobFilter(request.GET, queryset=jobs, request=request),
+                           "inspections/job_list.html", {"search": PieceMarkSearchForm()},
+                           columns=JOB_COLUMNS, filename="jobs.csv")
 
 
 @role_required("job.manage")
@@ -80,14 +93,14 @@ def job_edit(request, pk):
 def job_detail(request, pk):
     job = get_visible_or_404(request.user, Job.objects.select_related("client_criteria", "customer"), pk=pk)
     search = PieceMarkSearchForm(request.GET or None)
-    assemblies = (job.assemblies.annotate(n_welds=Count("welds", distinct=True), n_open_ncrs=_open_ncr_count())
-                  .order_by("piece_mark"))
+    assemblies = job.assemblies.order_by("piece_mark")
     query = search.cleaned_data["q"].strip() if search.is_valid() else ""
     if query:
         assemblies = assemblies.filter(piece_mark__icontains=query)
+    page = lists.paginate(request, assemblies.annotate(n_welds=_weld_count(), n_open_ncrs=_open_ncr_count()))
     return render(request, "inspections/job_detail.html",
-                  {"job": job, "assemblies": assemblies, "search": search, "query": query,
-                   "history": history.panel(job)})
+                  {"job": job, "page": page, "search": search, "query": lists.query_without(request, "page"),
+                   "q": query, "history": history.panel(job)})
 
 
 @require_safe
@@ -425,7 +438,5 @@ def weldmap_import(request, pk):
 @require_safe
 def weldmap_export(request, pk):
     job = get_visible_or_404(request.user, Job, pk=pk)
-    response = HttpResponse(weldmap_csv.export_weld_map(job), content_type="text/csv; charset=utf-8")
     safe_number = "".join(c if c.isalnum() or c in "-_" else "_" for c in job.number)
-    response["Content-Disposition"] = f'attachment; filename="weld-map-{safe_number}.csv"'
-    return response
+    return lists.stream_csv(weldmap_csv.export_lines(job), f"weld-map-{safe_number}.csv")

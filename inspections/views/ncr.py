@@ -6,12 +6,13 @@ from django.http import Http404
 from django.shortcuts import redirect, render
 from django.views.decorators.http import require_POST, require_safe
 
-from core import history
+from core import history, lists
 from core.errors import Refused
-from core.roles import role_required
+from core.roles import can, role_required
 from core.visibility import get_visible_or_404, visible
 from core.vocabulary import JointType
 from inspections.forms.jobs import RepairForm, RepairRecordForm, ScrapForm, UseAsIsForm, add_step_errors
+from inspections.lists import NCR_COLUMNS, NCRFilter
 from inspections.models import NCR, WeldRepair
 from inspections.models.ncr import Disposition, NCRState
 from inspections.services import ncr as ncr_steps
@@ -23,14 +24,17 @@ FORMS = {"repair": RepairForm, "use_as_is": UseAsIsForm, "scrap": ScrapForm}
 
 @require_safe
 def ncr_list(request):
-    show = request.GET.get("show", "open")
+    """Open NCRs first (then newest), filtered per the list contract; without a state asked, show=all adds the
+    closed ones."""
     ncrs = (visible(request.user, NCR.objects.select_related("weld__assembly__job", "raised_by"))
             .annotate(open_first=Case(When(state=NCRState.CLOSED, then=Value(1)), default=Value(0),
                                       output_field=IntegerField()))
             .order_by("open_first", "-raised_at", "-pk"))
+    show = "all" if request.GET.get("show") == "all" or request.GET.get("state") else "open"
     if show != "all":
         ncrs = ncrs.exclude(state=NCRState.CLOSED)
-    return render(request, "inspections/ncr_list.html", {"ncrs": ncrs, "show": show})
+    return lists.list_page(request, NCRFilter(request.GET, queryset=ncrs, request=request),
+                           "inspections/ncr_list.html", {"show": show}, columns=NCR_COLUMNS, filename="ncrs.csv")
 
 
 def _description(ncr, findings) -> list[str]:
@@ -54,14 +58,19 @@ def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
         if event.reason and event.reason.strip() == ncr.description.strip():
             event.reason = "raised with the description above"  # shown, never saved: the record keeps it all
     system = ncr.weld.assembly.job.unit_system
+    # the repair forms offer the WPSs that cover the weld and the welders qualified for it (a bounded list)
+    wanted = ((ncr.state == NCRState.OPEN and can(request.user, "ncr.disposition"))
+              or (awaiting_repair and repair_steps.may_record(request.user)))
+    choices = repair_steps.repair_choices(ncr) if wanted else None
     context = {
         "repair": repair, "awaiting_repair": awaiting_repair,
         "may_record_repair": repair_steps.may_record(request.user),
-        "repair_form": repair_form or (RepairRecordForm(ncr=ncr) if awaiting_repair else None),
+        "repair_form": repair_form or (RepairRecordForm(ncr=ncr, choices=choices) if awaiting_repair else None),
         "ncr": ncr, "weld": ncr.weld, "assembly": ncr.weld.assembly, "job": ncr.weld.assembly.job,
         "history": events, "description": _description(ncr, findings),
         "capacities": capacity_cards(ncr=ncr) if ncr.weld.joint_type == JointType.FILLET else [],
-        "forms": {kind: forms.get(kind) or cls(prefix=kind) for kind, cls in FORMS.items()},
+        "forms": {kind: forms.get(kind) or cls(prefix=kind, **({"choices": choices} if kind == "repair" else {}))
+                  for kind, cls in FORMS.items()},
         "findings": findings, "recorded": ncr.inspection.recorded(system),
     }
     return render(request, "inspections/ncr_detail.html", context, status=status)

@@ -6,6 +6,7 @@ sends the stored bytes with their SHA-256 in the X-Content-SHA256 header.
 
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
+from django.db.models import OuterRef, Subquery
 from django.http import FileResponse, Http404, HttpResponse
 from django.shortcuts import redirect, render
 from django.views.decorators.http import require_POST, require_safe
@@ -85,12 +86,11 @@ def traveler_sha256(request, pk):
 # --- packets --------------------------------------------------------------------------------------------------
 
 def _packet_page(request, job, errors=None, chosen=None, status=200):
-    assemblies = list(job.assemblies.order_by("piece_mark"))
-    latest = {}
-    for traveler in Traveler.objects.filter(assembly__job=job).only("assembly_id", "revision", "document_number"):
-        if traveler.assembly_id not in latest or traveler.revision > latest[traveler.assembly_id].revision:
-            latest[traveler.assembly_id] = traveler
-    rows = [(a, latest.get(a.pk)) for a in assemblies]
+    # one row per assembly with its latest traveler's number (a subquery), never every revision of every traveler
+    latest = Traveler.objects.filter(assembly=OuterRef("pk")).order_by("-revision").values("document_number")[:1]
+    assemblies = list(job.assemblies.only("pk", "piece_mark", "state", "job_id")
+                      .annotate(traveler_number=Subquery(latest)).order_by("piece_mark"))
+    rows = [(a, {"document_number": a.traveler_number} if a.traveler_number else None) for a in assemblies]
     return render(request, "inspections/packet_list.html", {
         "job": job, "rows": rows, "errors": errors or [],
         "chosen": set(chosen) if chosen is not None else {a.pk for a in assemblies},

@@ -200,3 +200,25 @@ class ContinuityEntry(Guarded):
 
     def __str__(self):
         return f"{self.welder.stamp} {self.process} {self.date:%Y-%m-%d}"
+
+
+class ContinuityRun(models.Model):
+    """A welder's unbroken run of uses of a process (each within six months of the one before): a fact derived from
+    the continuity entries and kept with them in the same transaction by procedures.continuity, so the welder list
+    and every eligibility check read a few rows per welder and process rather than the whole history. The latest
+    run of a welder and process is its current continuity: last use and valid-until. Never edited by hand; rebuilt
+    from the entries whenever they change (procedures.continuity.refresh)."""
+
+    welder = models.ForeignKey(Welder, on_delete=models.CASCADE, related_name="continuity_runs")
+    process = models.CharField(max_length=8, choices=Process.choices)
+    first_use = models.DateField()
+    last_use = models.DateField()
+    valid_until = models.DateField(help_text="continuity_until(last_use): the last day the run keeps a test alive")
+
+    class Meta:
+        ordering = ["welder", "process", "first_use"]
+        constraints = [models.UniqueConstraint(fields=["welder", "process", "first_use"],
+                                               name="one_continuity_run_per_start")]
+
+    def __str__(self):
+        return f"{self.welder_id} {self.process} {self.first_use:%Y-%m-%d}..{self.last_use:%Y-%m-%d}"

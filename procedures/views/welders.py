@@ -18,64 +18,76 @@ from django.utils import timezone
 from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods, require_safe
 
-from core import faults
+from core import faults, lists
 from core.errors import Refused
 from core.pdf import pdf_response, render_pdf
 from core.roles import role_required
 from core.storage import files_or_nothing
 from core.visibility import continuity_for, get_visible_or_404, require_visible, visible
-from core.vocabulary import Process
 from procedures import eligibility, printing
 from procedures.eligibility import State
 from procedures.forms.welders import ContinuityForm, QualificationForm, ReasonForm, WeldCheckForm, WelderForm
+from procedures.lists import CONTINUITY, WelderFilter
 from procedures.models.welders import Qualification, Welder
 from procedures.services import welders as welder_steps
-
-ACTIVE_CHOICES = [("yes", "Active"), ("no", "Inactive"), ("all", "All")]
 
 
 def _welder(request, pk):
     require_visible(request.user, Welder, pk)
     try:
-        return printing.welder_with_records(pk)
+        return printing.welder_with_records(pk, continuity=False)
     except Welder.DoesNotExist:
         raise Http404("No such welder.")
 
 
 def _welder_context(request, welder):
-    context = printing.welder_context(welder)
+    """The welder page: its continuity history a page at a time (newest first), its runs in full."""
+    page = lists.paginate(request, printing.continuity_entries().filter(welder=welder))
+    context = printing.welder_context(welder, continuity=page.object_list)
     context["continuity"] = continuity_for(request.user, context["continuity"])
+    context.update(page=page, query=lists.query_without(request, "page"))
     return context
 
 
 @require_safe
 def welder_list(request):
-    filters = {"state": request.GET.get("state", ""), "process": request.GET.get("process", ""),
-               "active": request.GET.get("active", "yes")}
-    if filters["state"] not in dict(State.CHOICES):
-        filters["state"] = ""
-    if filters["process"] not in Process.values:
-        filters["process"] = ""
-    if filters["active"] not in dict(ACTIVE_CHOICES):
-        filters["active"] = "yes"
-    welders = visible(request.user, Welder.objects.prefetch_related("qualifications", "continuity"))
-    if filters["active"] != "all":
-        welders = welders.filter(active=filters["active"] == "yes")
+    """Welders with their state today, read from the continuity runs (a few rows a welder, whatever the history).
+
+    Search, process and active filter in the database; continuity (and state) are judged per welder from the runs,
+    so those two filter the judged rows before the page is cut (bounded by the number of welders, not entries)."""
+    data = request.GET.copy()
+    if data.get("active") not in ("1", "0", ""):
+        data["active"] = "1"  # the active list unless asked otherwise (active= shows all)
+    welders = visible(request.user, Welder.objects.prefetch_related("qualifications", "continuity_runs"))
+    filterset = WelderFilter(data, queryset=welders.order_by("stamp"))
     today = timezone.localdate()
-    statuses = eligibility.welder_statuses(welders, on=today)
-    rows = list(statuses.values())
-    if filters["process"]:
-        rows = [s for s in rows if filters["process"] in s.processes]
-    if filters["state"]:
-        rows = [s for s in rows if s.state == filters["state"]]
-    tally = {state: 0 for state, _ in State.CHOICES}
-    for status in statuses.values():
-        tally[status.state] += 1
-    counts = [(state, label, tally[state]) for state, label in State.CHOICES]
-    return render(request, "procedures/welder_list.html", {
-        "rows": rows, "filters": filters, "states": State.CHOICES, "processes": Process.choices,
-        "active_choices": ACTIVE_CHOICES, "counts": counts, "today": today, "warn_days": eligibility.WARN_DAYS,
-    })
+    cleaned = filterset.form.cleaned_data if filterset.is_valid() else {}
+    state = CONTINUITY.get(cleaned.get("continuity") or "") or (data.get("state") if data.get("state") in
+                                                                  dict(State.CHOICES) else "")
+    process = cleaned.get("process") or ""
+    tally = {value: 0 for value, _ in State.CHOICES}
+
+    def judged(queryset):
+        statuses = list(eligibility.welder_statuses(queryset, on=today).values())
+        for status in statuses:
+            tally[status.state] += 1
+        return [s for s in statuses if (not state or s.state == state)
+                and (not process or process in s.processes)]
+
+    if lists.wants_csv(request):
+        rows = judged(filterset.qs)
+        lines = lists.csv_lines(
+            ["Stamp", "Name", "Employer", "State", "Lapses on", "Processes"],
+            ([s.welder.stamp, s.welder.name, s.welder.employer, s.label,
+              s.lapses_on.isoformat() if s.lapses_on else "",
+              " ".join(f"{p} to {r.status.valid_until}" if r.status.valid_until else p
+                       for p, r in s.processes.items())] for s in rows))
+        return lists.stream_csv(lines, "welders.csv")
+    return lists.list_page(request, filterset, "procedures/welder_list.html", {
+        "states": State.CHOICES, "today": today, "warn_days": eligibility.WARN_DAYS, "state": state,
+        "counts": lambda: [(value, label, tally[value]) for value, label in State.CHOICES],
+        "active": data.get("active", ""),
+    }, columns=[], rows=judged)
 
 
 @role_required("welder.manage")

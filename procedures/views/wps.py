@@ -7,25 +7,21 @@ names its action in core.roles.
 
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
-from django.core.paginator import Paginator
-from django.db.models import Prefetch, Q
+from django.db.models import Prefetch
 from django.forms.utils import pretty_name
 from django.shortcuts import redirect, render
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
-from core import history
+from core import history, lists
 from core.errors import Refused
 from core.pdf import paper_for, pdf_response, render_pdf
 from core.roles import role_required
 from core.visibility import get_visible_or_404, visible
-from core.vocabulary import Process
 from procedures import printing
 from procedures.forms.wps import PQRForm, ReasonForm, WPSForm
+from procedures.lists import PQR_COLUMNS, WPS_COLUMNS, PQRFilter, WPSFilter
 from procedures.models.wps import PQR, WPS, WPSState
 from procedures.services import wps as wps_steps
-
-PAGE_SIZE = 25
-
 
 # --- helpers ---------------------------------------------------------------------------------------
 
@@ -52,31 +48,10 @@ def _refuse_unless_editable(request, wps):
 
 @require_safe
 def wps_list(request):
-    """All procedures, searchable by number, title and electrode; filtered by state, process, electrode, metal."""
-    wps = visible(request.user, WPS.objects.select_related("approved_by"))
-    q = request.GET.get("q", "").strip()[:80]
-    if q:
-        wps = wps.filter(Q(number__icontains=q) | Q(title__icontains=q) | Q(electrode__icontains=q))
-    filters = {
-        "state": request.GET.get("state", ""),
-        "process": request.GET.get("process", ""),
-        "electrode": request.GET.get("electrode", "").strip()[:40],
-        "base_metal": request.GET.get("base_metal", "").strip()[:80],
-    }
-    if filters["state"] in WPSState.values:
-        wps = wps.filter(state=filters["state"])
-    if filters["process"] in Process.values:
-        wps = wps.filter(process=filters["process"])
-    if filters["electrode"]:
-        wps = wps.filter(electrode__iexact=filters["electrode"])
-    if filters["base_metal"]:
-        wps = wps.filter(base_metals__icontains=filters["base_metal"])
-    page = Paginator(wps.order_by("number", "-revision"), PAGE_SIZE).get_page(request.GET.get("page"))
-    electrodes = visible(request.user, WPS.objects.order_by("electrode")).values_list("electrode", flat=True).distinct()
-    return render(request, "procedures/wps_list.html", {
-        "page": page, "q": q, "filters": filters, "states": WPSState.choices, "processes": Process.choices,
-        "electrodes": list(electrodes), "query": _query_without_page(request),
-    })
+    """All procedures: searchable by number, title and electrode; filtered by state, process, electrode, metal."""
+    wps = visible(request.user, WPS.objects.select_related("approved_by")).order_by("number", "-revision")
+    return lists.list_page(request, WPSFilter(request.GET, queryset=wps), "procedures/wps_list.html",
+                           columns=WPS_COLUMNS, filename="procedures.csv")
 
 
 @require_safe
@@ -250,11 +225,8 @@ def wps_pdf(request, pk):
 @require_safe
 def pqr_list(request):
     pqrs = visible(request.user, PQR.objects.order_by("number"))
-    q = request.GET.get("q", "").strip()[:80]
-    if q:
-        pqrs = pqrs.filter(Q(number__icontains=q) | Q(electrode__icontains=q) | Q(base_metal__icontains=q))
-    page = Paginator(pqrs, PAGE_SIZE).get_page(request.GET.get("page"))
-    return render(request, "procedures/pqr_list.html", {"page": page, "q": q, "query": _query_without_page(request)})
+    return lists.list_page(request, PQRFilter(request.GET, queryset=pqrs), "procedures/pqr_list.html",
+                           columns=PQR_COLUMNS, filename="pqrs.csv")
 
 
 @require_safe
@@ -264,12 +236,6 @@ def pqr_detail(request, pk):
     return render(request, "procedures/pqr_detail.html", {
         "pqr": pqr, "procedures": procedures, "rows": printing.pqr_rows(pqr), "history": history.panel(pqr),
         "in_use": any(p.state != WPSState.DRAFT for p in procedures)})
-
-
-def _query_without_page(request):
-    query = request.GET.copy()
-    query.pop("page", None)
-    return query.urlencode()
 
 
 @require_http_methods(["GET", "POST"])

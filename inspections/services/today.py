@@ -1,0 +1,397 @@
+"""Each role's morning page: what needs action today, every item a link to the filtered list or the record.
+
+    for_user(user, today=None) -> list[Section]
+
+inspector      welds waiting for the fit-up hold point and for final visual inspection, by job, oldest first,
+               overdue marked; the assemblies holding them, oldest first; repairs waiting for re-inspection
+welding eng.   procedure drafts (those the QA lead returned, with the reason); welds whose WPS does not apply
+QA lead        procedures waiting for approval; open NCRs by age with the oldest; assemblies waiting for release,
+               ready or blocked (with the first blocker); welders whose qualification lapses within 30 days or has
+               lapsed
+viewer         its jobs' progress (core.visibility: its customers' jobs only)
+
+Every figure is a database aggregate (Count, Min) over the visible rows, in a fixed number of queries whatever
+the number of records (tests/test_today.py pins the counts per role). Three questions need the engines and so run
+in Python, each over a bounded set loaded in a fixed number of queries: the release chain of the assemblies
+waiting for release (chain.check_assemblies), whether the WPS of each weld not yet finally inspected applies
+(chain.wps_checks), and each active welder's qualification status (procedures.eligibility.welder_statuses).
+The list links carry the GET parameters of the list-filter contract (docs/decisions/2026-12-05-morning-page.md).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from datetime import date, datetime, timedelta
+from urllib.parse import urlencode
+
+from django.db.models import Count, F, Min, OuterRef, Q, Subquery
+from django.urls import NoReverseMatch, reverse
+from django.utils import timezone
+
+from core.models import Event
+from core.roles import Role
+from core.visibility import sees_everything, visible
+from inspections.models import NCR, Assembly, AssemblyState, Job, Weld
+from inspections.models.jobs import CLOSED_STATES
+from inspections.models.ncr import Disposition, NCRState
+from procedures import eligibility
+from procedures.models import WPS, Welder
+from procedures.models.wps import WPSState
+
+# A weld waits "overdue" for inspection once it has waited more than this many working days (Monday to Friday)
+# since the day it was welded: common practice, no source (a shop inspects within a day or two of welding, so a
+# weld left longer holds up the assembly behind it). Overridable per call for tests and shops.
+OVERDUE_WORKING_DAYS = 2
+
+# Open NCRs are counted in these age bands (days since raised): common practice, no source.
+NCR_AGE_BANDS = ((0, 7), (8, 30), (31, None))
+
+SHOWN = 8  # the longest list of single records a section shows; the rest is behind its "all" link
+
+# The list pages of the list-filter contract that this branch does not have yet (another branch adds them): their
+# address under the inspections prefix, so the links already carry the agreed parameters.
+_PENDING_LISTS = {"inspections:assembly_list": "assemblies/", "inspections:inspection_list": "inspections/"}
+
+
+def list_url(name: str, **params) -> str:
+    """The address of a list page with its filter parameters (the list-filter contract), empty ones left out."""
+    try:
+        path = reverse(name)
+    except NoReverseMatch:
+        if name not in _PENDING_LISTS:
+            raise
+        path = reverse("inspections:job_list").removesuffix("jobs/") + _PENDING_LISTS[name]
+    query = urlencode([(k, v) for k, v in params.items() if v not in (None, "")])
+    return f"{path}?{query}" if query else path
+
+
+# --- working days ------------------------------------------------------------------------------------------------
+
+def working_days(since: date, today: date) -> int:
+    """Monday-to-Friday days after `since` up to and including `today` (0 for the same day or a later one)."""
+    return sum(1 for n in range(1, (today - since).days + 1) if (since + timedelta(days=n)).weekday() < 5)
+
+
+def overdue_before(today: date, limit: int = OVERDUE_WORKING_DAYS) -> date:
+    """The first day a weld may have been welded on and not be overdue today: anything welded before it has waited
+    more than `limit` working days."""
+    day = today
+    while working_days(day - timedelta(days=1), today) <= limit:
+        day -= timedelta(days=1)
+    return day
+
+
+# --- what the page shows -------------------------------------------------------------------------------------------
+
+@dataclass
+class Item:
+    """One line: words, a link, an optional figure, how long it has waited, whether it is overdue, a note."""
+
+    text: str
+    url: str
+    count: int | None = None
+    since: date | None = None
+    days: int | None = None
+    overdue: bool = False
+    note: str = ""
+    note_url: str = ""
+
+
+@dataclass
+class Section:
+    key: str
+    title: str
+    items: list[Item] = field(default_factory=list)
+    empty: str = "Nothing waiting."
+    total: int | None = None  # the figure in the heading
+    all_url: str = ""  # the whole filtered list
+    help: str = ""
+
+
+def for_user(user, today: date | None = None, overdue_days: int = OVERDUE_WORKING_DAYS) -> list[Section]:
+    today = today or timezone.localdate()
+    role = getattr(user, "role", None)
+    if role == Role.INSPECTOR:
+        return inspector(user, today, overdue_days)
+    if role == Role.WELDING_ENGINEER:
+        return engineer(user, today)
+    if role == Role.QA_LEAD or (user.is_superuser and sees_everything(user)):
+        return qa_lead(user, today)
+    return viewer(user, today)
+
+
+# --- inspector ---------------------------------------------------------------------------------------------------
+
+def _open_welds(user):
+    return visible(user, Weld.objects.exclude(assembly__state__in=CLOSED_STATES))
+
+
+def waiting_fit_up(user):
+    """Welds of a job with the fit-up hold point, not yet welded and with no inspection yet."""
+    return _open_welds(user).filter(assembly__job__fit_up_hold_point=True, welded_on__isnull=True,
+                                    latest_inspection__isnull=True)
+
+
+def waiting_final(user):
+    """Welds recorded as welded with no current final visual inspection yet."""
+    return _open_welds(user).filter(welded_on__isnull=False, latest_final__isnull=True)
+
+
+def _by_job(welds, cutoff, stage, today):
+    """One item per job: how many welds wait at this stage, the oldest weld date, how many are overdue (one
+    query)."""
+    late = {"late": Count("pk", filter=Q(welded_on__lt=cutoff))} if cutoff else {}
+    rows = (welds.values("assembly__job", "assembly__job__number", "assembly__job__name")
+            .annotate(n=Count("pk"), oldest=Min("welded_on"), **late)
+            .order_by(F("oldest").asc(nulls_last=True), "assembly__job__number"))
+    items = []
+    for row in rows:
+        row.setdefault("late", 0)
+        items.append(Item(
+            f"{row['assembly__job__number']} {row['assembly__job__name']}",
+            list_url("inspections:assembly_list", job=row["assembly__job"], waiting=stage, o="created"),
+            count=row["n"], since=row["oldest"],
+            days=working_days(row["oldest"], today) if row["oldest"] else None, overdue=bool(row["late"]),
+            note=f"{row['late']} overdue" if row["late"] else ""))
+    return items
+
+
+def inspector(user, today, overdue_days=OVERDUE_WORKING_DAYS) -> list[Section]:
+    cutoff = overdue_before(today, overdue_days)
+    final = waiting_final(user)
+    final_items = _by_job(final, cutoff, "final", today)
+    fit_items = _by_job(waiting_fit_up(user), None, "fit_up", today)
+    assemblies = (visible(user, Assembly.objects.all())
+                  .filter(pk__in=final.values("assembly"))
+                  .annotate(n=Count("welds", filter=Q(welds__welded_on__isnull=False,
+                                                      welds__latest_final__isnull=True)),
+                            oldest=Min("welds__welded_on", filter=Q(welds__latest_final__isnull=True)))
+                  .select_related("job").order_by("oldest", "job__number", "piece_mark")[:SHOWN])
+    assembly_items = [Item(f"{a.piece_mark} ({a.job.number})", reverse("inspections:inspect_assembly", args=[a.pk]),
+                           count=a.n, since=a.oldest, days=working_days(a.oldest, today),
+                           overdue=a.oldest < cutoff) for a in assemblies]
+    repairs = (visible(user, NCR.objects.filter(state=NCRState.DISPOSITIONED, disposition=Disposition.REPAIR,
+                                                 repair__isnull=False))
+               .select_related("weld__assembly__job", "repair").order_by("repair__welded_on", "pk"))
+    repair_items = [Item(f"{n.number}: weld {n.weld.mark} of {n.weld.assembly}", since=n.repair.welded_on,
+                         url=reverse("inspections:inspect_weld", args=[n.weld_id]),
+                         days=working_days(n.repair.welded_on, today), overdue=n.repair.welded_on < cutoff)
+                    for n in repairs[:SHOWN]]
+    rule = (f"Overdue: waiting more than {overdue_days} working days since the day it was welded (common "
+            "practice, no source).")
+    return [
+        Section("final", "Welds waiting for final visual inspection, by job", final_items,
+                total=sum(i.count for i in final_items),
+                all_url=list_url("inspections:assembly_list", waiting="final", o="created"), help=rule),
+        Section("assemblies", "Assemblies with welds waiting, oldest first", assembly_items,
+                total=None, all_url=list_url("inspections:assembly_list", waiting="final", o="created")),
+        Section("fit_up", "Welds waiting for the fit-up hold point, by job", fit_items,
+                total=sum(i.count for i in fit_items),
+                all_url=list_url("inspections:assembly_list", waiting="fit_up", o="created"),
+                help="Jobs that require an accepted fit-up inspection before welding."),
+        Section("reinspect", "Repairs waiting for re-inspection", repair_items,
+                all_url=list_url("inspections:ncr_list", state=NCRState.DISPOSITIONED, o="opened"),
+                empty="No repair waits for re-inspection."),
+    ]
+
+
+# --- welding engineer ------------------------------------------------------------------------------------------
+
+def _last_event(model, field_name):
+    """A subquery: one field of the latest history row of each record of the model (core.models.Event)."""
+    from django.contrib.contenttypes.models import ContentType
+
+    kind = ContentType.objects.get_for_model(model)  # cached by Django after its first use
+    return Subquery(Event.objects.filter(subject_type=kind, subject_id=OuterRef("pk"))
+                    .order_by("-at", "-pk").values(field_name)[:1])
+
+
+def engineer(user, today) -> list[Section]:
+    drafts = list(visible(user, WPS.objects.filter(state=WPSState.DRAFT))
+                  .annotate(last_from=_last_event(WPS, "from_state"), last_reason=_last_event(WPS, "reason"),
+                            last_at=_last_event(WPS, "at"))
+                  .order_by("created_at", "pk").only("pk", "number", "revision", "title", "created_at"))
+    returned = [w for w in drafts if w.last_from == WPSState.SUBMITTED]
+    fresh = [w for w in drafts if w.last_from != WPSState.SUBMITTED]
+    returned_items = [Item(f"{w} {w.title}", w.get_absolute_url(), since=_day(w.last_at),
+                           note=f"Returned: {w.last_reason}") for w in returned]
+    draft_items = [Item(f"{w} {w.title}", w.get_absolute_url(), since=_day(w.created_at)) for w in fresh[:SHOWN]]
+    not_applying = wps_not_applying(user, today)
+    return [
+        Section("returned", "Procedures returned by the QA lead", returned_items, total=len(returned),
+                all_url=list_url("procedures:wps_list", state=WPSState.DRAFT), empty="No procedure came back."),
+        Section("drafts", "Procedure drafts", draft_items, total=len(fresh),
+                all_url=list_url("procedures:wps_list", state=WPSState.DRAFT), empty="No draft."),
+        Section("wps", "Welds whose WPS does not apply", not_applying[:SHOWN], total=len(not_applying),
+                all_url=list_url("inspections:assembly_list", waiting="final"),
+                empty="Every weld waiting for inspection names a WPS that applies.",
+                help="Welds not yet finally inspected, on open assemblies: the WPS is missing, not in force on the "
+                     "weld date, or does not cover the weld (procedures/applicability.py)."),
+    ]
+
+
+def _day(moment):
+    return timezone.localdate(moment) if isinstance(moment, datetime) else moment
+
+
+def wps_not_applying(user, today) -> list[Item]:
+    """Welds of open assemblies not yet finally inspected whose WPS link fails (chain.wps_check): two queries."""
+    from inspections.services import chain
+
+    welds = list(_open_welds(user).filter(latest_final__isnull=True)
+                 .select_related("wps", "assembly__job__client_criteria").order_by("assembly__job__number",
+                                                                                  "assembly__piece_mark", "mark"))
+    chain.prime_successors([w.wps for w in welds])
+    items = []
+    for weld in welds:
+        check = chain.wps_check(weld, weld.wps, weld.assembly.job, weld.welded_on or today)
+        if not check.ok:
+            problem = check.errors[0] if check.errors else "no WPS is named"
+            items.append(Item(f"Weld {weld.mark} of {weld.assembly.piece_mark} ({weld.assembly.job.number})",
+                              reverse("inspections:weld_detail", args=[weld.pk]), note=problem))
+    return items
+
+
+# --- QA lead -----------------------------------------------------------------------------------------------------
+
+def qa_lead(user, today) -> list[Section]:
+    return [_approvals(user), _ncrs(user, today), *_release(user), _welders(user, today)]
+
+
+def _approvals(user) -> Section:
+    waiting = list(visible(user, WPS.objects.filter(state=WPSState.SUBMITTED))
+                   .annotate(sent=_last_event(WPS, "at")).order_by("sent", "pk")
+                   .only("pk", "number", "revision", "title"))
+    items = [Item(f"{w} {w.title}", w.get_absolute_url(), since=_day(w.sent)) for w in waiting[:SHOWN]]
+    return Section("approvals", "Procedures waiting for approval", items, total=len(waiting),
+                   all_url=list_url("procedures:wps_list", state=WPSState.SUBMITTED))
+
+
+def ncr_ages(user, today) -> dict:
+    """NCRs awaiting disposition counted by age band, and those dispositioned and not yet closed, in one aggregate
+    query: {"open": n, "dispositioned": n, (low, high): n}. Age: calendar days since raised."""
+    now = timezone.make_aware(datetime.combine(today + timedelta(days=1), datetime.min.time()))
+    is_open = Q(state=NCRState.OPEN)
+    bands = {}
+    for low, high in NCR_AGE_BANDS:
+        q = is_open & Q(raised_at__lt=now - timedelta(days=low))
+        if high is not None:
+            q &= Q(raised_at__gte=now - timedelta(days=high + 1))
+        bands[(low, high)] = Count("pk", filter=q)
+    found = visible(user, NCR.objects.exclude(state=NCRState.CLOSED)).aggregate(
+        open=Count("pk", filter=is_open), dispositioned=Count("pk", filter=Q(state=NCRState.DISPOSITIONED)),
+        **{f"b{n}": agg for n, agg in enumerate(bands.values())})
+    return {"open": found["open"], "dispositioned": found["dispositioned"],
+            **{band: found[f"b{n}"] for n, band in enumerate(bands)}}
+
+
+def _ncrs(user, today) -> Section:
+    ages = ncr_ages(user, today)
+    items = []
+    for low, high in NCR_AGE_BANDS:
+        words = f"{low} to {high} days old" if high is not None else f"more than {low - 1} days old"
+        after = (today - timedelta(days=high)).isoformat() if high is not None else ""
+        before = (today - timedelta(days=low)).isoformat()
+        items.append(Item(f"Awaiting disposition, {words}",
+                          list_url("inspections:ncr_list", state=NCRState.OPEN, opened_after=after,
+                                   opened_before=before, o="opened"),
+                          count=ages[(low, high)], overdue=high is None and ages[(low, high)] > 0))
+    oldest = (visible(user, NCR.objects.filter(state=NCRState.OPEN))
+              .select_related("weld__assembly__job").order_by("raised_at", "pk").first())
+    if oldest is not None:
+        raised = timezone.localdate(oldest.raised_at)
+        items.append(Item(f"Oldest: {oldest.number}, weld {oldest.weld.mark} of {oldest.weld.assembly.piece_mark} "
+                          f"({oldest.weld.assembly.job.number})", oldest.get_absolute_url(), since=raised,
+                          days=(today - raised).days))
+    items.append(Item("Dispositioned, waiting for repair or re-inspection",
+                      list_url("inspections:ncr_list", state=NCRState.DISPOSITIONED, o="opened"),
+                      count=ages["dispositioned"]))
+    return Section("ncrs", "NCRs awaiting disposition, by age", items, total=ages["open"],
+                   all_url=list_url("inspections:ncr_list", state=NCRState.OPEN, o="opened"),
+                   help="Age in calendar days since the NCR was raised; more than 30 days is marked.")
+
+
+def _release(user) -> list[Section]:
+    """Assemblies awaiting inspection: ready for release (the chain holds for every weld) or blocked (the first
+    blocker, and how many). The chain runs once for all of them (chain.check_assemblies, fixed queries)."""
+    from inspections.services import chain
+
+    assemblies = list(visible(user, Assembly.objects.filter(state=AssemblyState.AWAITING_INSPECTION))
+                      .select_related("job__client_criteria").order_by("job__number", "piece_mark"))
+    chains = chain.check_assemblies(assemblies)
+    ready, blocked = [], []
+    for assembly in assemblies:
+        found = chain.blockers_of(chains[assembly.pk]) if chains[assembly.pk] else [
+            chain.Blocker("The weld map is empty: add the welds before release.")]
+        name = f"{assembly.piece_mark} ({assembly.job.number})"
+        if not found:
+            ready.append(Item(name, assembly.get_absolute_url()))
+        else:
+            more = f" (and {len(found) - 1} more)" if len(found) > 1 else ""
+            blocked.append(Item(name, assembly.get_absolute_url(), note=f"{found[0]}{more}",
+                                note_url=found[0].url))
+    state = AssemblyState.AWAITING_INSPECTION
+    return [
+        Section("ready", "Assemblies ready for release", ready[:SHOWN], total=len(ready),
+                all_url=list_url("inspections:assembly_list", state=state), empty="None ready."),
+        Section("blocked", "Assemblies awaiting inspection, blocked", blocked[:SHOWN], total=len(blocked),
+                all_url=list_url("inspections:assembly_list", state=state), empty="None blocked.",
+                help="The first thing that stops release; the assembly page lists them all."),
+    ]
+
+
+def _welders(user, today) -> Section:
+    statuses = eligibility.welder_statuses(visible(user, Welder.objects.filter(active=True)), on=today)
+    lapsed, lapsing = eligibility.State.LAPSED, eligibility.State.LAPSING
+    rows = sorted((s for s in statuses.values() if s.state in (lapsed, lapsing)),
+                  key=lambda s: (s.lapses_on or date.min, s.welder.stamp))
+    counts = [Item("Lapsed", list_url("procedures:welder_list", continuity="lapsed"), overdue=True,
+                   count=sum(1 for s in rows if s.state == lapsed)),
+              Item(f"Lapsing within {eligibility.WARN_DAYS} days", list_url("procedures:welder_list",
+                                                                          continuity="lapsing"),
+                   count=sum(1 for s in rows if s.state == lapsing))]
+    items = [Item(f"{s.welder.stamp} {s.welder.name}", s.welder.get_absolute_url(), since=s.lapses_on,
+                  overdue=s.state == lapsed,
+                  note=("lapsed" if s.state == lapsed else "lapses") +
+                  (f" on {s.lapses_on.isoformat()}" if s.lapses_on else "")) for s in rows]
+    return Section("welders", f"Welders lapsing within {eligibility.WARN_DAYS} days or lapsed",
+                   counts + items[:SHOWN] if rows else [], total=len(rows),
+                   all_url=list_url("procedures:welder_list", continuity="lapsing"),
+                   empty="Every active welder is qualified and in continuity.",
+                   help="Active welders only (procedures/eligibility.py).")
+
+
+# --- viewer ------------------------------------------------------------------------------------------------------
+
+def _count(queryset, job_path="job"):
+    """A subquery: how many rows of the queryset belong to the outer job."""
+    return Subquery(queryset.filter(**{job_path: OuterRef("pk")}).order_by().values(job_path)
+                    .annotate(n=Count("pk")).values("n")[:1])
+
+
+def job_progress(user):
+    """The visible jobs with something still open, each with its progress counted in the database (one query)."""
+    open_assemblies = Assembly.objects.exclude(state__in=CLOSED_STATES)
+    return (visible(user, Job.objects.all())
+            .filter(pk__in=open_assemblies.values("job"))
+            .annotate(n_assemblies=_count(Assembly.objects.all()),
+                      released=_count(Assembly.objects.filter(state=AssemblyState.RELEASED)),
+                      n_welds=_count(Weld.objects.all(), "assembly__job"),
+                      accepted=_count(Weld.objects.filter(latest_final__accepted=True), "assembly__job"),
+                      ncrs_open=_count(NCR.objects.exclude(state=NCRState.CLOSED), "weld__assembly__job"))
+            .order_by("-created_at", "-pk"))
+
+
+def viewer(user, today) -> list[Section]:
+    items = []
+    for job in job_progress(user)[:20]:
+        released, assemblies = job.released or 0, job.n_assemblies or 0
+        accepted, welds = job.accepted or 0, job.n_welds or 0
+        note = f"{accepted} of {welds} welds accepted at final visual"
+        if job.ncrs_open:
+            note += f"; {job.ncrs_open} open NCR{'s' if job.ncrs_open != 1 else ''}"
+        items.append(Item(f"{job.number} {job.name}: {released} of {assemblies} assemblies released",
+                          job.get_absolute_url(), note=note,
+                          note_url=list_url("inspections:assembly_list", job=job.pk)))
+    return [Section("jobs", "Your jobs in progress", items, all_url=list_url("inspections:job_list"),
+                    empty="No job of yours is in progress.")]

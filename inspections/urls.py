@@ -84,6 +84,6 @@ urlpatterns = [
     # end of checking and export
     # --- quality trends (inspections.views.trends) ---
     path("trends/", trend_views.trends_page, name="trends"),
-    path("trends.csv", trend_views.trends_csv, name="trends_csv"),
+    path("trends/<slug:chart>.csv", trend_views.trends_csv, name="trends_csv"),
     # end of quality trends
 ]

@@ -19,16 +19,13 @@ def _form(request):
 def trends_page(request):
     form = _form(request)
     filters = form.filters()
-    query = request.GET.copy()
-    query.pop("chart", None)
     return render(request, "inspections/trends.html", {
         "form": form, "filters": filters, "trends": trends.gather(request.user, filters).values(),
-        "query": query.urlencode()})
+        "query": request.GET.urlencode()})
 
 
 @require_safe
-def trends_csv(request):
-    chart = request.GET.get("chart", "")
+def trends_csv(request, chart):
     if chart not in trends.CHARTS:
         raise Http404("No such chart.")
     filters = _form(request).filters()

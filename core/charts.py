@@ -79,11 +79,12 @@ def line_chart(title: str, x_labels, series, *, unit: str = "%", y_max: float | 
                      f'stroke="{GRID}"/>')
         parts.append(f'<text x="{left - 6}" y="{y(value) + 4:.1f}" text-anchor="end">{_number(round(value, 1), unit)}'
                      "</text>")
-    every = max(1, round(len(x_labels) / 8))  # at most about eight labels along the bottom
+    every = max(1, -(-len(x_labels) // 7))  # at most seven labels along the bottom, never overlapping
     for i, label in enumerate(x_labels):
-        if i % every == 0 or i == len(x_labels) - 1:
-            parts.append(f'<text x="{x(i):.1f}" y="{top_pad + plot_h + 18}" text-anchor="middle">{escape(label)}'
-                         "</text>")
+        if i % every == 0:
+            anchor = "end" if i == len(x_labels) - 1 and len(x_labels) > 1 else "middle"
+            parts.append(f'<text x="{x(i):.1f}" y="{top_pad + plot_h + 18}" text-anchor="{anchor}">'
+                         f"{escape(label)}</text>")
     for n, s in enumerate(series):
         colour, dash = STYLES[n % len(STYLES)]
         dash_attr = f' stroke-dasharray="{dash}"' if dash else ""
@@ -116,7 +117,7 @@ def bar_chart(title: str, bars, *, unit: str = "", cumulative: bool = False, x_m
         return _empty(title)
     total = sum(v for _l, v in bars if v is not None) or 0
     top = x_max or max((v for _l, v in bars if v is not None), default=0) or 1
-    left, right, row = 200, 150, 28
+    left, right, row = 200, 190, 28
     height = 10 + row * len(bars) + 10
     width = WIDTH - left - right
     running = 0
@@ -135,7 +136,11 @@ def bar_chart(title: str, bars, *, unit: str = "", cumulative: bool = False, x_m
         if cumulative and total:
             running += value
             text += f" (cumulative {_number(round(100 * running / total, 1), '%')})"
-        parts.append(f'<text x="{left + length + 6:.1f}" y="{y + 18}">{escape(text)}</text>')
+        if left + length + 6 + 7.5 * len(text) <= WIDTH:  # beside the bar, or inside its end when it would not fit
+            parts.append(f'<text x="{left + length + 6:.1f}" y="{y + 18}">{escape(text)}</text>')
+        else:
+            parts.append(f'<text x="{left + length - 6:.1f}" y="{y + 18}" text-anchor="end" fill="#fff">'
+                         f"{escape(text)}</text>")
         words.append(f"{label} {text}")
     return "".join(_open(title, "; ".join(words), height) + parts + ["</svg>"])
 
@@ -166,7 +171,8 @@ def timeline(title: str, start: date, end: date, rows) -> str:
     while month <= end:
         if month >= start:
             parts.append(f'<line x1="{x(month):.1f}" x2="{x(month):.1f}" y1="22" y2="{height - 10}" stroke="{GRID}"/>')
-            parts.append(f'<text x="{x(month) + 3:.1f}" y="16">{month:%b %Y}</text>')
+            if x(month) + 70 <= WIDTH:  # a month too near the end keeps its line, not its label
+                parts.append(f'<text x="{x(month) + 3:.1f}" y="16">{month:%b %Y}</text>')
         month = date(month.year + month.month // 12, month.month % 12 + 1, 1)
     words = []
     for i, r in enumerate(rows):

@@ -19,9 +19,10 @@ class TrendFilterForm(forms.Form):
     process = forms.ChoiceField(label="Process", choices=[("", "All processes"), *Process.choices], required=False)
 
     def __init__(self, data, user, today):
-        super().__init__(data)
+        defaults = trends.default_filters(today)
+        super().__init__(data, initial={"start": defaults.start, "end": defaults.end})
         self.fields["job"].queryset = jobs_visible_to(user).order_by("-number")
-        self.defaults = trends.default_filters(today)
+        self.defaults = defaults
         for name, f in self.fields.items():
             f.widget.attrs["class"] = "form-select" if name in ("job", "process") else "form-control"
 

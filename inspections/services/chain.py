@@ -166,6 +166,31 @@ def check_assemblies(assemblies) -> dict[int, dict[int, WeldChain]]:
     return {a.pk: chains for a, chains in zip(assemblies, found, strict=True)}
 
 
+def inspection_blockers(assemblies) -> dict[int, list[Blocker]]:
+    """The inspection link alone (accepted current final visual, no NCR open) of every weld of many assemblies,
+    {assembly.pk: blockers}, from the database in three queries whatever their number: what the morning page asks
+    before running the whole chain (the engines) only for the assemblies this link does not already stop. An empty
+    weld map is a blocker too."""
+    assemblies = list(assemblies)
+    if not assemblies:
+        return {}
+    welds = list(Weld.objects.filter(assembly_id__in=[a.pk for a in assemblies]).only("pk", "mark", "assembly_id")
+                 .order_by("assembly_id", "mark"))
+    statuses = weld_statuses([w.pk for w in welds])
+    repaired = {}
+    for weld_id, ncr_id in WeldRepair.objects.filter(weld_id__in=[w.pk for w in welds]).values_list("weld_id",
+                                                                                                     "ncr_id"):
+        repaired.setdefault(weld_id, set()).add(ncr_id)
+    found = {a.pk: [] for a in assemblies}
+    for weld in welds:
+        found[weld.assembly_id] += _status_blockers(f"Weld {weld.mark}", weld, statuses[weld.pk],
+                                                    repaired.get(weld.pk, set()))
+    for assembly in assemblies:
+        if not any(w.assembly_id == assembly.pk for w in welds):
+            found[assembly.pk] = [Blocker("The weld map is empty: add the welds before release.")]
+    return found
+
+
 def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
     """The chains of each (job, welds) pair, in order: every query made once for all of them."""
     ids = [w.pk for _job_, welds in items for w in welds]
@@ -276,9 +301,12 @@ def _blockers(chain: WeldChain) -> list[Blocker]:
 
 
 def _inspection_blockers(subject, chain: WeldChain) -> list[Blocker]:
-    status = chain.status
+    return _status_blockers(subject, chain.weld, chain.status, {item.repair.ncr_id for item in chain.repairs})
+
+
+def _status_blockers(subject, weld, status: WeldStatus, repaired) -> list[Blocker]:
+    """The inspection link of one weld: its open NCRs (with the step each waits for), else its final visual."""
     found = []
-    repaired = {item.repair.ncr_id for item in chain.repairs}
     for ncr in status.open_ncrs:
         if ncr.state == NCRState.OPEN:
             step = "awaiting disposition"
@@ -289,7 +317,7 @@ def _inspection_blockers(subject, chain: WeldChain) -> list[Blocker]:
         found.append(Blocker(f"{subject}: {ncr} is open ({step}).", ncr.get_absolute_url()))
     if status.open_ncrs:
         return found
-    inspect = _url("inspections:inspect_weld", chain.weld.pk)
+    inspect = _url("inspections:inspect_weld", weld.pk)
     if status.final is None:
         found.append(Blocker(f"{subject} has no final visual inspection.", inspect))
     elif not status.released_ok:

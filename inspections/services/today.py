@@ -22,6 +22,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
+from typing import NamedTuple
 from urllib.parse import urlencode
 
 from django.db.models import Count, F, Min, OuterRef, Q, Subquery
@@ -35,7 +36,7 @@ from inspections.models import NCR, Assembly, AssemblyState, Job, Weld
 from inspections.models.jobs import CLOSED_STATES
 from inspections.models.ncr import Disposition, NCRState
 from procedures import eligibility
-from procedures.models import WPS, Welder
+from procedures.models import WPS, ContinuityEntry, Welder
 from procedures.models.wps import WPSState
 
 # A weld waits "overdue" for inspection once it has waited more than this many working days (Monday to Friday)
@@ -312,17 +313,20 @@ def _ncrs(user, today) -> Section:
 
 
 def _release(user) -> list[Section]:
-    """Assemblies awaiting inspection: ready for release (the chain holds for every weld) or blocked (the first
-    blocker, and how many). The chain runs once for all of them (chain.check_assemblies, fixed queries)."""
+    """Assemblies awaiting inspection: ready for release (the chain holds for every weld) or blocked, with the first
+    blocker and how many. The inspection link is read from the database for all of them at once
+    (chain.inspection_blockers); the whole chain, engines and all, runs only for those it does not already stop
+    (chain.check_assemblies): fixed queries either way, and the engines' time spent only where release is near."""
     from inspections.services import chain
 
     assemblies = list(visible(user, Assembly.objects.filter(state=AssemblyState.AWAITING_INSPECTION))
                       .select_related("job__client_criteria").order_by("job__number", "piece_mark"))
-    chains = chain.check_assemblies(assemblies)
+    stopped = chain.inspection_blockers(assemblies)
+    candidates = [a for a in assemblies if not stopped[a.pk]]
+    chains = chain.check_assemblies(candidates)
     ready, blocked = [], []
     for assembly in assemblies:
-        found = chain.blockers_of(chains[assembly.pk]) if chains[assembly.pk] else [
-            chain.Blocker("The weld map is empty: add the welds before release.")]
+        found = stopped[assembly.pk] or chain.blockers_of(chains[assembly.pk])
         name = f"{assembly.piece_mark} ({assembly.job.number})"
         if not found:
             ready.append(Item(name, assembly.get_absolute_url()))
@@ -336,12 +340,36 @@ def _release(user) -> list[Section]:
                 all_url=list_url("inspections:assembly_list", state=state), empty="None ready."),
         Section("blocked", "Assemblies awaiting inspection, blocked", blocked[:SHOWN], total=len(blocked),
                 all_url=list_url("inspections:assembly_list", state=state), empty="None blocked.",
-                help="The first thing that stops release; the assembly page lists them all."),
+                help="Welds not inspected or with an NCR open come first; then the procedure, welder and hold-point "
+                     "links. The assembly page lists every blocker."),
     ]
 
 
+class _Use(NamedTuple):
+    """One day a welder used a process: all procedures.eligibility reads of a continuity entry."""
+
+    process: str
+    date: date
+
+
+def active_welders_with_uses(user):
+    """The visible active welders with their test records and their days of use, each (process, day) once: a
+    welder's thousands of production entries are a few hundred distinct days, and eligibility reads no more of
+    them (it takes prefetched `qualifications` and `continuity` as they are). Three queries, and no model object
+    per entry: building those cost most of the QA lead's page on two years of records (benchmarks/morning_page.py)."""
+    welders = list(visible(user, Welder.objects.filter(active=True)).prefetch_related("qualifications"))
+    uses = {w.pk: [] for w in welders}
+    for welder_id, process, day in (ContinuityEntry.objects.filter(welder_id__in=list(uses))
+                                    .values_list("welder_id", "process", "date").distinct()
+                                    .order_by("welder_id", "process", "date")):
+        uses[welder_id].append(_Use(process, day))
+    for welder in welders:
+        welder._prefetched_objects_cache["continuity"] = uses[welder.pk]
+    return welders
+
+
 def _welders(user, today) -> Section:
-    statuses = eligibility.welder_statuses(visible(user, Welder.objects.filter(active=True)), on=today)
+    statuses = eligibility.welder_statuses(active_welders_with_uses(user), on=today)
     lapsed, lapsing = eligibility.State.LAPSED, eligibility.State.LAPSING
     rows = sorted((s for s in statuses.values() if s.state in (lapsed, lapsing)),
                   key=lambda s: (s.lapses_on or date.min, s.welder.stamp))

@@ -1,7 +1,7 @@
 """Each role's morning page (inspections.services.today, templates/home.html): every figure against counts made from
 the factory's own records, every link to the list-filter contract's URL and parameters, fixed query counts."""
 
-from datetime import date, timedelta
+from datetime import timedelta
 from urllib.parse import parse_qs, urlsplit
 
 import pytest
@@ -29,24 +29,6 @@ def _link(url):
     return parts.path, {k: v[0] for k, v in parse_qs(parts.query).items()}
 
 
-# --- working days and overdue: common practice, no source (OVERDUE_WORKING_DAYS = 2) -------------------------------
-
-def test_working_days_skip_the_weekend():
-    friday, monday = date(2026, 12, 4), date(2026, 12, 7)
-    assert morning.working_days(friday, monday) == 1
-    assert morning.working_days(friday, friday) == 0
-    assert morning.working_days(date(2026, 11, 30), date(2026, 12, 7)) == 5
-
-
-def test_overdue_starts_just_past_the_limit():
-    # Wednesday 2026-12-09: welded Monday (2 working days waited) is not overdue, welded Friday (3) is.
-    wednesday = date(2026, 12, 9)
-    first_not_overdue = morning.overdue_before(wednesday, 2)
-    assert morning.working_days(first_not_overdue, wednesday) == 2
-    assert morning.working_days(first_not_overdue - timedelta(days=1), wednesday) == 3
-    assert first_not_overdue == date(2026, 12, 7)  # Monday: at the limit; the Sunday before is already past it
-
-
 # --- inspector -------------------------------------------------------------------------------------------------
 
 @pytest.fixture
@@ -70,23 +52,24 @@ def shop(make, users):
 
 
 def test_inspector_sees_welds_waiting_by_job_oldest_first_with_overdue(shop, users):
+    # Overdue: the queue's rule (inspections.queue, LEGWORK_INSPECTION_DUE_DAYS = 2 days; common practice, no
+    # source): the welds of ten days ago are overdue, today's are not.
     sections = morning.for_user(users["inspector"], shop["today"])
     final = _section(sections, "final")
     expected = {job: len(welds) for job, welds in shop["waiting"].items()}
     got = {_link(i.url)[1]["job"]: i.count for i in final.items}
     assert got == {str(k): v for k, v in expected.items()}
     assert final.total == sum(expected.values())
-    # Oldest first: the two jobs with a weld of ten days ago lead, and they are overdue.
-    oldest = [i for i in final.items if i.since == shop["old"]]
-    assert final.items[:len(oldest)] == oldest and all(i.overdue for i in oldest)
+    late = [i for i in final.items if i.overdue]
+    assert final.items[:len(late)] == late and {i.since for i in late} == {shop["old"]}
     assert not _section_item(final, shop["b"]).overdue
-    assert _section_item(final, shop["a"]).note == "1 overdue"
+    assert _section_item(final, shop["a"]).note == "1 assembly overdue"
     path, params = _link(_section_item(final, shop["a"]).url)
     assert path == "/inspections/assemblies/"
     assert params == {"job": str(shop["a"].pk), "waiting": "final", "o": "created"}
     assemblies = _section(sections, "assemblies")
-    assert len(assemblies.items) == sum(expected.values())  # one weld per assembly
-    assert assemblies.items[0].since == shop["old"]
+    assert assemblies.total == sum(expected.values())  # one weld per assembly
+    assert assemblies.items[0].since == shop["old"] and assemblies.items[0].overdue
     assert all(i.url.startswith("/inspections/a/") for i in assemblies.items)
 
 
@@ -94,7 +77,7 @@ def _section_item(section, job):
     return next(i for i in section.items if _link(i.url)[1].get("job") == str(job.pk))
 
 
-def test_inspector_sees_fit_up_hold_points_waiting(make, users):
+def test_inspector_sees_fit_ups_waiting(make, users):
     job = make.make_job(fit_up_hold_point=True)
     welds = [make.make_weld(make.make_assembly(job)) for _ in range(3)]
     make.make_inspection(welds[0], stage="fit_up", accepted=True)
@@ -113,8 +96,10 @@ def test_a_repair_waits_for_re_inspection(make, users):
     ncr = ncr_steps.disposition_repair(ncr, users["qa_lead"], make.approved_wps(), welder)
     repairs.record_repair(ncr, users["inspector"], wps=make.approved_wps(), welded_on=timezone.localdate(),
                           welders=[welder])
-    section = _section(morning.for_user(users["inspector"]), "reinspect")
-    assert [i.url for i in section.items] == [reverse("inspections:inspect_weld", args=[weld.pk])]
+    item, = _section(morning.for_user(users["inspector"]), "repair").items
+    assert item.count == 1
+    assert _link(item.url) == ("/inspections/ncrs/", {"job": str(weld.assembly.job_id), "state": "dispositioned",
+                                                      "o": "opened"})
 
 
 # --- welding engineer --------------------------------------------------------------------------------------------
@@ -262,7 +247,7 @@ def test_home_page_takes_a_fixed_number_of_queries(role, shop, make, client_as):
     assert len(large.captured_queries) == len(small.captured_queries), role
 
 
-PINNED = {"inspector": 6, "welding_engineer": 5, "qa_lead": 21, "viewer": 3}
+PINNED = {"inspector": 4, "welding_engineer": 5, "qa_lead": 21, "viewer": 3}
 
 
 @pytest.mark.parametrize("role", list(PINNED))

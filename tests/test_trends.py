@@ -146,6 +146,8 @@ def test_bad_filters_are_messages_beside_the_field(history, client_as):
                                                                      "end": "1999-01-01"})
     assert page.status_code == 200
     assert "Enter a valid date." in page.text
+    page = client_as("qa_lead").get(reverse("inspections:trends"), {"start": "0001-01-01", "end": "9999-12-31"})
+    assert page.status_code == 200 and "Enter a date between 1950 and 2199." in page.text
 
 
 def test_the_trends_page_takes_a_fixed_number_of_queries(history, make, client_as):

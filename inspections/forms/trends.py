@@ -1,7 +1,7 @@
 """The trends page's filters: date range, job, process (GET). A bad value is a message beside the field and the
 default is used; never an error page."""
 
-from datetime import timedelta
+from datetime import date, timedelta
 
 from django import forms
 
@@ -10,6 +10,7 @@ from core.vocabulary import Process
 from inspections.services import trends
 
 LONGEST = timedelta(days=3 * 366)  # a wider range is refused: the weekly charts would not be readable
+EARLIEST, LATEST = date(1950, 1, 1), date(2199, 12, 31)  # a date outside is a typing slip, not a shop's record
 
 
 class TrendFilterForm(forms.Form):
@@ -26,8 +27,22 @@ class TrendFilterForm(forms.Form):
         for name, f in self.fields.items():
             f.widget.attrs["class"] = "form-select" if name in ("job", "process") else "form-control"
 
+    def _clean_day(self, name):
+        day = self.cleaned_data.get(name)
+        if day is not None and not EARLIEST <= day <= LATEST:
+            raise forms.ValidationError(f"Enter a date between {EARLIEST.year} and {LATEST.year}.")
+        return day
+
+    def clean_start(self):
+        return self._clean_day("start")
+
+    def clean_end(self):
+        return self._clean_day("end")
+
     def clean(self):
         data = super().clean()
+        if self.errors:
+            return data
         start = data.get("start") or self.defaults.start
         end = data.get("end") or self.defaults.end
         if end < start:

@@ -2,8 +2,8 @@
 
     for_user(user, today=None) -> list[Section]
 
-inspector      welds waiting for the fit-up hold point and for final visual inspection, by job, oldest first,
-               overdue marked; the assemblies holding them, oldest first; repairs waiting for re-inspection
+inspector      the inspector's queue (inspections.queue) by job: welds waiting for final visual, fit-up and
+               re-inspection after repair, overdue and oldest first; the assemblies waiting longest
 welding eng.   procedure drafts (those the QA lead returned, with the reason); welds whose WPS does not apply
 QA lead        procedures waiting for approval; open NCRs by age with the oldest; assemblies waiting for release,
                ready or blocked (with the first blocker); welders whose qualification lapses within 30 days or has
@@ -11,10 +11,11 @@ QA lead        procedures waiting for approval; open NCRs by age with the oldest
 viewer         its jobs' progress (core.visibility: its customers' jobs only)
 
 Every figure is a database aggregate (Count, Min) over the visible rows, in a fixed number of queries whatever
-the number of records (tests/test_today.py pins the counts per role). Three questions need the engines and so run
-in Python, each over a bounded set loaded in a fixed number of queries: the release chain of the assemblies
-waiting for release (chain.check_assemblies), whether the WPS of each weld not yet finally inspected applies
-(chain.wps_checks), and each active welder's qualification status (procedures.eligibility.welder_statuses).
+the number of records (tests/test_today.py pins the counts per role). Four questions need rules written in Python
+and so run there, each over a bounded set loaded in a fixed number of queries: the inspector's queue over the open
+welds (inspections.queue), the release chain of the assemblies awaiting inspection (chain.inspection_blockers,
+then chain.check_assemblies), whether the WPS of each weld not yet finally inspected applies (chain.wps_check),
+and each active welder's qualification status (procedures.eligibility.welder_statuses).
 The list links carry the GET parameters of the list-filter contract (docs/decisions/2026-12-05-morning-page.md).
 """
 
@@ -25,7 +26,7 @@ from datetime import date, datetime, timedelta
 from typing import NamedTuple
 from urllib.parse import urlencode
 
-from django.db.models import Count, F, Min, OuterRef, Q, Subquery
+from django.db.models import Count, OuterRef, Q, Subquery
 from django.urls import NoReverseMatch, reverse
 from django.utils import timezone
 
@@ -34,15 +35,10 @@ from core.roles import Role
 from core.visibility import sees_everything, visible
 from inspections.models import NCR, Assembly, AssemblyState, Job, Weld
 from inspections.models.jobs import CLOSED_STATES
-from inspections.models.ncr import Disposition, NCRState
+from inspections.models.ncr import NCRState
 from procedures import eligibility
 from procedures.models import WPS, ContinuityEntry, Welder
 from procedures.models.wps import WPSState
-
-# A weld waits "overdue" for inspection once it has waited more than this many working days (Monday to Friday)
-# since the day it was welded: common practice, no source (a shop inspects within a day or two of welding, so a
-# weld left longer holds up the assembly behind it). Overridable per call for tests and shops.
-OVERDUE_WORKING_DAYS = 2
 
 # Open NCRs are counted in these age bands (days since raised): common practice, no source.
 NCR_AGE_BANDS = ((0, 7), (8, 30), (31, None))
@@ -66,22 +62,6 @@ def list_url(name: str, **params) -> str:
     return f"{path}?{query}" if query else path
 
 
-# --- working days ------------------------------------------------------------------------------------------------
-
-def working_days(since: date, today: date) -> int:
-    """Monday-to-Friday days after `since` up to and including `today` (0 for the same day or a later one)."""
-    return sum(1 for n in range(1, (today - since).days + 1) if (since + timedelta(days=n)).weekday() < 5)
-
-
-def overdue_before(today: date, limit: int = OVERDUE_WORKING_DAYS) -> date:
-    """The first day a weld may have been welded on and not be overdue today: anything welded before it has waited
-    more than `limit` working days."""
-    day = today
-    while working_days(day - timedelta(days=1), today) <= limit:
-        day -= timedelta(days=1)
-    return day
-
-
 # --- what the page shows -------------------------------------------------------------------------------------------
 
 @dataclass
@@ -96,6 +76,7 @@ class Item:
     overdue: bool = False
     note: str = ""
     note_url: str = ""
+    word: str = "overdue"  # said beside an item marked overdue (a lapsed welder is marked, not "overdue")
 
 
 @dataclass
@@ -109,11 +90,11 @@ class Section:
     help: str = ""
 
 
-def for_user(user, today: date | None = None, overdue_days: int = OVERDUE_WORKING_DAYS) -> list[Section]:
+def for_user(user, today: date | None = None) -> list[Section]:
     today = today or timezone.localdate()
     role = getattr(user, "role", None)
     if role == Role.INSPECTOR:
-        return inspector(user, today, overdue_days)
+        return inspector(user, today)
     if role == Role.WELDING_ENGINEER:
         return engineer(user, today)
     if role == Role.QA_LEAD or (user.is_superuser and sees_everything(user)):
@@ -127,70 +108,53 @@ def _open_welds(user):
     return visible(user, Weld.objects.exclude(assembly__state__in=CLOSED_STATES))
 
 
-def waiting_fit_up(user):
-    """Welds of a job with the fit-up hold point, not yet welded and with no inspection yet."""
-    return _open_welds(user).filter(assembly__job__fit_up_hold_point=True, welded_on__isnull=True,
-                                    latest_inspection__isnull=True)
+def inspector(user, today) -> list[Section]:
+    """The inspector's queue (inspections.queue: its stages, and its rule for overdue) summed up by job, each stage
+    oldest and overdue first, and the assemblies waiting longest (the queue reads the open welds in two queries)."""
+    from inspections import queue
 
-
-def waiting_final(user):
-    """Welds recorded as welded with no current final visual inspection yet."""
-    return _open_welds(user).filter(welded_on__isnull=False, latest_final__isnull=True)
-
-
-def _by_job(welds, cutoff, stage, today):
-    """One item per job: how many welds wait at this stage, the oldest weld date, how many are overdue (one
-    query)."""
-    late = {"late": Count("pk", filter=Q(welded_on__lt=cutoff))} if cutoff else {}
-    rows = (welds.values("assembly__job", "assembly__job__number", "assembly__job__name")
-            .annotate(n=Count("pk"), oldest=Min("welded_on"), **late)
-            .order_by(F("oldest").asc(nulls_last=True), "assembly__job__number"))
-    items = []
-    for row in rows:
-        row.setdefault("late", 0)
-        items.append(Item(
-            f"{row['assembly__job__number']} {row['assembly__job__name']}",
-            list_url("inspections:assembly_list", job=row["assembly__job"], waiting=stage, o="created"),
-            count=row["n"], since=row["oldest"],
-            days=working_days(row["oldest"], today) if row["oldest"] else None, overdue=bool(row["late"]),
-            note=f"{row['late']} overdue" if row["late"] else ""))
-    return items
-
-
-def inspector(user, today, overdue_days=OVERDUE_WORKING_DAYS) -> list[Section]:
-    cutoff = overdue_before(today, overdue_days)
-    final = waiting_final(user)
-    final_items = _by_job(final, cutoff, "final", today)
-    fit_items = _by_job(waiting_fit_up(user), None, "fit_up", today)
-    assemblies = (visible(user, Assembly.objects.all())
-                  .filter(pk__in=final.values("assembly"))
-                  .annotate(n=Count("welds", filter=Q(welds__welded_on__isnull=False,
-                                                      welds__latest_final__isnull=True)),
-                            oldest=Min("welds__welded_on", filter=Q(welds__latest_final__isnull=True)))
-                  .select_related("job").order_by("oldest", "job__number", "piece_mark")[:SHOWN])
-    assembly_items = [Item(f"{a.piece_mark} ({a.job.number})", reverse("inspections:inspect_assembly", args=[a.pk]),
-                           count=a.n, since=a.oldest, days=working_days(a.oldest, today),
-                           overdue=a.oldest < cutoff) for a in assemblies]
-    repairs = (visible(user, NCR.objects.filter(state=NCRState.DISPOSITIONED, disposition=Disposition.REPAIR,
-                                                 repair__isnull=False))
-               .select_related("weld__assembly__job", "repair").order_by("repair__welded_on", "pk"))
-    repair_items = [Item(f"{n.number}: weld {n.weld.mark} of {n.weld.assembly}", since=n.repair.welded_on,
-                         url=reverse("inspections:inspect_weld", args=[n.weld_id]),
-                         days=working_days(n.repair.welded_on, today), overdue=n.repair.welded_on < cutoff)
-                    for n in repairs[:SHOWN]]
-    rule = (f"Overdue: waiting more than {overdue_days} working days since the day it was welded (common "
-            "practice, no source).")
+    now = timezone.now()
+    queues = queue.waiting(now)
+    by_stage = {key: [] for key, _title in queue.STAGES}
+    waiting = []
+    for job_queue in queues:
+        job = job_queue.job
+        for stage in job_queue.stages:
+            dated = [w.since for w in stage.assemblies if w.since is not None]
+            since = timezone.localdate(min(dated)) if dated else None
+            if stage.key == "repair":
+                url = list_url("inspections:ncr_list", job=job.pk, state=NCRState.DISPOSITIONED, o="opened")
+            else:
+                url = list_url("inspections:assembly_list", job=job.pk, waiting=stage.key, o="created")
+            late = stage.overdue
+            by_stage[stage.key].append(Item(
+                f"{job.number} {job.name}", url, count=sum(len(w.welds) for w in stage.assemblies), since=since,
+                days=(today - since).days if since else None, overdue=bool(late),
+                note=f"{late} assembl{'y' if late == 1 else 'ies'} overdue" if late else ""))
+            waiting += [(w, stage, job) for w in stage.assemblies]
+    for items in by_stage.values():
+        items.sort(key=lambda i: (not i.overdue, i.since is None, i.since or today, i.text))
+    waiting.sort(key=lambda t: (not t[0].overdue, t[0].since is None, t[0].since or now, t[0].assembly.piece_mark))
+    oldest = []
+    for w, stage, job in waiting[:SHOWN]:
+        since = timezone.localdate(w.since) if w.since else None
+        oldest.append(Item(f"{w.assembly.piece_mark} ({job.number}), {stage.title.lower()}: {w.marks}",
+                           reverse("inspections:inspect_assembly", args=[w.assembly.pk]), since=since,
+                           days=(today - since).days if since else None, overdue=w.overdue))
+    rule = (f"Overdue: waiting longer than {queue.due_days()} days since the weld was completed, or since the "
+            "repair was dispositioned (LEGWORK_INSPECTION_DUE_DAYS; common practice, no source).")
+    titles = dict(queue.STAGES)
     return [
-        Section("final", "Welds waiting for final visual inspection, by job", final_items,
-                total=sum(i.count for i in final_items),
+        Section("final", f"Welds waiting for {titles['final'].lower()} inspection, by job", by_stage["final"],
+                total=sum(i.count for i in by_stage["final"]),
                 all_url=list_url("inspections:assembly_list", waiting="final", o="created"), help=rule),
-        Section("assemblies", "Assemblies with welds waiting, oldest first", assembly_items,
-                total=None, all_url=list_url("inspections:assembly_list", waiting="final", o="created")),
-        Section("fit_up", "Welds waiting for the fit-up hold point, by job", fit_items,
-                total=sum(i.count for i in fit_items),
-                all_url=list_url("inspections:assembly_list", waiting="fit_up", o="created"),
-                help="Jobs that require an accepted fit-up inspection before welding."),
-        Section("reinspect", "Repairs waiting for re-inspection", repair_items,
+        Section("assemblies", "Assemblies waiting longest", oldest, total=len(waiting),
+                all_url=reverse("inspections:inspect_queue")),
+        Section("fit_up", "Welds waiting for fit-up inspection, by job", by_stage["fit_up"],
+                total=sum(i.count for i in by_stage["fit_up"]),
+                all_url=list_url("inspections:assembly_list", waiting="fit_up", o="created")),
+        Section("repair", "Repairs waiting for re-inspection, by job", by_stage["repair"],
+                total=sum(i.count for i in by_stage["repair"]),
                 all_url=list_url("inspections:ncr_list", state=NCRState.DISPOSITIONED, o="opened"),
                 empty="No repair waits for re-inspection."),
     ]
@@ -373,13 +337,13 @@ def _welders(user, today) -> Section:
     lapsed, lapsing = eligibility.State.LAPSED, eligibility.State.LAPSING
     rows = sorted((s for s in statuses.values() if s.state in (lapsed, lapsing)),
                   key=lambda s: (s.lapses_on or date.min, s.welder.stamp))
-    counts = [Item("Lapsed", list_url("procedures:welder_list", continuity="lapsed"), overdue=True,
+    counts = [Item("Lapsed", list_url("procedures:welder_list", continuity="lapsed"), overdue=True, word="",
                    count=sum(1 for s in rows if s.state == lapsed)),
               Item(f"Lapsing within {eligibility.WARN_DAYS} days", list_url("procedures:welder_list",
                                                                           continuity="lapsing"),
                    count=sum(1 for s in rows if s.state == lapsing))]
     items = [Item(f"{s.welder.stamp} {s.welder.name}", s.welder.get_absolute_url(), since=s.lapses_on,
-                  overdue=s.state == lapsed,
+                  overdue=s.state == lapsed, word="",
                   note=("lapsed" if s.state == lapsed else "lapses") +
                   (f" on {s.lapses_on.isoformat()}" if s.lapses_on else "")) for s in rows]
     return Section("welders", f"Welders lapsing within {eligibility.WARN_DAYS} days or lapsed",

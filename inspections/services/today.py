@@ -120,7 +120,8 @@ def inspector(user, today) -> list[Section]:
     for job_queue in queues:
         job = job_queue.job
         for stage in job_queue.stages:
-            dated = [w.since for w in stage.assemblies if w.since is not None]
+            # A delayed final visual (steels that wait 48 h) counts from when it becomes possible: not yet, no age.
+            dated = [w.since for w in stage.assemblies if w.since is not None and w.not_before is None]
             since = timezone.localdate(min(dated)) if dated else None
             if stage.key == "repair":
                 url = list_url("inspections:ncr_list", job=job.pk, state=NCRState.DISPOSITIONED, o="opened")
@@ -137,10 +138,11 @@ def inspector(user, today) -> list[Section]:
     waiting.sort(key=lambda t: (not t[0].overdue, t[0].since is None, t[0].since or now, t[0].assembly.piece_mark))
     oldest = []
     for w, stage, job in waiting[:SHOWN]:
-        since = timezone.localdate(w.since) if w.since else None
+        since = timezone.localdate(w.since) if w.since and w.not_before is None else None
+        ahead = f"not before {timezone.localtime(w.not_before):%Y-%m-%d %H:%M}" if w.not_before else ""
         oldest.append(Item(f"{w.assembly.piece_mark} ({job.number}), {stage.title.lower()}: {w.marks}",
                            reverse("inspections:inspect_assembly", args=[w.assembly.pk]), since=since,
-                           days=(today - since).days if since else None, overdue=w.overdue))
+                           days=(today - since).days if since else None, overdue=w.overdue, note=ahead))
     rule = (f"Overdue: waiting longer than {queue.due_days()} days since the weld was completed, or since the "
             "repair was dispositioned (LEGWORK_INSPECTION_DUE_DAYS; common practice, no source).")
     titles = dict(queue.STAGES)

@@ -357,34 +357,36 @@ def _welders(user, today) -> Section:
 
 # --- viewer ------------------------------------------------------------------------------------------------------
 
-def _count(queryset, job_path="job"):
-    """A subquery: how many rows of the queryset belong to the outer job."""
-    return Subquery(queryset.filter(**{job_path: OuterRef("pk")}).order_by().values(job_path)
-                    .annotate(n=Count("pk")).values("n")[:1])
-
-
-def job_progress(user):
-    """The visible jobs with something still open, each with its progress counted in the database (one query)."""
+def job_progress(user, limit=20) -> list[Job]:
+    """The visible jobs with something still open (newest first, at most `limit`), each with its progress counted
+    by the database: four queries, one GROUP BY per table, whatever the number of jobs, assemblies and welds."""
     open_assemblies = Assembly.objects.exclude(state__in=CLOSED_STATES)
-    return (visible(user, Job.objects.all())
-            .filter(pk__in=open_assemblies.values("job"))
-            .annotate(n_assemblies=_count(Assembly.objects.all()),
-                      released=_count(Assembly.objects.filter(state=AssemblyState.RELEASED)),
-                      n_welds=_count(Weld.objects.all(), "assembly__job"),
-                      accepted=_count(Weld.objects.filter(latest_final__accepted=True), "assembly__job"),
-                      ncrs_open=_count(NCR.objects.exclude(state=NCRState.CLOSED), "weld__assembly__job"))
-            .order_by("-created_at", "-pk"))
+    jobs = list(visible(user, Job.objects.all()).filter(pk__in=open_assemblies.values("job"))
+                .order_by("-created_at", "-pk")[:limit])
+    ids = [job.pk for job in jobs]
+    assemblies = {row["job"]: row for row in Assembly.objects.filter(job__in=ids).values("job").annotate(
+        n=Count("pk"), released=Count("pk", filter=Q(state=AssemblyState.RELEASED))).order_by()}
+    welds = {row["assembly__job"]: row for row in Weld.objects.filter(assembly__job__in=ids)
+             .values("assembly__job").annotate(n=Count("pk"), accepted=Count("pk", filter=Q(
+                 latest_final__accepted=True))).order_by()}
+    ncrs = dict(NCR.objects.filter(weld__assembly__job__in=ids).exclude(state=NCRState.CLOSED)
+                .values_list("weld__assembly__job").annotate(n=Count("pk")).order_by())
+    for job in jobs:
+        job.n_assemblies = assemblies.get(job.pk, {}).get("n", 0)
+        job.released = assemblies.get(job.pk, {}).get("released", 0)
+        job.n_welds = welds.get(job.pk, {}).get("n", 0)
+        job.accepted = welds.get(job.pk, {}).get("accepted", 0)
+        job.ncrs_open = ncrs.get(job.pk, 0)
+    return jobs
 
 
 def viewer(user, today) -> list[Section]:
     items = []
-    for job in job_progress(user)[:20]:
-        released, assemblies = job.released or 0, job.n_assemblies or 0
-        accepted, welds = job.accepted or 0, job.n_welds or 0
-        note = f"{accepted} of {welds} welds accepted at final visual"
+    for job in job_progress(user):
+        note = f"{job.accepted} of {job.n_welds} welds accepted at final visual"
         if job.ncrs_open:
             note += f"; {job.ncrs_open} open NCR{'s' if job.ncrs_open != 1 else ''}"
-        items.append(Item(f"{job.number} {job.name}: {released} of {assemblies} assemblies released",
+        items.append(Item(f"{job.number} {job.name}: {job.released} of {job.n_assemblies} assemblies released",
                           job.get_absolute_url(), note=note,
                           note_url=list_url("inspections:assembly_list", job=job.pk)))
     return [Section("jobs", "Your jobs in progress", items, all_url=list_url("inspections:job_list"),

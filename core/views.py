@@ -10,16 +10,13 @@ from django.contrib import messages
 from django.contrib.auth.views import LoginView
 from django.core.exceptions import PermissionDenied
 from django.shortcuts import redirect, render
+from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_safe
 
 from core import faults, security
 from core.inputs import parse_id
 from core.roles import role_required
-from core.visibility import visible
-from inspections.models import NCR, Assembly, AssemblyState
-from inspections.models.ncr import NCRState
-from procedures.models import WPS
-from procedures.models.wps import WPSState
+from inspections.services import today as morning
 
 
 class SignIn(LoginView):
@@ -46,15 +43,9 @@ def lockouts(request):
 
 @require_safe
 def home(request):
-    user = request.user
-    context = {
-        "wps_submitted": visible(user, WPS.objects.filter(state=WPSState.SUBMITTED)).count(),
-        "wps_drafts": visible(user, WPS.objects.filter(state=WPSState.DRAFT)).count(),
-        "ncrs_open": visible(user, NCR.objects.exclude(state=NCRState.CLOSED)).count(),
-        "assemblies_waiting": visible(user, Assembly.objects.filter(state=AssemblyState.AWAITING_INSPECTION)).count(),
-        "assemblies_rejected": visible(user, Assembly.objects.filter(state=AssemblyState.REJECTED)).count(),
-    }
-    return render(request, "home.html", context)
+    """Each role's morning page: what needs action today (inspections.services.today)."""
+    today = timezone.localdate()
+    return render(request, "home.html", {"sections": morning.for_user(request.user, today), "today": today})
 
 
 def bad_request(request, exception=None):

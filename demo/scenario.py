@@ -15,6 +15,8 @@ computes them. What the demo shows, by where to look:
   (BSW-103 was never approved) and P2 on a welder whose SMAW continuity lapsed (B-23). The procedures are
   approved when the demo loads, so its welds are dated the day it loads (a WPS must be approved on the day a weld
   is made); the welds waiting days for the inspector show as blocked until the shop records them again.
+- the trends page and the QA lead's morning page: twenty weeks of finished work on J-2405 and J-2408 (demo/history.py,
+  signed on their days), in which B-12's reject rate climbs; one NCR of five weeks ago still awaits disposition.
 """
 
 from datetime import date, timedelta
@@ -283,6 +285,9 @@ def _jobs(users, procedures, welders, today):
     _runway(runway, users, procedures, welders, today)
     _canopy(canopy, users, procedures, welders, today)
     _platform(platform, users, procedures, welders, today)
+    from demo import history as past
+
+    past.build(users, welders, (harlan, ostrander), today)
 
 
 def _weld(assembly, mark, wps, welders, on, **fields):

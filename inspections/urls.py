@@ -10,6 +10,7 @@ from inspections.views import ncr as ncr_views
 from inspections.views import records as record_views
 from inspections.views import strength as strength_views
 from inspections.views import travelers as traveler_views
+from inspections.views import trends as trend_views
 
 app_name = "inspections"
 
@@ -86,4 +87,8 @@ urlpatterns = [
     path("documents/check/", record_views.document_check, name="document_check"),
     path("jobs/<int:pk>/export.zip", record_views.job_export, name="job_export"),
     # end of checking and export
+    # --- quality trends (inspections.views.trends) ---
+    path("trends/", trend_views.trends_page, name="trends"),
+    path("trends/<slug:chart>.csv", trend_views.trends_csv, name="trends_csv"),
+    # end of quality trends
 ]

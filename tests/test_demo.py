@@ -69,3 +69,25 @@ def test_the_demo_shows_fit_up_measured_iso_throat_length_and_symbols_by_code(db
     waiting = {(q.job.number, s.key) for q in queue.waiting() for s in q.stages}
     assert {("J-2417", "fit_up"), ("J-2417", "final"), ("J-2440", "final")} <= waiting
     assert any(a.overdue for q in queue.waiting() for s in q.stages for a in s.assemblies)
+
+
+def test_the_demo_history_shows_a_welder_whose_reject_rate_climbs(db):
+    """demo/history.py: B-12's rejections at final visual climb over the weeks; B-07's stay few."""
+    from datetime import timedelta
+
+    from django.utils import timezone
+
+    from demo.history import HISTORY_WEEKS
+
+    call_command("load_demo", verbosity=0)
+    final = Inspection.objects.filter(stage="final", weld__assembly__job__number__in=("J-2405", "J-2408"))
+    start = timezone.localdate() - timedelta(weeks=HISTORY_WEEKS + 1)
+    middle = start + timedelta(weeks=HISTORY_WEEKS // 2 + 1)
+
+    def rejected(stamp, after, before):
+        return final.filter(weld__welders__stamp=stamp, accepted=False, inspected_at__date__gte=after,
+                            inspected_at__date__lt=before).count()
+
+    assert rejected("B-12", middle, timezone.localdate()) >= 2 * rejected("B-12", start, middle) > 0
+    assert rejected("B-07", start, timezone.localdate()) < rejected("B-12", start, timezone.localdate()) / 2
+    assert NCR.objects.filter(weld__assembly__job__number="J-2405", state="open").count() == 1

@@ -147,37 +147,86 @@ def repaired_weld(weld, wps, welded_on):
 def check_assembly(assembly, welds=None, statuses=None) -> dict[int, WeldChain]:
     """Every weld's chain, {weld.pk: WeldChain} in weld mark order. Pass the page's welds (select_related('wps'),
     prefetch_related('welders')) and statuses to share them; the query count stays fixed either way."""
-    job = _job(assembly)
     welds = assembly_welds(assembly) if welds is None else list(welds)
-    ids = [w.pk for w in welds]
+    return _check([(_job(assembly), welds)], statuses)[0]
+
+
+def check_assemblies(assemblies) -> dict[int, dict[int, WeldChain]]:
+    """check_assembly for many assemblies at once, {assembly.pk: chains}, in the same fixed number of queries
+    whatever the number of assemblies (the morning page asks it of every assembly waiting for release). Pass them
+    with select_related('job__client_criteria')."""
+    assemblies = list(assemblies)
+    if not assemblies:
+        return {}
+    by_assembly = {a.pk: [] for a in assemblies}
+    for weld in (Weld.objects.filter(assembly_id__in=list(by_assembly)).select_related("wps")
+                 .prefetch_related("welders").order_by("assembly_id", "mark")):
+        by_assembly[weld.assembly_id].append(weld)
+    found = _check([(_job(a), by_assembly[a.pk]) for a in assemblies])
+    return {a.pk: chains for a, chains in zip(assemblies, found, strict=True)}
+
+
+def inspection_blockers(assemblies) -> dict[int, list[Blocker]]:
+    """The inspection link alone (accepted current final visual, no NCR open) of every weld of many assemblies,
+    {assembly.pk: blockers}, from the database in three queries whatever their number: what the morning page asks
+    before running the whole chain (the engines) only for the assemblies this link does not already stop. An empty
+    weld map is a blocker too."""
+    assemblies = list(assemblies)
+    if not assemblies:
+        return {}
+    welds = list(Weld.objects.filter(assembly_id__in=[a.pk for a in assemblies]).only("pk", "mark", "assembly_id")
+                 .order_by("assembly_id", "mark"))
+    statuses = weld_statuses([w.pk for w in welds])
+    repaired = {}
+    for weld_id, ncr_id in WeldRepair.objects.filter(weld_id__in=[w.pk for w in welds]).values_list("weld_id",
+                                                                                                     "ncr_id"):
+        repaired.setdefault(weld_id, set()).add(ncr_id)
+    found = {a.pk: [] for a in assemblies}
+    for weld in welds:
+        found[weld.assembly_id] += _status_blockers(f"Weld {weld.mark}", weld, statuses[weld.pk],
+                                                    repaired.get(weld.pk, set()))
+    for assembly in assemblies:
+        if not any(w.assembly_id == assembly.pk for w in welds):
+            found[assembly.pk] = [Blocker("The weld map is empty: add the welds before release.")]
+    return found
+
+
+def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
+    """The chains of each (job, welds) pair, in order: every query made once for all of them."""
+    ids = [w.pk for _job_, welds in items for w in welds]
     statuses = statuses if statuses is not None else weld_statuses(ids)
     repairs = {}
     if ids:
         for repair in (WeldRepair.objects.filter(weld_id__in=ids).select_related("wps", "ncr")
                        .prefetch_related("welders").order_by("welded_on", "pk")):
             repairs.setdefault(repair.weld_id, []).append(repair)
-    prime_successors([w.wps for w in welds] + [r.wps for rs in repairs.values() for r in rs])
+    everything = [w for _job_, welds in items for w in welds]
+    prime_successors([w.wps for w in everything] + [r.wps for rs in repairs.values() for r in rs])
     today = timezone.localdate()
-    works = [eligibility.Work(("weld", w.pk), w, tuple(w.welders.all()), w.welded_on or today) for w in welds]
-    by_weld = {w.pk: w for w in welds}
-    for weld_id, items in repairs.items():
+    works = [eligibility.Work(("weld", w.pk), w, tuple(w.welders.all()), w.welded_on or today) for w in everything]
+    by_weld = {w.pk: w for w in everything}
+    for weld_id, done in repairs.items():
         works += [eligibility.Work(("repair", r.pk), repaired_weld(by_weld[weld_id], r.wps, r.welded_on),
-                                   tuple(r.welders.all()), r.welded_on) for r in items]
+                                   tuple(r.welders.all()), r.welded_on) for r in done]
     checks = eligibility.check_work(works) if works else {}
-    fit_ups = _fit_ups(ids) if job.fit_up_hold_point and ids else {}
+    held = [w.pk for job, welds in items if job.fit_up_hold_point for w in welds]
+    fit_ups = _fit_ups(held) if held else {}
 
-    chains = {}
-    for weld in welds:
-        day = weld.welded_on
-        chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
-                          statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point)
-        for repair in repairs.get(weld.pk, []):
-            label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
-            chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
-                                             checks[("repair", repair.pk)]))
-        chain.blockers = _blockers(chain)
-        chains[weld.pk] = chain
-    return chains
+    found = []
+    for job, welds in items:
+        chains = {}
+        for weld in welds:
+            day = weld.welded_on
+            chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
+                              statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point)
+            for repair in repairs.get(weld.pk, []):
+                label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
+                chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
+                                                 checks[("repair", repair.pk)]))
+            chain.blockers = _blockers(chain)
+            chains[weld.pk] = chain
+        found.append(chains)
+    return found
 
 
 def _fit_ups(ids) -> dict[int, Inspection]:
@@ -252,9 +301,12 @@ def _blockers(chain: WeldChain) -> list[Blocker]:
 
 
 def _inspection_blockers(subject, chain: WeldChain) -> list[Blocker]:
-    status = chain.status
+    return _status_blockers(subject, chain.weld, chain.status, {item.repair.ncr_id for item in chain.repairs})
+
+
+def _status_blockers(subject, weld, status: WeldStatus, repaired) -> list[Blocker]:
+    """The inspection link of one weld: its open NCRs (with the step each waits for), else its final visual."""
     found = []
-    repaired = {item.repair.ncr_id for item in chain.repairs}
     for ncr in status.open_ncrs:
         if ncr.state == NCRState.OPEN:
             step = "awaiting disposition"
@@ -265,7 +317,7 @@ def _inspection_blockers(subject, chain: WeldChain) -> list[Blocker]:
         found.append(Blocker(f"{subject}: {ncr} is open ({step}).", ncr.get_absolute_url()))
     if status.open_ncrs:
         return found
-    inspect = _url("inspections:inspect_weld", chain.weld.pk)
+    inspect = _url("inspections:inspect_weld", weld.pk)
     if status.final is None:
         found.append(Blocker(f"{subject} has no final visual inspection.", inspect))
     elif not status.released_ok:

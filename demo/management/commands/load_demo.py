@@ -26,4 +26,4 @@ class Command(BaseCommand):
                           f"{demo.PASSWORD}):")
         for username, name, role in demo.accounts():
             self.stdout.write(f"  {username:<10} {name:<18} {role}")
-        self.stdout.write(f"The viewer sees only {demo.VIEWER_CUSTOMER}'s job (a customer's account).")
+        self.stdout.write(f"The viewer sees only {demo.VIEWER_CUSTOMER}'s jobs (a customer's account).")

@@ -122,10 +122,14 @@ def test_keep_for_later_keeps_a_draft_only_its_inspector_sees(make, client_as, u
     assert draft.inspector == users["inspector"]
     form = client.get(reverse("inspections:inspect_weld", args=[weld.pk])).context["form"]
     assert form.initial["min_size"] == "3/16" and form.initial["crack"] is True
-    assert "W7" in client.get(reverse("inspections:inspect_home")).content.decode()
+    # The page's own words for the draft, not a bare "W7" that a random CSRF token may also hold.
+    shown = f"{weld.assembly.piece_mark} / W7"
+    home = client.get(reverse("inspections:inspect_home"))
+    assert [d.weld for d in home.context["drafts"]] == [weld] and shown in home.content.decode()
     other = make.make_user("inspector")
     client.force_login(other)
-    assert "W7" not in client.get(reverse("inspections:inspect_home")).content.decode()
+    home = client.get(reverse("inspections:inspect_home"))
+    assert home.context["drafts"] == [] and shown not in home.content.decode()
     assert not client.get(reverse("inspections:inspect_weld", args=[weld.pk])).context["form"].initial
 
 

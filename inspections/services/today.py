@@ -27,7 +27,7 @@ from typing import NamedTuple
 from urllib.parse import urlencode
 
 from django.db.models import Count, OuterRef, Q, Subquery
-from django.urls import NoReverseMatch, reverse
+from django.urls import reverse
 from django.utils import timezone
 
 from core.models import Event
@@ -45,19 +45,9 @@ NCR_AGE_BANDS = ((0, 7), (8, 30), (31, None))
 
 SHOWN = 8  # the longest list of single records a section shows; the rest is behind its "all" link
 
-# The list pages of the list-filter contract that this branch does not have yet (another branch adds them): their
-# address under the inspections prefix, so the links already carry the agreed parameters.
-_PENDING_LISTS = {"inspections:assembly_list": "assemblies/", "inspections:inspection_list": "inspections/"}
-
-
 def list_url(name: str, **params) -> str:
     """The address of a list page with its filter parameters (the list-filter contract), empty ones left out."""
-    try:
-        path = reverse(name)
-    except NoReverseMatch:
-        if name not in _PENDING_LISTS:
-            raise
-        path = reverse("inspections:job_list").removesuffix("jobs/") + _PENDING_LISTS[name]
+    path = reverse(name)
     query = urlencode([(k, v) for k, v in params.items() if v not in (None, "")])
     return f"{path}?{query}" if query else path
 

@@ -8,6 +8,7 @@ from inspections.views import jobs as job_views
 from inspections.views import ncr as ncr_views
 from inspections.views import records as record_views
 from inspections.views import strength as strength_views
+from inspections.views import trace as trace_views
 from inspections.views import travelers as traveler_views
 
 app_name = "inspections"
@@ -66,6 +67,13 @@ urlpatterns = [
     path("inspection/<int:pk>/capacity.pdf", strength_views.inspection_capacity_pdf,
          name="inspection_capacity_pdf"),
     # end of strength calculator and calculation sheets
+    # --- traceability registers: inspector credentials, gauges (inspections.views.trace) ---
+    path("credentials/", trace_views.credential_list, name="credential_list"),
+    path("credentials/new/", trace_views.credential_create, name="credential_create"),
+    path("credentials/<int:pk>/", trace_views.credential_detail, name="credential_detail"),
+    path("credentials/<int:pk>/withdraw/", trace_views.credential_withdraw, name="credential_withdraw"),
+    path("credentials/<int:pk>/card/", trace_views.credential_document, name="credential_document"),
+    # end of traceability registers
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),
     path("assemblies/<int:pk>/travelers/issue/", traveler_views.traveler_issue, name="traveler_issue"),

@@ -46,13 +46,33 @@ class Factory:
         models.Model.save(record, update_fields=list(fields))
         return record
 
-    def make_user(self, role, username=None, **kwargs):
+    def make_user(self, role, username=None, credential=True, **kwargs):
         username = username or f"{role}-{next(_counter)}"
         user = User(username=username, role=role, first_name=kwargs.pop("first_name", role.replace("_", " ").title()),
                     **kwargs)
         user.set_password(self.password)
         user.save()
+        if role == "inspector" and credential:  # an inspector signs final visuals only under a current credential
+            self.make_credential(user)
         return user
+
+    def make_credential(self, inspector=None, **kwargs):
+        """An AWS CWI credential, current from a year ago to two years ahead, eye examination a year ago."""
+        from datetime import timedelta
+
+        from django.utils import timezone
+
+        from inspections.models import InspectorCredential
+
+        today = timezone.localdate()
+        fields = dict(scheme="aws_cwi", number=f"CWI {next(_counter):02d}-{today:%m%d}",
+                      issued_on=today - timedelta(days=365), expires_on=today + timedelta(days=730),
+                      eye_exam_on=today - timedelta(days=365))
+        fields.update(kwargs)
+        credential = InspectorCredential(inspector=inspector or self.make_user("inspector", credential=False),
+                                         **fields)
+        credential.save()
+        return credential
 
     def make_wps(self, state=WPSState.DRAFT, via_steps=True, **kwargs):
         """A WPS in `state`, taken there through the real steps; via_steps=False stores the row in that state

@@ -100,6 +100,11 @@ class Inspection(Guarded):
         "leg increase for the root opening", null=True, blank=True, editable=False,
         help_text="Added to the specified leg for the root opening measured at fit-up (AWS D1.1 clause 7.21.1)")
 
+    credential = models.ForeignKey(
+        "inspections.InspectorCredential", null=True, blank=True, on_delete=models.PROTECT, editable=False,
+        related_name="inspections", help_text="The inspector's certification current when signed (a final visual "
+                                              "needs one: inspections.services.trace)")
+
     accepted = models.BooleanField(editable=False)
     findings = models.JSONField(editable=False, help_text="The verdict's findings as judged when signed")
     criteria_key = models.CharField(max_length=60, editable=False)

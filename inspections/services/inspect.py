@@ -37,6 +37,7 @@ from inspections.models import (
     Photo,
     Weld,
 )
+from inspections.services import trace
 from inspections.services.assemblies import refresh_assembly_state
 from inspections.services.ncr import close_ncrs_for, open_ncr
 
@@ -290,6 +291,7 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
     first = welds[0]
     for weld in welds:
         _check_signable(weld, stage)
+    credential = trace.signing_credential(user, stage, timezone.localdate())
     others = [w for w in welds[1:] if batch_key(w) != batch_key(first)]
     if others:
         raise Refused(f"Weld {others[0].mark} is not identical to {first.mark} (size, length, parts or WPS differ): "
@@ -337,7 +339,7 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
         inspection = Inspection(
             weld=weld, stage=stage, inspector=user, supersedes=supersedes, correction_reason=reason.strip(),
             remarks=remarks, accepted=verdict.accepted, findings=findings, criteria_key=key,
-            criteria_version=version, batch=batch, leg_increase=increase, **values,
+            criteria_version=version, batch=batch, leg_increase=increase, credential=credential, **values,
         )
         inspection.save(user=user)
         seals.seal(inspection, "inspection.signed")

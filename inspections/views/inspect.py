@@ -14,6 +14,7 @@ from django.db.models import Exists, OuterRef, Q
 from django.http import FileResponse, Http404, QueryDict
 from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
+from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
 from core import faults, history, seals
@@ -28,6 +29,7 @@ from inspections.models import NCR, Assembly, DraftPhoto, Inspection, Inspection
 from inspections.models.ncr import Disposition, NCRState
 from inspections.photos import PhotoError, clean_photo
 from inspections.services import inspect as service
+from inspections.services import trace
 from inspections.services.assemblies import weld_statuses
 from inspections.services.capacity import capacity_cards
 from inspections.services.chain import wps_checks
@@ -266,6 +268,7 @@ def _form_page(request, form, weld, correcting=None, draft=None, photo_errors=()
         "system": weld.assembly.job.unit_system, "verdict": verdict, "digest": digest, "correcting": correcting,
         "draft": draft, "held": list(draft.photos.all()) if draft is not None else [],
         "photo_errors": photo_errors, "too_early": service.final_visual_refusal(weld), "flags": weld_flags(weld),
+        "no_credential": trace.credential_refusal(request.user, timezone.localdate()),
         "batch_ids": ",".join(str(w.pk) for w in form.batch),
     }, status=status)
 
@@ -289,7 +292,7 @@ def inspect_preview(request, pk):
 def _inspection(request, pk):
     return get_visible_or_404(
         request.user, Inspection.objects.select_related(
-            "weld__assembly__job__client_criteria", "weld__wps", "inspector", "supersedes__inspector",
+            "weld__assembly__job__client_criteria", "weld__wps", "inspector", "credential", "supersedes__inspector",
             "superseded_by__inspector"), pk=pk)
 
 

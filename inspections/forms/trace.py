@@ -1,0 +1,65 @@
+"""Register forms: an inspector's credential as its card prints it (and, below, gauges). Dates are checked for
+order and for the future; the currency rule itself is the engine's (inspections.credentials)."""
+
+from crispy_forms.helper import FormHelper
+from crispy_forms.layout import Column, Fieldset, Layout, Row
+from django import forms
+
+from core.documents import ACCEPT, clean_document
+from core.models import User
+from core.roles import Role
+from inspections import credentials as engine
+from inspections.models import InspectorCredential
+from procedures.forms.welders import DateInput, _not_after_today
+
+
+class CredentialForm(forms.ModelForm):
+    class Meta:
+        model = InspectorCredential
+        fields = ["inspector", "scheme", "scheme_name", "number", "level", "endorsements", "issued_on",
+                  "expires_on", "eye_exam_on", "document"]
+        widgets = {"issued_on": DateInput(), "expires_on": DateInput(), "eye_exam_on": DateInput()}
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["inspector"].queryset = User.objects.filter(role=Role.INSPECTOR, is_active=True).order_by(
+            "last_name", "username")
+        self.fields["document"].widget.attrs["accept"] = ACCEPT
+        self.helper = FormHelper()
+        self.helper.form_tag = False
+        self.helper.layout = Layout(
+            Fieldset("The card", Row(Column("inspector"), Column("scheme"), Column("scheme_name")),
+                     Row(Column("number"), Column("level"), Column("endorsements"))),
+            Fieldset("Dates", Row(Column("issued_on"), Column("expires_on"), Column("eye_exam_on"))),
+            Fieldset("Copy", Row(Column("document"))),
+        )
+
+    def clean_number(self):
+        return self.cleaned_data["number"].strip()
+
+    def clean_level(self):
+        return self.cleaned_data["level"].strip()
+
+    def clean_issued_on(self):
+        return _not_after_today(self.cleaned_data.get("issued_on"), "The date it is valid from")
+
+    def clean_eye_exam_on(self):
+        return _not_after_today(self.cleaned_data.get("eye_exam_on"), "The eye examination")
+
+    def clean_document(self):
+        return clean_document(self.cleaned_data.get("document"), "copy of the card")
+
+    def clean(self):
+        data = super().clean()
+        scheme, issued, expires = data.get("scheme"), data.get("issued_on"), data.get("expires_on")
+        if issued and expires and expires < issued:
+            self.add_error("expires_on", "The card expires before it is valid: check both dates.")
+        if scheme == engine.NATIONAL and not (data.get("scheme_name") or "").strip():
+            self.add_error("scheme_name", "Name the national scheme and its certifying body (e.g. CSA W178.2).")
+        level = data.get("level")
+        if scheme == engine.ISO_9712 and level not in ("1", "2", "3"):
+            self.add_error("level", "ISO 9712 certifies at level 1, 2 or 3 (ISO 9712:2021 clause 6).")
+        if scheme in (engine.CWI, engine.SCWI) and level:
+            self.add_error("level", "An AWS certification has no level: leave it blank (the scheme says CWI or "
+                                    "SCWI).")
+        return data

@@ -26,6 +26,8 @@ from inspections.models import (
     Assembly,
     ClientCriteriaSet,
     Customer,
+    Gauge,
+    GaugeCalibration,
     Inspection,
     InspectorCredential,
     Job,
@@ -39,7 +41,7 @@ from procedures.models.welders import ContinuityEntry
 SHOP_ROLES = {Role.WELDING_ENGINEER, Role.INSPECTOR, Role.QA_LEAD}
 
 # The shop's own registers: a viewer reads them only as printed on its travelers (docs/decisions, traceability).
-SHOP_REGISTERS = (InspectorCredential,)
+SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration)
 
 # Records that belong to one job: the path from the record to its job.
 JOB_PATHS = {

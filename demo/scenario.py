@@ -78,6 +78,7 @@ def load() -> bool:
         procedures = _procedures(users, pqrs)
         welders = _welders(users, today)
         _credentials(users, today)
+        _gauges(users, today)
         _jobs(users, procedures, welders, today)
     return True
 
@@ -101,6 +102,28 @@ def _credentials(users, today):
                             endorsements="Sector: welded products (w)", issued_on=today - timedelta(days=1800),
                             expires_on=today + timedelta(days=21), eye_exam_on=today - timedelta(days=200),
                             recorded_by=users[Role.QA_LEAD]).save()
+
+
+def _gauges(users, today):
+    """The gauge register: two gauges in calibration, a contact thermometer due in ten days (the list warns), and a
+    fillet gauge whose calibration ran out last week (it cannot be chosen). Demo inspections use FG-01."""
+    from inspections.models import Gauge, GaugeCalibration
+
+    register = [
+        ("FG-01", "fillet", "Fillet weld gauge set 1/8-1 in", 200, 165, "in_tolerance"),
+        ("UC-02", "undercut", "Undercut / pit depth gauge, dial", 90, 275, "in_tolerance"),
+        ("TC-03", "thermometer", "Contact thermometer, 0-600 F", 355, 10, "in_tolerance"),
+        ("FG-04", "fillet", "Fillet weld gauge set 3-25 mm", 372, -7, "in_tolerance"),
+    ]
+    with history.acting(users[Role.QA_LEAD]):
+        for number, kind, description, ago, due_in, result in register:
+            gauge = Gauge(number=number, kind=kind, description=description, recorded_by=users[Role.QA_LEAD])
+            gauge.save()
+            GaugeCalibration(gauge=gauge, calibrated_on=today - timedelta(days=ago),
+                             due_on=today + timedelta(days=due_in), result=result,
+                             performed_by="Ridgeway Metrology Lab" if kind != "fillet" else
+                             "Brannock QA bench, reference block set R-2",
+                             recorded_by=users[Role.QA_LEAD]).save()
 
 
 def _pqrs():
@@ -318,9 +341,11 @@ def _weld(assembly, mark, wps, welders, on, **fields):
 
 
 def _inspect(weld, users, stage="final", **observed):
+    from inspections.models import Gauge
     from inspections.services.inspect import sign_inspection
 
-    return sign_inspection(weld, observed, stage, users[Role.INSPECTOR])
+    gauge = Gauge.objects.get(number="FG-01") if stage != "fit_up" else None
+    return sign_inspection(weld, observed, stage, users[Role.INSPECTOR], gauge=gauge)
 
 
 def _garage(job, users, procedures, welders, today):

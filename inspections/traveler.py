@@ -124,6 +124,7 @@ def _inspection(inspection: Inspection | None, system: str) -> dict | None:
         return None
     return {"pk": inspection.pk, "accepted": inspection.accepted, "inspector": _inspector(inspection),
             "date": _day(inspection.inspected_at), "stage": inspection.get_stage_display(),
+            "gauge": inspection.gauge_calibration.printed() if inspection.gauge_calibration else "",
             "recorded": [f"{label} {value}" for label, value in inspection.recorded(system)]}
 
 
@@ -189,7 +190,8 @@ def gather(assembly_pk: int) -> dict:
     chains = proof.check_assembly(assembly, welds, statuses)  # WPS, welders (original and repairs), hold point
     fit_ups = {}
     for inspection in (Inspection.objects.current().filter(weld_id__in=weld_ids, stage=InspectionStage.FIT_UP)
-                       .select_related("inspector", "credential").order_by("weld_id", "-inspected_at", "-pk")):
+                       .select_related("inspector", "credential", "gauge_calibration__gauge")
+                       .order_by("weld_id", "-inspected_at", "-pk")):
         fit_ups.setdefault(inspection.weld_id, inspection)
     photos = list(Photo.objects.filter(inspection__weld_id__in=weld_ids)
                   .select_related("inspection").order_by("-uploaded_at", "-pk")[:PHOTOS_MAX + 1])

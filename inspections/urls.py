@@ -73,6 +73,13 @@ urlpatterns = [
     path("credentials/<int:pk>/", trace_views.credential_detail, name="credential_detail"),
     path("credentials/<int:pk>/withdraw/", trace_views.credential_withdraw, name="credential_withdraw"),
     path("credentials/<int:pk>/card/", trace_views.credential_document, name="credential_document"),
+    path("gauges/", trace_views.gauge_list, name="gauge_list"),
+    path("gauges/new/", trace_views.gauge_create, name="gauge_create"),
+    path("gauges/<int:pk>/", trace_views.gauge_detail, name="gauge_detail"),
+    path("gauges/<int:pk>/calibrations/new/", trace_views.calibration_create, name="calibration_create"),
+    path("gauges/<int:pk>/retire/", trace_views.gauge_retire, name="gauge_retire"),
+    path("calibrations/<int:pk>/", trace_views.calibration_detail, name="calibration_detail"),
+    path("calibrations/<int:pk>/certificate/", trace_views.calibration_document, name="calibration_document"),
     # end of traceability registers
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),

@@ -74,6 +74,31 @@ class Factory:
         credential.save()
         return credential
 
+    def make_gauge(self, number=None, kind="fillet", calibrated_on=None, due_on=None, result="in_tolerance"):
+        """A gauge of the register with one calibration (calibrated 100 days ago, due in a year) unless result=None."""
+        from datetime import timedelta
+
+        from django.utils import timezone
+
+        from inspections.models import Gauge
+
+        today = timezone.localdate()
+        gauge = Gauge(number=number or f"FG-{next(_counter):02d}", kind=kind, description="Fillet gauge set")
+        gauge.save()
+        if result is not None:
+            self.calibrate(gauge, calibrated_on or today - timedelta(days=100), due_on or today + timedelta(days=265),
+                           result)
+        return gauge
+
+    @staticmethod
+    def calibrate(gauge, calibrated_on, due_on, result="in_tolerance"):
+        from inspections.models import GaugeCalibration
+
+        record = GaugeCalibration(gauge=gauge, calibrated_on=calibrated_on, due_on=due_on, result=result,
+                                  performed_by="Brannock QA bench, reference block set R-2")
+        record.save()
+        return record
+
     def make_wps(self, state=WPSState.DRAFT, via_steps=True, **kwargs):
         """A WPS in `state`, taken there through the real steps; via_steps=False stores the row in that state
         directly (a record whose review would not pass today, e.g. submitted before a rule was added)."""
@@ -214,7 +239,7 @@ class Factory:
         return weld
 
     def make_inspection(self, weld=None, *, accepted=None, stage="final", user=None, supersedes=None, reason="",
-                        **observed):
+                        gauge=None, **observed):
         """A signed inspection through the one signing path (inspections.services.inspect.sign_inspection).
 
         With no observations: accepted=True (the default) measures the full specified leg; accepted=False a leg
@@ -234,7 +259,7 @@ class Factory:
                 observed = {"min_size": Length(weld.size.mm - L("1/16 in").mm), "undersize_length": L("3 in")}
             else:
                 observed = {"min_size": weld.size}
-        inspection = sign_inspection(weld, observed, stage, user, supersedes=supersedes, reason=reason)
+        inspection = sign_inspection(weld, observed, stage, user, supersedes=supersedes, reason=reason, gauge=gauge)
         if accepted is not None:
             assert inspection.accepted == accepted, f"the engine judged {observed} otherwise: {inspection.findings}"
         return inspection

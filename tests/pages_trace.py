@@ -5,21 +5,36 @@ from tests.test_role_matrix import only
 
 SHOP = {"welding_engineer": 200, "inspector": 200, "qa_lead": 200, "viewer": 403}
 SHOP_RECORD = {**SHOP, "viewer": 404}
+NO_FILE = {"welding_engineer": 404, "inspector": 404, "qa_lead": 404, "viewer": 404}  # nothing attached
 
 
 def _credential(make):
     return {"pk": make.make_credential().pk}
 
 
+def _gauge(make):
+    return {"pk": make.make_gauge().pk}
+
+
+def _calibration(make):
+    return {"pk": make.make_gauge().calibrations.get().pk}
+
+
+# Attached files are tested in tests/test_trace_credentials.py and tests/test_trace_gauges.py.
 PAGES = {
     "inspections:credential_list": (lambda make: {}, SHOP),
     "inspections:credential_create": (lambda make: {}, only("qa_lead")),
     "inspections:credential_detail": (_credential, SHOP_RECORD),
-    # No copy attached: 404 to everyone signed in; copies are tested in tests/test_trace_credentials.py.
-    "inspections:credential_document": (_credential, {"welding_engineer": 404, "inspector": 404, "qa_lead": 404,
-                                                      "viewer": 404}),
+    "inspections:credential_document": (_credential, NO_FILE),
+    "inspections:gauge_list": (lambda make: {}, SHOP),
+    "inspections:gauge_create": (lambda make: {}, only("qa_lead")),
+    "inspections:gauge_detail": (_gauge, SHOP_RECORD),
+    "inspections:calibration_detail": (_calibration, SHOP_RECORD),
+    "inspections:calibration_document": (_calibration, NO_FILE),
 }
 
 NOT_PAGES = {
     "inspections:credential_withdraw": _credential,
+    "inspections:calibration_create": _gauge,
+    "inspections:gauge_retire": _gauge,
 }

@@ -195,10 +195,13 @@ def test_the_weld_form_uses_a_fixed_number_of_queries(make, client_as, django_as
     weld = make.make_weld()
     for _ in range(3):
         make.make_inspection(weld)
+    make.make_gauge()
     client = client_as("inspector")
     url = reverse("inspections:inspect_weld", args=[weld.pk])
     client.get(url)
-    with django_assert_num_queries(4):  # session, user, weld with assembly, job, client set and WPS, own draft
+    # session, user, weld with assembly, job, client set and WPS, own draft; the inspector's credentials; the
+    # gauges with their calibrations (inspections.services.trace)
+    with django_assert_num_queries(7):
         client.get(url)
 
 

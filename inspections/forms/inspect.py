@@ -9,14 +9,17 @@ everywhere (core.units reads a decimal comma). Angles are read by core.units.par
 """
 
 from django import forms
+from django.utils import timezone
 
 from core import units
 from core.fields import set_unit_system
+from core.inputs import parse_id
 from core.units import parse_length
 from inspections import observations
 from inspections.criteria import resolve
-from inspections.models import Inspection, InspectionStage, Weld
+from inspections.models import Gauge, Inspection, InspectionStage, Weld
 from inspections.photos import PhotoError, clean_photo
+from inspections.services import trace
 
 MAX_DEFECT = parse_length("1000 mm")  # nothing a fillet gauge reads on one weld is longer than a metre
 MAX_SIZE = parse_length("100 mm")
@@ -70,6 +73,10 @@ class InspectionForm(forms.ModelForm):
         required=False, label="Fit-up acceptable",
         help_text="Joint, alignment and cleanliness match the drawing and the WPS.")
     shown_verdict = forms.CharField(required=False, widget=forms.HiddenInput(attrs={"id": "lw-shown"}))
+    gauge = forms.CharField(
+        required=False, label="Gauge used", max_length=20, widget=forms.Select(),
+        help_text="From the gauge register: only gauges in calibration today are offered. Optional: an inspection "
+                  "that measured nothing names none.")
 
     def __init__(self, *args, weld: Weld, batch=(), **kwargs):
         super().__init__(*args, **kwargs)
@@ -114,6 +121,8 @@ class InspectionForm(forms.ModelForm):
         if "min_size" in self.fields:
             self.fields["min_size"].allow_zero = False
         self.fields["fit_up_ok"].widget.attrs.update({"class": "lw-tile-input"})
+        self.fields["gauge"].widget.choices = [("", "— none —")] + [
+            (str(g.pk), f"{g.number} · {g.get_kind_display()}") for g in trace.usable_gauges(timezone.localdate())]
         self.fields["stage"].widget = forms.RadioSelect(choices=InspectionStage.choices, attrs={"class": "btn-check"})
         self.batch = list(batch)
         if self.batch:
@@ -167,6 +176,20 @@ class InspectionForm(forms.ModelForm):
             raise forms.ValidationError(f"Enter at most 1000 pores; count the worst "
                                         f"{'4 in' if self.system == 'US' else '100 mm'} only.")
         return value
+
+    def clean_gauge(self):
+        """The Gauge chosen, or None; a gauge out of calibration today is refused with the reason."""
+        text = self.cleaned_data.get("gauge") or ""
+        if not text.strip():
+            return None
+        pk = parse_id(text)
+        gauge = Gauge.objects.filter(pk=pk).first() if pk is not None else None
+        if gauge is None:
+            raise forms.ValidationError("Choose a gauge from the register.", code="invalid_choice")
+        why = trace.gauge_refusal(gauge, timezone.localdate())
+        if why:
+            raise forms.ValidationError(why, code="out_of_calibration")
+        return gauge
 
     def clean(self):
         data = super().clean()

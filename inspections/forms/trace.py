@@ -1,15 +1,16 @@
-"""Register forms: an inspector's credential as its card prints it (and, below, gauges). Dates are checked for
+"""Register forms: an inspector's credential as its card prints it, a gauge, a calibration. Dates are checked for
 order and for the future; the currency rule itself is the engine's (inspections.credentials)."""
 
 from crispy_forms.helper import FormHelper
 from crispy_forms.layout import Column, Fieldset, Layout, Row
 from django import forms
+from django.core.exceptions import ValidationError
 
 from core.documents import ACCEPT, clean_document
 from core.models import User
 from core.roles import Role
 from inspections import credentials as engine
-from inspections.models import InspectorCredential
+from inspections.models import CalibrationResult, Gauge, GaugeCalibration, InspectorCredential
 from procedures.forms.welders import DateInput, _not_after_today
 
 
@@ -62,4 +63,53 @@ class CredentialForm(forms.ModelForm):
         if scheme in (engine.CWI, engine.SCWI) and level:
             self.add_error("level", "An AWS certification has no level: leave it blank (the scheme says CWI or "
                                     "SCWI).")
+        return data
+
+
+def _helper(form, layout):
+    form.helper = FormHelper()
+    form.helper.form_tag = False
+    form.helper.layout = layout
+
+
+class GaugeForm(forms.ModelForm):
+    class Meta:
+        model = Gauge
+        fields = ["number", "kind", "description", "serial_number"]
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        _helper(self, Layout(Row(Column("number"), Column("kind")), Row(Column("description"),
+                                                                         Column("serial_number"))))
+
+    def clean_number(self):
+        number = self.cleaned_data["number"].strip().upper()
+        if not number:
+            raise ValidationError("Give the gauge its register number, e.g. FG-03.", code="required")
+        return number
+
+
+class CalibrationForm(forms.ModelForm):
+    class Meta:
+        model = GaugeCalibration
+        fields = ["calibrated_on", "result", "due_on", "performed_by", "note", "document"]
+        widgets = {"calibrated_on": DateInput(), "due_on": DateInput()}
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["document"].widget.attrs["accept"] = ACCEPT
+        _helper(self, Layout(Row(Column("calibrated_on"), Column("result"), Column("due_on")),
+                             Row(Column("performed_by"), Column("note")), Row(Column("document"))))
+
+    def clean_calibrated_on(self):
+        return _not_after_today(self.cleaned_data.get("calibrated_on"), "The calibration date")
+
+    def clean_document(self):
+        return clean_document(self.cleaned_data.get("document"), "certificate")
+
+    def clean(self):
+        data = super().clean()
+        made, due = data.get("calibrated_on"), data.get("due_on")
+        if made and due and due <= made and data.get("result") == CalibrationResult.IN_TOLERANCE:
+            self.add_error("due_on", "The next calibration falls due after this one: check the date.")
         return data

@@ -5,9 +5,18 @@ from inspections.models.inspection import DraftPhoto, Inspection, InspectionDraf
 from inspections.models.jobs import Assembly, AssemblyState, Customer, Job, Weld
 from inspections.models.ncr import NCR
 from inspections.models.repair import WeldRepair
-from inspections.models.trace import CredentialState, InspectorCredential
+from inspections.models.trace import (
+    CalibrationResult,
+    CredentialState,
+    Gauge,
+    GaugeCalibration,
+    GaugeKind,
+    GaugeState,
+    InspectorCredential,
+)
 from inspections.models.traveler import JobPacket, PacketState, Traveler
 
-__all__ = ["NCR", "Assembly", "AssemblyState", "ClientCriteriaSet", "CredentialState", "Customer", "DraftPhoto",
-           "Inspection", "InspectionDraft", "InspectionStage", "InspectorCredential", "Job", "JobPacket",
-           "PacketState", "Photo", "Traveler", "Weld", "WeldRepair"]
+__all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCriteriaSet", "CredentialState",
+           "Customer", "DraftPhoto", "Gauge", "GaugeCalibration", "GaugeKind", "GaugeState", "Inspection",
+           "InspectionDraft", "InspectionStage", "InspectorCredential", "Job", "JobPacket", "PacketState", "Photo",
+           "Traveler", "Weld", "WeldRepair"]

@@ -104,6 +104,10 @@ class Inspection(Guarded):
         "inspections.InspectorCredential", null=True, blank=True, on_delete=models.PROTECT, editable=False,
         related_name="inspections", help_text="The inspector's certification current when signed (a final visual "
                                               "needs one: inspections.services.trace)")
+    gauge_calibration = models.ForeignKey(
+        "inspections.GaugeCalibration", null=True, blank=True, on_delete=models.PROTECT, editable=False,
+        related_name="inspections", verbose_name="gauge used",
+        help_text="The gauge and the calibration it was in when signed (inspections.calibration)")
 
     accepted = models.BooleanField(editable=False)
     findings = models.JSONField(editable=False, help_text="The verdict's findings as judged when signed")

@@ -31,12 +31,23 @@ class DocumentMixin:
         super().save(*args, **kwargs)
 
 
+class Recorded(models.Model):
+    """Who put a register's row on record, and when (the history row says the same; pages print these)."""
+
+    recorded_by = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, on_delete=models.PROTECT,
+                                    related_name="+", editable=False)
+    recorded_at = models.DateTimeField(default=timezone.now, editable=False)
+
+    class Meta:
+        abstract = True
+
+
 class CredentialState(models.TextChoices):
     ON_FILE = "on_file", "On file"
     WITHDRAWN = "withdrawn", "Withdrawn"
 
 
-class InspectorCredential(DocumentMixin, Guarded):
+class InspectorCredential(DocumentMixin, Recorded, Guarded):
     """One certification of one inspector (AWS CWI, ISO 9712 VT, a national scheme), as the card prints it."""
 
     inspector = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="credentials")
@@ -56,9 +67,6 @@ class InspectorCredential(DocumentMixin, Guarded):
                              editable=False)
     withdrawn_reason = models.CharField(max_length=200, blank=True, editable=False)
     withdrawn_at = models.DateTimeField(null=True, blank=True, editable=False)
-    recorded_by = models.ForeignKey(settings.AUTH_USER_MODEL, null=True, on_delete=models.PROTECT,
-                                    related_name="+", editable=False)
-    recorded_at = models.DateTimeField(default=timezone.now, editable=False)
 
     objects = GuardedQuerySet.as_manager()
     lock = Lock("inspector credential", state="state", frozen=ALWAYS, name=("number",),
@@ -93,3 +101,99 @@ class InspectorCredential(DocumentMixin, Guarded):
 
     def currency(self, on):
         return engine.currency(self.facts(), on)
+
+
+# --- measuring instruments -------------------------------------------------------------------------------------
+
+class GaugeKind(models.TextChoices):
+    FILLET = "fillet", "Fillet weld gauge"
+    UNDERCUT = "undercut", "Undercut / pit depth gauge"
+    MULTI = "multi", "Multi-purpose weld gauge"
+    RULE = "rule", "Rule or tape"
+    THERMOMETER = "thermometer", "Contact thermometer"
+    CRAYON = "crayon", "Temperature-indicating crayon"
+    METER = "meter", "Welding-machine meter (amperes, volts)"
+    OTHER = "other", "Other instrument"
+
+
+class GaugeState(models.TextChoices):
+    IN_SERVICE = "in_service", "In service"
+    RETIRED = "retired", "Retired"
+
+
+class Gauge(Recorded, Guarded):
+    """A measuring instrument of the shop's register. Never edited: a mistake is retired and recorded again."""
+
+    number = models.CharField("register number", max_length=30, unique=True, help_text="e.g. FG-03")
+    kind = models.CharField(max_length=12, choices=GaugeKind.choices)
+    description = models.CharField(max_length=120, blank=True, help_text="Make, model, range")
+    serial_number = models.CharField(max_length=60, blank=True)
+    state = models.CharField(max_length=12, choices=GaugeState.choices, default=GaugeState.IN_SERVICE,
+                             editable=False)
+    retired_reason = models.CharField(max_length=200, blank=True, editable=False)
+    retired_at = models.DateTimeField(null=True, blank=True, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("gauge", state="state", frozen=ALWAYS, name=("number",),
+                advice="retire it with a reason and record it again.",
+                moves=[Move(GaugeState.IN_SERVICE, GaugeState.RETIRED, ("retired_reason", "retired_at"))])
+
+    class Meta:
+        ordering = ["number"]
+        base_manager_name = "objects"
+
+    def __str__(self):
+        return self.number
+
+    def get_absolute_url(self):
+        return reverse("inspections:gauge_detail", args=[self.pk])
+
+    def standing(self, on, calibrations=None):
+        """inspections.calibration's answer on the day (pass the calibrations when they are prefetched)."""
+        from inspections import calibration
+
+        rows = calibrations if calibrations is not None else list(self.calibrations.all())
+        return calibration.standing([c.facts() for c in rows], on, retired=self.state == GaugeState.RETIRED)
+
+
+class CalibrationResult(models.TextChoices):
+    IN_TOLERANCE = "in_tolerance", "Found in tolerance"
+    OUT_OF_TOLERANCE = "out_of_tolerance", "Found out of tolerance"
+
+
+class GaugeCalibration(DocumentMixin, Recorded, Guarded):
+    """One calibration (or check against a reference) of a gauge, with its certificate; a fact, never edited.
+    Inspections name the calibration their gauge was used under."""
+
+    gauge = models.ForeignKey(Gauge, on_delete=models.PROTECT, related_name="calibrations")
+    calibrated_on = models.DateField()
+    due_on = models.DateField("due on", help_text="The last day it may be used (a crayon: the lot's expiry)")
+    result = models.CharField(max_length=20, choices=CalibrationResult.choices)
+    performed_by = models.CharField(max_length=120, help_text="Laboratory, or the person and the reference used")
+    note = models.CharField(max_length=200, blank=True)
+    document = models.FileField("certificate", upload_to=document_path, blank=True)
+    document_sha256 = models.CharField(max_length=64, blank=True, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("gauge calibration", frozen=ALWAYS, name=("id",),
+                advice="record another calibration; the one before stays on record.")
+
+    class Meta:
+        ordering = ["gauge", "-calibrated_on", "-pk"]
+        base_manager_name = "objects"
+
+    def __str__(self):
+        return f"{self.gauge} {self.get_result_display().lower()} {self.calibrated_on.isoformat()}"
+
+    def get_absolute_url(self):
+        return reverse("inspections:calibration_detail", args=[self.pk])
+
+    def facts(self):
+        from inspections import calibration
+
+        return calibration.Calibration(self.pk, self.calibrated_on, self.due_on, self.result)
+
+    def printed(self) -> str:
+        """The gauge as a traveler prints it beside an inspection."""
+        return (f"{self.gauge.number} {self.gauge.get_kind_display().lower()}, calibrated "
+                f"{self.calibrated_on.isoformat()}, due {self.due_on.isoformat()}")

@@ -249,7 +249,7 @@ def _check_signable(weld: Weld, stage: str) -> None:
 
 def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: Inspection | None = None,
                     reason: str = "", remarks: str = "", *, draft: InspectionDraft | None = None,
-                    shown: str | None = None) -> Inspection:
+                    shown: str | None = None, gauge=None) -> Inspection:
     """Judge once, sign and store one inspection; move the NCR and assembly states on. All or nothing.
 
     A correction names the inspection it supersedes and why; only a current inspection of the same weld can be
@@ -258,7 +258,7 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
     photos are attached and it is deleted. The judged verdict is on the returned inspection as .verdict.
     """
     return sign_batch([weld], observed, stage, user, supersedes=supersedes, reason=reason, remarks=remarks,
-                      draft=draft, shown=shown)[0]
+                      draft=draft, shown=shown, gauge=gauge)[0]
 
 
 def batch_key(weld: Weld) -> tuple:
@@ -280,7 +280,7 @@ class VerdictChanged(Refused):
 @transaction.atomic
 def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersedes: Inspection | None = None,
                reason: str = "", remarks: str = "", draft: InspectionDraft | None = None,
-               shown: str | None = None) -> list[Inspection]:
+               shown: str | None = None, gauge=None) -> list[Inspection]:
     """Sign one pass over identical welds of one assembly with one verdict: an inspection per weld, in weld order.
 
     Refused when the welds are not identical in what the engines read (split the odd one out and inspect it on its
@@ -292,6 +292,7 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
     for weld in welds:
         _check_signable(weld, stage)
     credential = trace.signing_credential(user, stage, timezone.localdate())
+    calibrated = trace.signing_calibration(gauge, timezone.localdate())  # the gauge (registers), if one was used
     others = [w for w in welds[1:] if batch_key(w) != batch_key(first)]
     if others:
         raise Refused(f"Weld {others[0].mark} is not identical to {first.mark} (size, length, parts or WPS differ): "
@@ -339,7 +340,8 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
         inspection = Inspection(
             weld=weld, stage=stage, inspector=user, supersedes=supersedes, correction_reason=reason.strip(),
             remarks=remarks, accepted=verdict.accepted, findings=findings, criteria_key=key,
-            criteria_version=version, batch=batch, leg_increase=increase, credential=credential, **values,
+            criteria_version=version, batch=batch, leg_increase=increase, credential=credential,
+            gauge_calibration=calibrated, **values,
         )
         inspection.save(user=user)
         seals.seal(inspection, "inspection.signed")

@@ -1,4 +1,4 @@
-"""The traceability registers' steps: inspector credentials (and, below, gauges).
+"""The traceability registers' steps: inspector credentials and gauges.
 
 A credential is recorded once, as the card prints it (record_credential), and withdrawn with a reason
 (withdraw_credential, through core.transitions); it is never edited. Signing asks signing_credential(): a final
@@ -12,8 +12,18 @@ from django.utils import timezone
 from core.errors import Refused
 from core.roles import require
 from core.transitions import required_reason, transition
+from inspections import calibration
 from inspections import credentials as engine
-from inspections.models import CredentialState, InspectionStage, InspectorCredential
+from inspections.models import (
+    CalibrationResult,
+    CredentialState,
+    Gauge,
+    GaugeCalibration,
+    GaugeState,
+    Inspection,
+    InspectionStage,
+    InspectorCredential,
+)
 
 REGISTERS = "register.manage"
 
@@ -91,3 +101,89 @@ def printed_credential(inspection) -> str:
     if credential is not None:
         return credential.printed()
     return getattr(inspection.inspector, "stamp", "") or ""
+
+
+# --- gauges ------------------------------------------------------------------------------------------------------
+
+@transaction.atomic
+def record_gauge(gauge: Gauge, user) -> Gauge:
+    require(user, REGISTERS)
+    gauge.recorded_by = user
+    gauge.save(user=user)
+    return gauge
+
+
+def retire_gauge(gauge: Gauge, user, reason: str) -> Gauge:
+    """Take a gauge out of use (lost, broken, a typing mistake); inspections made with it keep naming it."""
+    reason = required_reason(reason, "retiring the gauge")
+    return transition(gauge, to=GaugeState.RETIRED, allowed_from={GaugeState.IN_SERVICE}, user=user,
+                      permission=REGISTERS, reason=reason, retired_reason=reason[:200], retired_at=timezone.now())
+
+
+@transaction.atomic
+def record_calibration(record: GaugeCalibration, user) -> GaugeCalibration:
+    """Store a calibration of a gauge in service (the form has checked the dates), with its history row."""
+    require(user, REGISTERS)
+    gauge = Gauge.objects.select_for_update().get(pk=record.gauge_id)
+    if gauge.state != GaugeState.IN_SERVICE:
+        raise Refused(f"Gauge {gauge} is retired: it takes no more calibrations.", code="retired")
+    record.recorded_by = user
+    record.save(user=user)
+    return record
+
+
+def gauge_rows(today) -> list[dict]:
+    """Every gauge with its standing today and a notice when its calibration falls due within the notice days.
+    Two queries (gauges, their calibrations)."""
+    rows = []
+    for gauge in Gauge.objects.prefetch_related("calibrations").order_by("number"):
+        answer = gauge.standing(today, list(gauge.calibrations.all()))
+        days_left = (answer.due_on - today).days if answer.ok else None
+        rows.append({"gauge": gauge, "standing": answer, "days_left": days_left,
+                     "soon": days_left is not None and days_left < engine.LAPSE_NOTICE_DAYS})
+    return rows
+
+
+def usable_gauges(on) -> list[Gauge]:
+    """The gauges in service and in calibration on the day, for the inspection form. Two queries."""
+    found = []
+    for gauge in Gauge.objects.filter(state=GaugeState.IN_SERVICE).prefetch_related("calibrations").order_by(
+            "kind", "number"):
+        if gauge.standing(on, list(gauge.calibrations.all())).ok:
+            found.append(gauge)
+    return found
+
+
+def gauge_refusal(gauge: Gauge, on) -> str | None:
+    """Why this gauge cannot be used on the day (None: it can). One query."""
+    answer = gauge.standing(on)
+    if answer.ok:
+        return None
+    return (f"Gauge {gauge} cannot be used on {on.isoformat()}: {answer.reason}. Choose a gauge in calibration "
+            f"({calibration.SOURCE}).")
+
+
+def signing_calibration(gauge: Gauge | None, on) -> GaugeCalibration | None:
+    """The calibration a new inspection's gauge is used under; Refused when the gauge is out of calibration."""
+    if gauge is None:
+        return None
+    rows = list(gauge.calibrations.all())
+    answer = gauge.standing(on, rows)
+    if not answer.ok:
+        raise Refused(gauge_refusal(gauge, on), code="gauge")
+    return next(c for c in rows if c.pk == answer.calibration)
+
+
+def suspect_inspections(failed: GaugeCalibration):
+    """(the last calibration that found the gauge good before `failed`, the inspections made under it): the
+    measurements a gauge found out of tolerance puts in doubt. Two queries whatever their number."""
+    rows = list(GaugeCalibration.objects.filter(gauge_id=failed.gauge_id))
+    good_key = calibration.suspect([c.facts() for c in rows], failed.pk) \
+        if failed.result == CalibrationResult.OUT_OF_TOLERANCE else None
+    good = next((c for c in rows if c.pk == good_key), None)
+    if good is None:
+        return None, Inspection.objects.none()
+    inspections = (Inspection.objects.filter(gauge_calibration=good)
+                   .select_related("weld__assembly__job__customer", "inspector")
+                   .order_by("inspected_at", "pk"))
+    return good, inspections

@@ -214,7 +214,7 @@ def _sign(request, form, welds, supersedes=None, draft=None):
         inspections = service.sign_batch(
             welds, form.observed(), data["stage"], request.user, supersedes=supersedes,
             reason=data.get("correction_reason", ""), remarks=data.get("remarks", ""), draft=draft,
-            shown=data.get("shown_verdict") or "")
+            shown=data.get("shown_verdict") or "", gauge=data.get("gauge"))
     except service.VerdictChanged as exc:
         form.changed_verdict = exc.verdict
         form.add_error(None, _message(exc) if data.get("shown_verdict") else
@@ -292,7 +292,8 @@ def inspect_preview(request, pk):
 def _inspection(request, pk):
     return get_visible_or_404(
         request.user, Inspection.objects.select_related(
-            "weld__assembly__job__client_criteria", "weld__wps", "inspector", "credential", "supersedes__inspector",
+            "weld__assembly__job__client_criteria", "weld__wps", "inspector", "credential", "gauge_calibration__gauge",
+            "supersedes__inspector",
             "superseded_by__inspector"), pk=pk)
 
 

@@ -1,10 +1,11 @@
-"""Register pages: inspector credentials (and gauges). Shop-internal: a customer's viewer is refused the lists
+"""Register pages: inspector credentials and gauges. Shop-internal: a customer's viewer is refused the lists
 (403) and finds no record (404, core.visibility); it reads a credential only as printed on its travelers.
 Writes are the QA lead's (register.manage); every state change goes through inspections.services.trace."""
 
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
 from django.db import transaction
+from django.db.models import Count
 from django.shortcuts import redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
@@ -15,9 +16,10 @@ from core.errors import Refused
 from core.roles import role_required
 from core.storage import files_or_nothing
 from core.visibility import get_visible_or_404, sees_everything
+from inspections import calibration
 from inspections import credentials as engine
-from inspections.forms.trace import CredentialForm
-from inspections.models import InspectorCredential
+from inspections.forms.trace import CalibrationForm, CredentialForm, GaugeForm
+from inspections.models import CalibrationResult, Gauge, GaugeCalibration, Inspection, InspectorCredential
 from inspections.services import trace
 from procedures.forms.welders import ReasonForm
 
@@ -91,18 +93,130 @@ def _detail_page(request, credential, form, status=200):
 @role_required(trace.REGISTERS)
 def credential_withdraw(request, pk):
     credential = _credential(request, pk)
+    return _with_reason(request, credential, trace.withdraw_credential, f"{credential} withdrawn.",
+                        lambda form: _detail_page(request, credential, form, status=400))
+
+
+def _with_reason(request, record, step, done: str, page):
+    """A step that takes a reason (withdraw, retire): the record's page again with the refusal beside the form."""
     form = ReasonForm(request.POST)
     if form.is_valid():
         try:
-            trace.withdraw_credential(credential, request.user, form.cleaned_data["reason"])
+            step(record, request.user, form.cleaned_data["reason"])
         except Refused as exc:
             form.add_error(None, " ".join(exc.messages))
         else:
-            messages.success(request, f"{credential} withdrawn.")
-            return redirect(credential)
-    return _detail_page(request, credential, form, status=400)
+            messages.success(request, done)
+            return redirect(record)
+    return page(form)
 
 
 @require_safe
 def credential_document(request, pk):
     return send_document(_credential(request, pk).document, "copy of the card")
+
+
+# --- gauges ------------------------------------------------------------------------------------------------------
+
+@require_safe
+def gauge_list(request):
+    shop_only(request)
+    today = timezone.localdate()
+    return render(request, "inspections/gauge_list.html", {
+        "rows": trace.gauge_rows(today), "today": today, "notice_days": engine.LAPSE_NOTICE_DAYS,
+        "source": calibration.SOURCE})
+
+
+@role_required(trace.REGISTERS)
+@require_http_methods(["GET", "POST"])
+def gauge_create(request):
+    form = GaugeForm(request.POST or None)
+    if request.method == "POST" and form.is_valid():
+        gauge = trace.record_gauge(form.save(commit=False), request.user)
+        messages.success(request, f"Gauge {gauge} recorded: record its calibration before it can be chosen.")
+        return redirect(gauge)
+    return render(request, "inspections/trace_form.html", {
+        "form": form, "title": "Add a gauge to the register", "submit": "Add gauge", "back": "inspections:gauge_list",
+        "back_label": "Gauges", "intro": "Never edited afterwards: a mistake is retired with a reason and added "
+                                         "again."}, status=400 if form.errors else 200)
+
+
+def _gauge(request, pk):
+    return get_visible_or_404(request.user, Gauge.objects.prefetch_related("calibrations"), pk=pk)
+
+
+@require_safe
+def gauge_detail(request, pk):
+    return _gauge_page(request, _gauge(request, pk), CalibrationForm(), ReasonForm())
+
+
+def _gauge_page(request, gauge, calibration_form, retire_form, status=200):
+    today = timezone.localdate()
+    calibrations = list(gauge.calibrations.all())
+    used = (Inspection.objects.filter(gauge_calibration__gauge=gauge).values("gauge_calibration")
+            .annotate(n=Count("pk")))
+    counts = {row["gauge_calibration"]: row["n"] for row in used}
+    return render(request, "inspections/gauge_detail.html", {
+        "gauge": gauge, "standing": gauge.standing(today, calibrations), "today": today,
+        "calibrations": [(c, counts.get(c.pk, 0)) for c in calibrations], "form": calibration_form,
+        "retire_form": retire_form, "history": history.panel(gauge, *calibrations), "history_mixed": True,
+        "source": calibration.SOURCE}, status=status)
+
+
+@role_required(trace.REGISTERS)
+@require_POST
+def calibration_create(request, pk):
+    gauge = _gauge(request, pk)
+    form = CalibrationForm(request.POST, request.FILES)
+    if form.is_valid():
+        record = form.save(commit=False)
+        record.gauge = gauge
+        try:
+            with files_or_nothing(), transaction.atomic():  # the certificate goes with the row, or neither
+                trace.record_calibration(record, request.user)
+        except Refused as exc:
+            form.add_error(None, " ".join(exc.messages))
+        except OSError as exc:
+            message = faults.storage_message(exc, "certificate")
+            if message is None:
+                raise
+            form.add_error("document", message)
+            return _gauge_page(request, gauge, form, ReasonForm(), status=503)
+        else:
+            if record.result == CalibrationResult.OUT_OF_TOLERANCE:
+                messages.warning(request, f"Gauge {gauge} found out of tolerance: the inspections made with it "
+                                          "since its last good calibration are listed below.")
+            else:
+                messages.success(request, f"Calibration recorded: {gauge} due {record.due_on.isoformat()}.")
+            return redirect(record)
+    return _gauge_page(request, gauge, form, ReasonForm(), status=400)
+
+
+@role_required(trace.REGISTERS)
+@require_POST
+def gauge_retire(request, pk):
+    gauge = _gauge(request, pk)
+    return _with_reason(request, gauge, trace.retire_gauge, f"Gauge {gauge} retired.",
+                        lambda form: _gauge_page(request, gauge, CalibrationForm(), form, status=400))
+
+
+def _calibration(request, pk):
+    return get_visible_or_404(request.user, GaugeCalibration.objects.select_related("gauge", "recorded_by"), pk=pk)
+
+
+@require_safe
+def calibration_detail(request, pk):
+    """A calibration; when it found the gauge out of tolerance, every inspection made with the gauge since its last
+    good calibration (trace.suspect_inspections: two queries whatever their number)."""
+    record = _calibration(request, pk)
+    good, suspects = trace.suspect_inspections(record)
+    signed = (Inspection.objects.filter(gauge_calibration=record)
+              .select_related("weld__assembly__job__customer", "inspector").order_by("inspected_at", "pk"))
+    return render(request, "inspections/calibration_detail.html", {
+        "record": record, "good": good, "suspects": list(suspects),
+        "signed": list(signed) if record.result == CalibrationResult.IN_TOLERANCE else []})
+
+
+@require_safe
+def calibration_document(request, pk):
+    return send_document(_calibration(request, pk).document, "certificate")

@@ -26,6 +26,7 @@ from inspections.models import (
     Assembly,
     ClientCriteriaSet,
     Customer,
+    FillerLot,
     Gauge,
     GaugeCalibration,
     Inspection,
@@ -41,7 +42,7 @@ from procedures.models.welders import ContinuityEntry
 SHOP_ROLES = {Role.WELDING_ENGINEER, Role.INSPECTOR, Role.QA_LEAD}
 
 # The shop's own registers: a viewer reads them only as printed on its travelers (docs/decisions, traceability).
-SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration)
+SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration, FillerLot)
 
 # Records that belong to one job: the path from the record to its job.
 JOB_PATHS = {

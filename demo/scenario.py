@@ -79,6 +79,7 @@ def load() -> bool:
         welders = _welders(users, today)
         _credentials(users, today)
         _gauges(users, today)
+        _filler_lots(users, today)
         _jobs(users, procedures, welders, today)
     return True
 
@@ -124,6 +125,21 @@ def _gauges(users, today):
                              performed_by="Ridgeway Metrology Lab" if kind != "fillet" else
                              "Brannock QA bench, reference block set R-2",
                              recorded_by=users[Role.QA_LEAD]).save()
+
+
+def _filler_lots(users, today):
+    """The lots in use, as received with their certificates' data (no files in the demo); demo welds name the lot of
+    their WPS's classification."""
+    from inspections.models import FillerLot
+
+    lots = [("E71T-1C", "AWS A5.20/A5.20M", "0.045 in", "KW-24-1187"), ("E7018", "AWS A5.1/A5.1M", "1/8 in",
+                                                                       "KW-24-0932"),
+            ("ER70S-6", "AWS A5.18/A5.18M", "1.2 mm", "KW-24-1402")]
+    with history.acting(users[Role.QA_LEAD]):
+        for classification, specification, diameter, number in lots:
+            FillerLot(classification=classification, specification=specification, diameter=L(diameter),
+                      lot_number=number, manufacturer="Kessler Wire Co.", received_on=today - timedelta(days=40),
+                      recorded_by=users[Role.QA_LEAD]).save()
 
 
 def _pqrs():
@@ -331,10 +347,11 @@ def _jobs(users, procedures, welders, today):
 
 
 def _weld(assembly, mark, wps, welders, on, **fields):
-    from inspections.models import Weld
+    from inspections.models import FillerLot, Weld
     from inspections.services.assemblies import record_production
 
-    weld = Weld.objects.create(assembly=assembly, mark=mark, wps=wps, welded_on=on, **fields)
+    lot = FillerLot.objects.filter(classification=wps.electrode).first() if wps else None  # the shop's lot in use
+    weld = Weld.objects.create(assembly=assembly, mark=mark, wps=wps, welded_on=on, filler_lot=lot, **fields)
     weld.welders.set(welders)
     record_production(weld)
     return weld
@@ -364,7 +381,9 @@ def _garage(job, users, procedures, welders, today):
     w2 = _weld(beam, "W2", fcaw, [dana], day, size=L("3/16 in"), length=L("4 in"), count=4,
                thickness1=L("5/16 in"), thickness2=L("3/8 in"), position="V")
     # Fit-up measured: a 1/16 in root opening, so the 1/4 in leg must reach 5/16 in (D1.1 clause 7.21.1).
-    _inspect(w1, users, stage="fit_up", fit_up_ok=True, root_gap=L("1/16 in"))
+    # Preheat read at fit-up with a contact thermometer (judged against BSW-101's minimum and Table 5.8).
+    _inspect(w1, users, stage="fit_up", fit_up_ok=True, root_gap=L("1/16 in"),
+             preheat_measured=parse_temperature("70 F"), temperature_method="contact")
     _inspect(w1, users, min_size=L("5/16 in"), undercut_depth=L("1/64 in"), convexity=L("1/16 in"),
              face_width=L("7/16 in"))
     _inspect(w2, users, min_size=L("3/16 in"))

@@ -180,7 +180,7 @@ def gather(assembly_pk: int) -> dict:
     system = job.unit_system
     iso = wording.throat_first(job)
     convention = _convention(job)
-    welds = list(Weld.objects.filter(assembly=assembly).select_related("wps")
+    welds = list(Weld.objects.filter(assembly=assembly).select_related("wps", "filler_lot")
                  .prefetch_related("welders").order_by("mark"))
     for weld in welds:
         weld.assembly = assembly  # the capacity service and the size words read the job from here
@@ -252,6 +252,7 @@ def gather(assembly_pk: int) -> dict:
             "fit_up": _inspection(fit_ups.get(weld.pk), system), "final": _inspection(final, system),
             "result": result, "released_ok": status.released_ok, "ncrs": ncrs, "repairs": repairs,
             "chain_ok": link.ok,
+            "filler": weld.filler_lot.printed(system) if weld.filler_lot else "", "filler_problem": link.filler,
         }
         rows.append(row)
         cap = _capacity(weld, final, system)

@@ -80,6 +80,11 @@ urlpatterns = [
     path("gauges/<int:pk>/retire/", trace_views.gauge_retire, name="gauge_retire"),
     path("calibrations/<int:pk>/", trace_views.calibration_detail, name="calibration_detail"),
     path("calibrations/<int:pk>/certificate/", trace_views.calibration_document, name="calibration_document"),
+    path("filler-lots/", trace_views.filler_lot_list, name="filler_lot_list"),
+    path("filler-lots/new/", trace_views.filler_lot_create, name="filler_lot_create"),
+    path("filler-lots/<int:pk>/", trace_views.filler_lot_detail, name="filler_lot_detail"),
+    path("filler-lots/<int:pk>/certificate/", trace_views.filler_lot_document, name="filler_lot_document"),
+    path("welds/<int:pk>/filler/", trace_views.weld_filler, name="weld_filler"),
     # end of traceability registers
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),

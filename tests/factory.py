@@ -90,6 +90,18 @@ class Factory:
                            result)
         return gauge
 
+    def make_filler_lot(self, classification="E71T-1C", **kwargs):
+        """A filler lot as received (no certificate attached)."""
+        from inspections.models import FillerLot
+
+        fields = dict(classification=classification, specification="AWS A5.20/A5.20M", diameter=L("0.045 in"),
+                      lot_number=f"LOT-{next(_counter):04d}", manufacturer="Kessler Wire Co.",
+                      received_on=date(2026, 9, 14))
+        fields.update(kwargs)
+        lot = FillerLot(**fields)
+        lot.save()
+        return lot
+
     @staticmethod
     def calibrate(gauge, calibrated_on, due_on, result="in_tolerance"):
         from inspections.models import GaugeCalibration
@@ -251,7 +263,8 @@ class Factory:
 
         weld = weld or (supersedes.weld if supersedes is not None else self.make_weld())
         user = user or (supersedes.inspector if supersedes is not None else self.make_user("inspector"))
-        observed = {k: (parse_length(v) if isinstance(v, str) else v) for k, v in observed.items()}
+        observed = {k: (parse_length(v) if isinstance(v, str) and k != "temperature_method" else v)
+                    for k, v in observed.items()}
         if stage == "fit_up":
             observed.setdefault("fit_up_ok", accepted is not False)
         elif not observed:

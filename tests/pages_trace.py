@@ -20,6 +20,14 @@ def _calibration(make):
     return {"pk": make.make_gauge().calibrations.get().pk}
 
 
+def _lot(make):
+    return {"pk": make.make_filler_lot().pk}
+
+
+def _weld(make):
+    return {"pk": make.use_on_job().pk}  # a weld of the viewer's customer: the viewer may read it, not record
+
+
 # Attached files are tested in tests/test_trace_credentials.py and tests/test_trace_gauges.py.
 PAGES = {
     "inspections:credential_list": (lambda make: {}, SHOP),
@@ -31,6 +39,11 @@ PAGES = {
     "inspections:gauge_detail": (_gauge, SHOP_RECORD),
     "inspections:calibration_detail": (_calibration, SHOP_RECORD),
     "inspections:calibration_document": (_calibration, NO_FILE),
+    "inspections:filler_lot_list": (lambda make: {}, SHOP),
+    "inspections:filler_lot_create": (lambda make: {}, only("qa_lead")),
+    "inspections:filler_lot_detail": (_lot, SHOP_RECORD),
+    "inspections:filler_lot_document": (_lot, NO_FILE),
+    "inspections:weld_filler": (_weld, only("welding_engineer", "inspector")),
 }
 
 NOT_PAGES = {

@@ -7,10 +7,12 @@ from django import forms
 from django.core.exceptions import ValidationError
 
 from core.documents import ACCEPT, clean_document
+from core.fields import LengthFormField
 from core.models import User
 from core.roles import Role
 from inspections import credentials as engine
-from inspections.models import CalibrationResult, Gauge, GaugeCalibration, InspectorCredential
+from inspections.models import CalibrationResult, FillerLot, Gauge, GaugeCalibration, InspectorCredential
+from procedures.electrodes import decode
 from procedures.forms.welders import DateInput, _not_after_today
 
 
@@ -113,3 +115,49 @@ class CalibrationForm(forms.ModelForm):
         if made and due and due <= made and data.get("result") == CalibrationResult.IN_TOLERANCE:
             self.add_error("due_on", "The next calibration falls due after this one: check the date.")
         return data
+
+
+class FillerLotForm(forms.ModelForm):
+    diameter = LengthFormField(label="Diameter", help_text="e.g. 0.045 in, 1/8, 1.2 mm (a bare number is inches)")
+
+    class Meta:
+        model = FillerLot
+        fields = ["classification", "specification", "diameter", "lot_number", "manufacturer", "received_on",
+                  "document"]
+        widgets = {"received_on": DateInput()}
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["diameter"].system = "US"
+        self.fields["document"].widget.attrs["accept"] = ACCEPT
+        _helper(self, Layout(Row(Column("classification"), Column("specification"), Column("diameter")),
+                             Row(Column("lot_number"), Column("manufacturer"), Column("received_on")),
+                             Row(Column("document"))))
+
+    def clean_classification(self):
+        try:
+            return decode(self.cleaned_data["classification"]).classification
+        except ValueError as exc:
+            raise ValidationError(str(exc), code="classification") from None
+
+    def clean_lot_number(self):
+        number = self.cleaned_data["lot_number"].strip()
+        if not number:
+            raise ValidationError("Give the lot or heat number printed on the package.", code="required")
+        return number
+
+    def clean_received_on(self):
+        return _not_after_today(self.cleaned_data.get("received_on"), "The date received")
+
+    def clean_document(self):
+        return clean_document(self.cleaned_data.get("document"), "certificate")
+
+
+class WeldFillerForm(forms.Form):
+    lot = forms.ModelChoiceField(label="Filler lot used", queryset=FillerLot.objects.none(),
+                                 help_text="As printed on the spool or box; its classification should be the WPS's.")
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["lot"].queryset = FillerLot.objects.order_by("classification", "-received_on", "-pk")
+        _helper(self, Layout("lot"))

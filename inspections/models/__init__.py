@@ -1,13 +1,21 @@
 """Jobs, assemblies and their weld maps, inspections with photos, NCRs, client criteria sets."""
 
 from inspections.models.criteria import ClientCriteriaSet
-from inspections.models.inspection import DraftPhoto, Inspection, InspectionDraft, InspectionStage, Photo
+from inspections.models.inspection import (
+    DraftPhoto,
+    Inspection,
+    InspectionDraft,
+    InspectionStage,
+    Photo,
+    TemperatureMethod,
+)
 from inspections.models.jobs import Assembly, AssemblyState, Customer, Job, Weld
 from inspections.models.ncr import NCR
 from inspections.models.repair import WeldRepair
 from inspections.models.trace import (
     CalibrationResult,
     CredentialState,
+    FillerLot,
     Gauge,
     GaugeCalibration,
     GaugeKind,
@@ -17,6 +25,6 @@ from inspections.models.trace import (
 from inspections.models.traveler import JobPacket, PacketState, Traveler
 
 __all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCriteriaSet", "CredentialState",
-           "Customer", "DraftPhoto", "Gauge", "GaugeCalibration", "GaugeKind", "GaugeState", "Inspection",
+           "Customer", "DraftPhoto", "FillerLot", "Gauge", "GaugeCalibration", "GaugeKind", "GaugeState", "Inspection",
            "InspectionDraft", "InspectionStage", "InspectorCredential", "Job", "JobPacket", "PacketState", "Photo",
-           "Traveler", "Weld", "WeldRepair"]
+           "TemperatureMethod", "Traveler", "Weld", "WeldRepair"]

@@ -13,6 +13,7 @@ from django.urls import reverse
 from django.utils import timezone
 
 from core.documents import hash_document
+from core.fields import LengthField
 from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock, Move
 from inspections import credentials as engine
 
@@ -197,3 +198,41 @@ class GaugeCalibration(DocumentMixin, Recorded, Guarded):
         """The gauge as a traveler prints it beside an inspection."""
         return (f"{self.gauge.number} {self.gauge.get_kind_display().lower()}, calibrated "
                 f"{self.calibrated_on.isoformat()}, due {self.due_on.isoformat()}")
+
+
+# --- filler metal lots -------------------------------------------------------------------------------------------
+
+class FillerLot(DocumentMixin, Recorded, Guarded):
+    """One lot (or heat) of filler metal as received, with its certificate; a fact, never edited. A weld names the
+    lot it was made with (Weld.filler_lot); the proof chain compares its classification with the WPS's."""
+
+    classification = models.CharField("AWS classification", max_length=40, help_text="e.g. E71T-1C, ER70S-6, E7018")
+    specification = models.CharField(max_length=40, blank=True, help_text="e.g. AWS A5.20/A5.20M; ISO 17632-A")
+    diameter = LengthField()
+    lot_number = models.CharField("lot or heat number", max_length=40)
+    manufacturer = models.CharField(max_length=80)
+    received_on = models.DateField()
+    document = models.FileField("certificate", upload_to=document_path, blank=True,
+                                help_text="The manufacturer's certificate of conformance (EN 10204 3.1 on ISO jobs)")
+    document_sha256 = models.CharField(max_length=64, blank=True, editable=False)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("filler lot", frozen=ALWAYS, name=("lot_number",), advice="record the lot again if it was mistyped.")
+
+    class Meta:
+        ordering = ["-received_on", "-pk"]
+        base_manager_name = "objects"
+        constraints = [models.UniqueConstraint(fields=["manufacturer", "classification", "diameter", "lot_number"],
+                                               name="filler_lot_unique")]
+
+    def __str__(self):
+        return f"{self.classification} lot {self.lot_number}"
+
+    def get_absolute_url(self):
+        return reverse("inspections:filler_lot_detail", args=[self.pk])
+
+    def printed(self, system: str = "US") -> str:
+        from core.units import format_length
+
+        return (f"{self.classification} {format_length(self.diameter, system)} lot {self.lot_number} "
+                f"({self.manufacturer})")

@@ -17,12 +17,14 @@ from inspections import credentials as engine
 from inspections.models import (
     CalibrationResult,
     CredentialState,
+    FillerLot,
     Gauge,
     GaugeCalibration,
     GaugeState,
     Inspection,
     InspectionStage,
     InspectorCredential,
+    Weld,
 )
 
 REGISTERS = "register.manage"
@@ -106,11 +108,16 @@ def printed_credential(inspection) -> str:
 # --- gauges ------------------------------------------------------------------------------------------------------
 
 @transaction.atomic
-def record_gauge(gauge: Gauge, user) -> Gauge:
+def record(entry, user):
+    """Put a register's new row on record (a gauge, a filler lot): the QA lead's, with its history row."""
     require(user, REGISTERS)
-    gauge.recorded_by = user
-    gauge.save(user=user)
-    return gauge
+    entry.recorded_by = user
+    entry.save(user=user)
+    return entry
+
+
+def record_gauge(gauge: Gauge, user) -> Gauge:
+    return record(gauge, user)
 
 
 def retire_gauge(gauge: Gauge, user, reason: str) -> Gauge:
@@ -187,3 +194,20 @@ def suspect_inspections(failed: GaugeCalibration):
                    .select_related("weld__assembly__job__customer", "inspector")
                    .order_by("inspected_at", "pk"))
     return good, inspections
+
+
+# --- filler lots -------------------------------------------------------------------------------------------------
+
+def record_filler_lot(lot: FillerLot, user) -> FillerLot:
+    return record(lot, user)
+
+
+@transaction.atomic
+def record_weld_filler(weld: Weld, lot: FillerLot, user) -> Weld:
+    """Name the lot a weld was made with (a production fact, like its WPS and welders: it freezes at the weld's final
+    visual, RecordLocked after). A lot of another classification than the WPS's is recorded as it was, and the proof
+    chain blocks the weld (inspections.services.chain.filler_mismatch)."""
+    require(user, "weld.record")
+    weld.filler_lot = lot
+    weld.save(user=user)
+    return weld

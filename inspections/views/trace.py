@@ -1,6 +1,7 @@
-"""Register pages: inspector credentials and gauges. Shop-internal: a customer's viewer is refused the lists
-(403) and finds no record (404, core.visibility); it reads a credential only as printed on its travelers.
-Writes are the QA lead's (register.manage); every state change goes through inspections.services.trace."""
+"""Register pages: inspector credentials, gauges, filler lots, and the filler lot of a weld. Shop-internal: a
+customer's viewer is refused the lists (403) and finds no record (404, core.visibility); it reads a credential, a
+gauge or a lot only as printed on its travelers. Register writes are the QA lead's (register.manage); a weld's lot
+is recorded by whoever records welds (weld.record); every change goes through inspections.services.trace."""
 
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
@@ -12,15 +13,24 @@ from django.views.decorators.http import require_http_methods, require_POST, req
 
 from core import faults, history
 from core.documents import send_document
-from core.errors import Refused
+from core.errors import RecordLocked, Refused, Stale
 from core.roles import role_required
 from core.storage import files_or_nothing
 from core.visibility import get_visible_or_404, sees_everything
 from inspections import calibration
 from inspections import credentials as engine
-from inspections.forms.trace import CalibrationForm, CredentialForm, GaugeForm
-from inspections.models import CalibrationResult, Gauge, GaugeCalibration, Inspection, InspectorCredential
+from inspections.forms.trace import CalibrationForm, CredentialForm, FillerLotForm, GaugeForm, WeldFillerForm
+from inspections.models import (
+    CalibrationResult,
+    FillerLot,
+    Gauge,
+    GaugeCalibration,
+    Inspection,
+    InspectorCredential,
+    Weld,
+)
 from inspections.services import trace
+from inspections.services.chain import filler_mismatch
 from procedures.forms.welders import ReasonForm
 
 
@@ -220,3 +230,81 @@ def calibration_detail(request, pk):
 @require_safe
 def calibration_document(request, pk):
     return send_document(_calibration(request, pk).document, "certificate")
+
+
+# --- filler lots -------------------------------------------------------------------------------------------------
+
+@require_safe
+def filler_lot_list(request):
+    shop_only(request)
+    lots = FillerLot.objects.annotate(used=Count("welds")).order_by("-received_on", "-pk")
+    return render(request, "inspections/filler_lot_list.html", {"lots": lots, "register": "filler"})
+
+
+@role_required(trace.REGISTERS)
+@require_http_methods(["GET", "POST"])
+def filler_lot_create(request):
+    form = FillerLotForm(request.POST or None, request.FILES or None)
+    if request.method == "POST" and form.is_valid():
+        lot = form.save(commit=False)
+        try:
+            with files_or_nothing(), transaction.atomic():  # the certificate goes with the row, or neither
+                trace.record_filler_lot(lot, request.user)
+        except OSError as exc:
+            message = faults.storage_message(exc, "certificate")
+            if message is None:
+                raise
+            form.add_error("document", message)
+        else:
+            messages.success(request, f"Recorded: {lot}.")
+            return redirect(lot)
+    return render(request, "inspections/trace_form.html", {
+        "form": form, "title": "Record a filler lot", "submit": "Record lot", "multipart": True,
+        "back": "inspections:filler_lot_list", "back_label": "Filler lots",
+        "intro": "As received: the classification and lot as printed on the package, with the manufacturer's "
+                 "certificate. Never edited afterwards."}, status=400 if form.errors else 200)
+
+
+def _lot(request, pk):
+    return get_visible_or_404(request.user, FillerLot.objects.select_related("recorded_by"), pk=pk)
+
+
+@require_safe
+def filler_lot_detail(request, pk):
+    lot = _lot(request, pk)
+    welds = lot.welds.select_related("assembly__job__customer", "wps").order_by("welded_on", "pk")
+    return render(request, "inspections/filler_lot_detail.html", {
+        "lot": lot, "welds": list(welds), "history": history.panel(lot)})
+
+
+@require_safe
+def filler_lot_document(request, pk):
+    return send_document(_lot(request, pk).document, "certificate")
+
+
+@role_required("weld.record")
+@require_http_methods(["GET", "POST"])
+def weld_filler(request, pk):
+    """Name the filler lot a weld was made with."""
+    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps", "filler_lot"), pk=pk)
+    form = WeldFillerForm(request.POST or None, initial={"lot": weld.filler_lot_id})
+    status = 200
+    if request.method == "POST":
+        status = 400
+        if form.is_valid():
+            try:
+                trace.record_weld_filler(weld, form.cleaned_data["lot"], request.user)
+            except (RecordLocked, Stale) as exc:
+                form.add_error(None, " ".join(exc.messages) + " Revise the weld to change what it was made with.")
+                status = 409
+            else:
+                mismatch = filler_mismatch(weld.filler_lot, weld.wps)
+                (messages.warning if mismatch else messages.success)(
+                    request, f"Weld {weld.mark}: {mismatch}." if mismatch else f"Weld {weld.mark}: {weld.filler_lot} "
+                                                                              "recorded.")
+                return redirect(weld)
+    return render(request, "inspections/trace_form.html", {
+        "form": form, "title": f"Filler lot of weld {weld.mark}", "submit": "Record lot",
+        "back": "inspections:filler_lot_list", "back_label": "Filler lots",
+        "intro": f"{weld.wps} specifies {weld.wps.electrode}." if weld.wps else "The weld has no WPS yet."},
+        status=status)

@@ -85,6 +85,8 @@ urlpatterns = [
     path("filler-lots/<int:pk>/", trace_views.filler_lot_detail, name="filler_lot_detail"),
     path("filler-lots/<int:pk>/certificate/", trace_views.filler_lot_document, name="filler_lot_document"),
     path("welds/<int:pk>/filler/", trace_views.weld_filler, name="weld_filler"),
+    path("recall/", trace_views.recall, name="recall"),
+    path("recall.csv", trace_views.recall_csv, name="recall_csv"),
     # end of traceability registers
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),

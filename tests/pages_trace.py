@@ -44,6 +44,8 @@ PAGES = {
     "inspections:filler_lot_detail": (_lot, SHOP_RECORD),
     "inspections:filler_lot_document": (_lot, NO_FILE),
     "inspections:weld_filler": (_weld, only("welding_engineer", "inspector")),
+    "inspections:recall": (lambda make: {}, SHOP),
+    "inspections:recall_csv": (lambda make: {}, SHOP),
 }
 
 NOT_PAGES = {

@@ -161,3 +161,32 @@ class WeldFillerForm(forms.Form):
         super().__init__(*args, **kwargs)
         self.fields["lot"].queryset = FillerLot.objects.order_by("classification", "-received_on", "-pk")
         _helper(self, Layout("lot"))
+
+
+class RecallForm(forms.Form):
+    """Which welds a lot, a gauge or an inspector touched between two dates (inspections.services.trace.recall)."""
+
+    kind = forms.ChoiceField(label="Used", choices=[("lot", "Filler lot"), ("gauge", "Gauge"),
+                                                   ("inspector", "Inspector")])
+    lot = forms.ModelChoiceField(label="Filler lot", required=False, queryset=FillerLot.objects.none())
+    gauge = forms.ModelChoiceField(label="Gauge", required=False, queryset=Gauge.objects.none())
+    inspector = forms.ModelChoiceField(label="Inspector", required=False, queryset=User.objects.none())
+    date_from = forms.DateField(label="From", required=False, widget=DateInput())
+    date_to = forms.DateField(label="To", required=False, widget=DateInput())
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["lot"].queryset = FillerLot.objects.order_by("classification", "lot_number")
+        self.fields["gauge"].queryset = Gauge.objects.order_by("number")
+        self.fields["inspector"].queryset = User.objects.filter(role=Role.INSPECTOR).order_by("last_name",
+                                                                                              "username")
+
+    def clean(self):
+        data = super().clean()
+        kind = data.get("kind")
+        if kind and not data.get(kind):
+            self.add_error(kind, "Choose which one.")
+        start, end = data.get("date_from"), data.get("date_to")
+        if start and end and end < start:
+            self.add_error("date_to", "The end comes before the start.")
+        return data

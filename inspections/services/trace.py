@@ -211,3 +211,43 @@ def record_weld_filler(weld: Weld, lot: FillerLot, user) -> Weld:
     weld.filler_lot = lot
     weld.save(user=user)
     return weld
+
+
+# --- recall: what a lot, a gauge or an inspector touched -----------------------------------------------------------
+
+RECALL_COLUMNS = {"customer": "Customer", "job": "Job", "assembly": "Assembly", "assembly_state": "Assembly state",
+                  "weld": "Weld", "welded_on": "Welded on", "inspection": "Inspection", "stage": "Stage",
+                  "verdict": "Verdict", "inspector": "Inspector"}
+
+
+def recall(kind: str, subject, start=None, end=None) -> list[dict]:
+    """Every weld the filler lot, the gauge or the inspector touched between the dates (inclusive; welded on for a
+    lot, signed on for a gauge or an inspector), with its assembly's state and job. One query whatever the number."""
+    if kind == "lot":
+        rows = Weld.objects.filter(filler_lot=subject).select_related("assembly__job__customer")
+        if start:
+            rows = rows.filter(welded_on__gte=start)
+        if end:
+            rows = rows.filter(welded_on__lte=end)
+        return [_recall_row(w, None) for w in rows.order_by("welded_on", "pk")]
+    if kind not in ("gauge", "inspector"):
+        raise ValueError(f"Recall by lot, gauge or inspector, not {kind!r}.")
+    rows = Inspection.objects.select_related("weld__assembly__job__customer", "inspector")
+    rows = rows.filter(gauge_calibration__gauge=subject) if kind == "gauge" else rows.filter(inspector=subject)
+    if start:
+        rows = rows.filter(inspected_at__date__gte=start)
+    if end:
+        rows = rows.filter(inspected_at__date__lte=end)
+    return [_recall_row(i.weld, i) for i in rows.order_by("inspected_at", "pk")]
+
+
+def _recall_row(weld, inspection) -> dict:
+    assembly, job = weld.assembly, weld.assembly.job
+    return {"customer": job.customer.name, "job": job.number, "assembly": assembly.piece_mark,
+            "assembly_state": assembly.get_state_display(), "weld": weld.mark,
+            "welded_on": weld.welded_on.isoformat() if weld.welded_on else "",
+            "inspection": timezone.localtime(inspection.inspected_at).strftime("%Y-%m-%d %H:%M") if inspection else "",
+            "stage": inspection.get_stage_display() if inspection else "",
+            "verdict": ("accepted" if inspection.accepted else "rejected") if inspection else "",
+            "inspector": str(inspection.inspector) if inspection else "",
+            "url": (inspection or weld).get_absolute_url()}

@@ -3,10 +3,13 @@ customer's viewer is refused the lists (403) and finds no record (404, core.visi
 gauge or a lot only as printed on its travelers. Register writes are the QA lead's (register.manage); a weld's lot
 is recorded by whoever records welds (weld.record); every change goes through inspections.services.trace."""
 
+import csv
+
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
 from django.db import transaction
 from django.db.models import Count
+from django.http import HttpResponse
 from django.shortcuts import redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
@@ -19,7 +22,14 @@ from core.storage import files_or_nothing
 from core.visibility import get_visible_or_404, sees_everything
 from inspections import calibration
 from inspections import credentials as engine
-from inspections.forms.trace import CalibrationForm, CredentialForm, FillerLotForm, GaugeForm, WeldFillerForm
+from inspections.forms.trace import (
+    CalibrationForm,
+    CredentialForm,
+    FillerLotForm,
+    GaugeForm,
+    RecallForm,
+    WeldFillerForm,
+)
 from inspections.models import (
     CalibrationResult,
     FillerLot,
@@ -31,6 +41,7 @@ from inspections.models import (
 )
 from inspections.services import trace
 from inspections.services.chain import filler_mismatch
+from inspections.services.weldmap_csv import _safe as formula_safe  # the one guard against CSV formulas
 from procedures.forms.welders import ReasonForm
 
 
@@ -308,3 +319,39 @@ def weld_filler(request, pk):
         "back": "inspections:filler_lot_list", "back_label": "Filler lots",
         "intro": f"{weld.wps} specifies {weld.wps.electrode}." if weld.wps else "The weld has no WPS yet."},
         status=status)
+
+
+# --- recall --------------------------------------------------------------------------------------------------------
+
+def _recall(request):
+    form = RecallForm(request.GET if "kind" in request.GET else None)
+    if not form.is_bound or not form.is_valid():
+        return form, None
+    data = form.cleaned_data
+    return form, trace.recall(data["kind"], data[data["kind"]], data.get("date_from"), data.get("date_to"))
+
+
+@require_safe
+def recall(request):
+    """Which welds, assemblies and jobs a filler lot, a gauge or an inspector touched between dates."""
+    shop_only(request)
+    form, rows = _recall(request)
+    return render(request, "inspections/recall.html", {
+        "form": form, "rows": rows, "columns": trace.RECALL_COLUMNS.values(), "query": request.GET.urlencode()},
+        status=400 if form.is_bound and form.errors else 200)
+
+
+@require_safe
+def recall_csv(request):
+    shop_only(request)
+    form, rows = _recall(request)
+    if rows is None:
+        return recall(request)
+    response = HttpResponse(content_type="text/csv; charset=utf-8")
+    response["Content-Disposition"] = 'attachment; filename="recall.csv"'
+    writer = csv.writer(response)
+    writer.writerow(trace.RECALL_COLUMNS.values())
+    for row in rows:
+        writer.writerow([formula_safe(row[c]) for c in trace.RECALL_COLUMNS])
+    return response
+

@@ -67,3 +67,4 @@ def test_the_form_says_what_is_missing(make, client_as):
     response = client.get(reverse("inspections:recall") + "?kind=gauge&date_from=2026-05-02&date_to=2026-05-01")
     errors = response.context["form"].errors
     assert response.status_code == 400 and "Choose which one" in str(errors["gauge"]) and "date_to" in errors
+

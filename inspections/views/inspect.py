@@ -19,6 +19,7 @@ from django.views.decorators.http import require_http_methods, require_POST, req
 
 from core import faults, history, seals
 from core.errors import RecordLocked, Refused
+from core.inputs import parse_id
 from core.roles import can, role_required
 from core.storage import files_or_nothing
 from core.visibility import get_visible_or_404, visible
@@ -110,7 +111,7 @@ def _weld(request, pk, related=WELD_RELATED):
 def _batch_of(weld, request):
     """The identical welds of the same assembly named by ?with=pk,pk (GET) or the posted 'with' (POST)."""
     raw = request.POST.get("with") if request.method == "POST" else request.GET.get("with")
-    ids = [int(part) for part in (raw or "").split(",") if part.strip().isdigit()][:50]
+    ids = [pk for pk in (parse_id(part) for part in (raw or "").split(",")[:50]) if pk is not None]
     if not ids:
         return []
     others = [w for w in Weld.objects.filter(assembly_id=weld.assembly_id, pk__in=ids).exclude(pk=weld.pk)

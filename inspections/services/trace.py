@@ -7,6 +7,7 @@ signed inspection names the credential it was signed under, printed beside the i
 """
 
 from django.db import transaction
+from django.urls import reverse
 from django.utils import timezone
 
 from core.errors import Refused
@@ -15,6 +16,7 @@ from core.transitions import required_reason, transition
 from inspections import calibration
 from inspections import credentials as engine
 from inspections.models import (
+    AssemblyState,
     CalibrationResult,
     CredentialState,
     FillerLot,
@@ -222,32 +224,50 @@ RECALL_COLUMNS = {"customer": "Customer", "job": "Job", "assembly": "Assembly", 
 
 def recall(kind: str, subject, start=None, end=None) -> list[dict]:
     """Every weld the filler lot, the gauge or the inspector touched between the dates (inclusive; welded on for a
-    lot, signed on for a gauge or an inspector), with its assembly's state and job. One query whatever the number."""
+    lot, signed on for a gauge or an inspector), with its assembly's state and job. One query whatever the number,
+    read as plain values (benchmarks/recall.py: 10,000 of 100,000 welds)."""
     if kind == "lot":
-        rows = Weld.objects.filter(filler_lot=subject).select_related("assembly__job__customer")
-        if start:
-            rows = rows.filter(welded_on__gte=start)
-        if end:
-            rows = rows.filter(welded_on__lte=end)
-        return [_recall_row(w, None) for w in rows.order_by("welded_on", "pk")]
-    if kind not in ("gauge", "inspector"):
+        rows = _between(Weld.objects.filter(filler_lot=subject), "welded_on", start, end)
+        prefix = ""
+        rows = rows.order_by("welded_on", "pk")
+    elif kind in ("gauge", "inspector"):
+        rows = _between(Inspection.objects.filter(**({"gauge_calibration__gauge": subject} if kind == "gauge"
+                                                     else {"inspector": subject})), "inspected_at__date", start, end)
+        prefix = "weld__"
+        rows = rows.order_by("inspected_at", "pk")
+    else:
         raise ValueError(f"Recall by lot, gauge or inspector, not {kind!r}.")
-    rows = Inspection.objects.select_related("weld__assembly__job__customer", "inspector")
-    rows = rows.filter(gauge_calibration__gauge=subject) if kind == "gauge" else rows.filter(inspector=subject)
+    names = {"customer": "assembly__job__customer__name", "job": "assembly__job__number",
+             "assembly": "assembly__piece_mark", "state": "assembly__state", "weld": "mark", "welded_on": "welded_on",
+             "weld_id": "id"}
+    fields = {key: prefix + path for key, path in names.items()}
+    if prefix:
+        fields.update(inspection_id="id", inspected_at="inspected_at", stage="stage", accepted="accepted",
+                      first="inspector__first_name", last="inspector__last_name", username="inspector__username")
+    states = dict(AssemblyState.choices)
+    stages = dict(InspectionStage.choices)
+    weld_url = reverse("inspections:weld_detail", args=[0])[:-2]  # ".../welds/" + pk + "/"
+    inspection_url = reverse("inspections:inspection_detail", args=[0])[:-2]
+    found = []
+    for row in rows.values_list(*fields.values()):
+        value = dict(zip(fields, row, strict=True))
+        signed = value.get("inspection_id")
+        found.append({
+            "customer": value["customer"], "job": value["job"], "assembly": value["assembly"],
+            "assembly_state": states.get(value["state"], value["state"]), "weld": value["weld"],
+            "welded_on": value["welded_on"].isoformat() if value["welded_on"] else "",
+            "inspection": timezone.localtime(value["inspected_at"]).strftime("%Y-%m-%d %H:%M") if signed else "",
+            "stage": stages.get(value.get("stage"), "") if signed else "",
+            "verdict": ("accepted" if value["accepted"] else "rejected") if signed else "",
+            "inspector": (f"{value['first']} {value['last']}".strip() or value["username"]) if signed else "",
+            "url": f"{inspection_url}{signed}/" if signed else f"{weld_url}{value['weld_id']}/"})
+    return found
+
+
+def _between(rows, day, start, end):
+    """Rows whose `day` lies from start to end, both inclusive (either may be None: open)."""
     if start:
-        rows = rows.filter(inspected_at__date__gte=start)
+        rows = rows.filter(**{f"{day}__gte": start})
     if end:
-        rows = rows.filter(inspected_at__date__lte=end)
-    return [_recall_row(i.weld, i) for i in rows.order_by("inspected_at", "pk")]
-
-
-def _recall_row(weld, inspection) -> dict:
-    assembly, job = weld.assembly, weld.assembly.job
-    return {"customer": job.customer.name, "job": job.number, "assembly": assembly.piece_mark,
-            "assembly_state": assembly.get_state_display(), "weld": weld.mark,
-            "welded_on": weld.welded_on.isoformat() if weld.welded_on else "",
-            "inspection": timezone.localtime(inspection.inspected_at).strftime("%Y-%m-%d %H:%M") if inspection else "",
-            "stage": inspection.get_stage_display() if inspection else "",
-            "verdict": ("accepted" if inspection.accepted else "rejected") if inspection else "",
-            "inspector": str(inspection.inspector) if inspection else "",
-            "url": (inspection or weld).get_absolute_url()}
+        rows = rows.filter(**{f"{day}__lte": end})
+    return rows

@@ -27,6 +27,18 @@ def main():
     parser.add_argument("--runs", type=int, default=7)
     args = parser.parse_args()
     folder = Path(tempfile.mkdtemp(prefix="legwork-bench-chain-"))
+    try:
+        throwaway_sqlite(folder)
+        print(f"load average {os.getloadavg()[0]:.2f}; {args.runs} runs each")
+        for n in args.welds:
+            print(_measure(n, args.runs))
+    finally:
+        shutil.rmtree(folder, ignore_errors=True)
+
+
+def throwaway_sqlite(folder: Path) -> None:
+    """Point Django at a new SQLite database in `folder` (settings from the environment), set it up and migrate.
+    Shared by the in-process benchmarks (this one, recall.py)."""
     os.environ.update({
         "DJANGO_SETTINGS_MODULE": "legwork.settings", "LEGWORK_VAR_DIR": str(folder),
         "LEGWORK_SQLITE_PATH": str(folder / "bench.sqlite3"), "LEGWORK_MEDIA_ROOT": str(folder / "media"),
@@ -34,18 +46,12 @@ def main():
         "LEGWORK_SSL_REDIRECT": "0", "LEGWORK_TASKS_INLINE": "1", "LEGWORK_LOG_LEVEL": "ERROR",
     })
     sys.path.insert(0, str(ROOT))
-    try:
-        import django
+    import django
 
-        django.setup()
-        from django.core.management import call_command
+    django.setup()
+    from django.core.management import call_command
 
-        call_command("migrate", verbosity=0)
-        print(f"load average {os.getloadavg()[0]:.2f}; {args.runs} runs each")
-        for n in args.welds:
-            print(_measure(n, args.runs))
-    finally:
-        shutil.rmtree(folder, ignore_errors=True)
+    call_command("migrate", verbosity=0)
 
 
 def _seed(n):

@@ -36,6 +36,7 @@ ACTIONS = {
     "assembly.release": "Release an assembly",
     "criteria.derive": "Derive a client's criteria set",
     "traveler.issue": "Issue travelers and job packets",
+    "register.manage": "Keep the registers of inspector credentials and gauges",
     "records.verify": "Check a document or a printed chain head against the sealed records",
     "records.export": "Export a job's whole record (JSON and files)",
     "signin.unlock": "Lift a sign-in pause after too many wrong passwords",
@@ -47,7 +48,7 @@ _ALLOWED = {
     Role.INSPECTOR: {"inspection.record", "ncr.raise", "weld.record", "assembly.submit"},
     Role.QA_LEAD: {
         "procedure.approve", "procedure.withdraw", "continuity.log", "ncr.raise", "ncr.disposition",
-        "assembly.release", "criteria.derive", "traveler.issue", "job.manage", "assembly.submit",
+        "assembly.release", "criteria.derive", "traveler.issue", "job.manage", "assembly.submit", "register.manage",
         "records.verify", "records.export", "signin.unlock",
     },
     # A viewer (a customer's or a third-party inspector's account) changes nothing, but may check a copy it holds.

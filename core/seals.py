@@ -327,7 +327,7 @@ def compare(sealed: dict, now: dict | None) -> list[tuple[str, str]]:
     def rows(prefix, old, new):
         for name in sorted(set(old) | set(new)):
             before, after = old.get(name, {"absent": True}), new.get(name, {"absent": True})
-            if before == after:
+            if before == after or (name not in old and after is None):  # a column added since, empty on the row
                 continue
             label = f"{prefix}{name}"
             if isinstance(before, dict) and set(before) == {"name", "sha256"}:

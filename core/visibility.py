@@ -21,12 +21,28 @@ from django.http import Http404
 from django.shortcuts import get_object_or_404
 
 from core.roles import Role
-from inspections.models import NCR, Assembly, ClientCriteriaSet, Customer, Inspection, Job, Photo, Weld
+from inspections.models import (
+    NCR,
+    Assembly,
+    ClientCriteriaSet,
+    Customer,
+    FillerLot,
+    Gauge,
+    GaugeCalibration,
+    Inspection,
+    InspectorCredential,
+    Job,
+    Photo,
+    Weld,
+)
 from inspections.models.traveler import JobPacket, Traveler
 from procedures.models import PQR, WPS, Qualification, Welder
 from procedures.models.welders import ContinuityEntry
 
 SHOP_ROLES = {Role.WELDING_ENGINEER, Role.INSPECTOR, Role.QA_LEAD}
+
+# The shop's own registers: a viewer reads them only as printed on its travelers (docs/decisions, traceability).
+SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration, FillerLot)
 
 # Records that belong to one job: the path from the record to its job.
 JOB_PATHS = {
@@ -93,6 +109,8 @@ def _narrow(user, queryset):
         return queryset.filter(pk__in=jobs_visible_to(user).exclude(client_criteria=None).values("client_criteria"))
     if model is Customer:
         return queryset.filter(viewers=user)
+    if model in SHOP_REGISTERS:
+        return queryset.none()
     raise ValueError(f"core.visibility does not know who may see {model.__name__}: add it there.")
 
 

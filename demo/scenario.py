@@ -79,8 +79,69 @@ def load() -> bool:
         pqrs = _pqrs()
         procedures = _procedures(users, pqrs)
         welders = _welders(users, today)
+        _credentials(users, today)
+        _gauges(users, today)
+        _filler_lots(users, today)
         _jobs(users, procedures, welders, today)
     return True
+
+
+def _credentials(users, today):
+    """Two inspectors' cards: Rosa Quint's AWS CWI runs two more years; Theo Brandt's ISO 9712 VT level 2 lapses in
+    three weeks, so the credentials page shows it ahead. Recorded by the QA lead."""
+    from inspections.models import InspectorCredential
+
+    theo, created = User.objects.get_or_create(username="inspector2", defaults=dict(
+        first_name="Theo", last_name="Brandt", role=Role.INSPECTOR))
+    if created:
+        theo.set_password(PASSWORD)
+        theo.save(update_fields=["password"])
+    with history.acting(users[Role.QA_LEAD]):
+        InspectorCredential(inspector=users[Role.INSPECTOR], scheme="aws_cwi", number="21-0417",
+                            endorsements="AWS D1.1 structural steel", issued_on=today - timedelta(days=400),
+                            expires_on=today + timedelta(days=700), eye_exam_on=today - timedelta(days=120),
+                            recorded_by=users[Role.QA_LEAD]).save()
+        InspectorCredential(inspector=theo, scheme="iso_9712", number="VT2-4471", level="2",
+                            endorsements="Sector: welded products (w)", issued_on=today - timedelta(days=1800),
+                            expires_on=today + timedelta(days=21), eye_exam_on=today - timedelta(days=200),
+                            recorded_by=users[Role.QA_LEAD]).save()
+
+
+def _gauges(users, today):
+    """The gauge register: two gauges in calibration, a contact thermometer due in ten days (the list warns), and a
+    fillet gauge whose calibration ran out last week (it cannot be chosen). Demo inspections use FG-01."""
+    from inspections.models import Gauge, GaugeCalibration
+
+    register = [
+        ("FG-01", "fillet", "Fillet weld gauge set 1/8-1 in", 200, 165, "in_tolerance"),
+        ("UC-02", "undercut", "Undercut / pit depth gauge, dial", 90, 275, "in_tolerance"),
+        ("TC-03", "thermometer", "Contact thermometer, 0-600 F", 355, 10, "in_tolerance"),
+        ("FG-04", "fillet", "Fillet weld gauge set 3-25 mm", 372, -7, "in_tolerance"),
+    ]
+    with history.acting(users[Role.QA_LEAD]):
+        for number, kind, description, ago, due_in, result in register:
+            gauge = Gauge(number=number, kind=kind, description=description, recorded_by=users[Role.QA_LEAD])
+            gauge.save()
+            GaugeCalibration(gauge=gauge, calibrated_on=today - timedelta(days=ago),
+                             due_on=today + timedelta(days=due_in), result=result,
+                             performed_by="Ridgeway Metrology Lab" if kind != "fillet" else
+                             "Brannock QA bench, reference block set R-2",
+                             recorded_by=users[Role.QA_LEAD]).save()
+
+
+def _filler_lots(users, today):
+    """The lots in use, as received with their certificates' data (no files in the demo); demo welds name the lot of
+    their WPS's classification."""
+    from inspections.models import FillerLot
+
+    lots = [("E71T-1C", "AWS A5.20/A5.20M", "0.045 in", "KW-24-1187"), ("E7018", "AWS A5.1/A5.1M", "1/8 in",
+                                                                       "KW-24-0932"),
+            ("ER70S-6", "AWS A5.18/A5.18M", "1.2 mm", "KW-24-1402")]
+    with history.acting(users[Role.QA_LEAD]):
+        for classification, specification, diameter, number in lots:
+            FillerLot(classification=classification, specification=specification, diameter=L(diameter),
+                      lot_number=number, manufacturer="Kessler Wire Co.", received_on=today - timedelta(days=40),
+                      recorded_by=users[Role.QA_LEAD]).save()
 
 
 def _pqrs():
@@ -291,19 +352,22 @@ def _jobs(users, procedures, welders, today):
 
 
 def _weld(assembly, mark, wps, welders, on, **fields):
-    from inspections.models import Weld
+    from inspections.models import FillerLot, Weld
     from inspections.services.assemblies import record_production
 
-    weld = Weld.objects.create(assembly=assembly, mark=mark, wps=wps, welded_on=on, **fields)
+    lot = FillerLot.objects.filter(classification=wps.electrode).first() if wps else None  # the shop's lot in use
+    weld = Weld.objects.create(assembly=assembly, mark=mark, wps=wps, welded_on=on, filler_lot=lot, **fields)
     weld.welders.set(welders)
     record_production(weld)
     return weld
 
 
 def _inspect(weld, users, stage="final", **observed):
+    from inspections.models import Gauge
     from inspections.services.inspect import sign_inspection
 
-    return sign_inspection(weld, observed, stage, users[Role.INSPECTOR])
+    gauge = Gauge.objects.get(number="FG-01") if stage != "fit_up" else None
+    return sign_inspection(weld, observed, stage, users[Role.INSPECTOR], gauge=gauge)
 
 
 def _garage(job, users, procedures, welders, today):
@@ -322,7 +386,9 @@ def _garage(job, users, procedures, welders, today):
     w2 = _weld(beam, "W2", fcaw, [dana], day, size=L("3/16 in"), length=L("4 in"), count=4,
                thickness1=L("5/16 in"), thickness2=L("3/8 in"), position="V")
     # Fit-up measured: a 1/16 in root opening, so the 1/4 in leg must reach 5/16 in (D1.1 clause 7.21.1).
-    _inspect(w1, users, stage="fit_up", fit_up_ok=True, root_gap=L("1/16 in"))
+    # Preheat read at fit-up with a contact thermometer (judged against BSW-101's minimum and Table 5.8).
+    _inspect(w1, users, stage="fit_up", fit_up_ok=True, root_gap=L("1/16 in"),
+             preheat_measured=parse_temperature("70 F"), temperature_method="contact")
     _inspect(w1, users, min_size=L("5/16 in"), undercut_depth=L("1/64 in"), convexity=L("1/16 in"),
              face_width=L("7/16 in"))
     _inspect(w2, users, min_size=L("3/16 in"))

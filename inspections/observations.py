@@ -164,7 +164,8 @@ CRITERIA: dict[str, str] = {
     "convexity": "Convexity", "asymmetry": "Asymmetry of the legs", "weld_toe": "Weld toe", "crack": "Cracks",
     "crater_crack": "Crater crack", "fusion": "Fusion", "crater": "Craters", "overlap": "Overlap",
     "poor_restart": "Poor restart", "spatter": "Spatter", "arc_strike": "Arc strikes", "root_gap": "Root gap",
-    "root_opening": "Root opening", "fit_up": "Fit-up",
+    "root_opening": "Root opening", "fit_up": "Fit-up", "preheat": "Preheat (measured)",
+    "interpass": "Interpass temperature (measured)",
 }
 
 

@@ -38,9 +38,10 @@ from inspections.models import Assembly, Inspection, InspectionStage, Photo, Wel
 from inspections.models.traveler import Traveler
 from inspections.services import capacity as capacities
 from inspections.services import chain as proof
+from inspections.services import trace
 from inspections.services.assemblies import weld_statuses
 
-GENERATOR = "legwork-traveler 3"  # bump when the layout or the gathered data changes meaning
+GENERATOR = "legwork-traveler 4"  # bump when the layout or the gathered data changes meaning
 TEMPLATE = "pdf/traveler.html"
 PHOTO_MAX_PX = 360  # thumbnails are 320 px (inspections.photos); anything larger is shrunk before embedding
 PHOTOS_MAX = 24  # more than this many photos: the newest are embedded, the rest listed by caption
@@ -74,6 +75,13 @@ def _person(user) -> str:
     name = user.get_full_name() or user.get_username()
     stamp = getattr(user, "stamp", "")
     return f"{name} ({stamp})" if stamp else name
+
+
+def _inspector(inspection: Inspection) -> str:
+    """The inspector's name with the credential the inspection was signed under (the stamp where none was)."""
+    name = inspection.inspector.get_full_name() or inspection.inspector.get_username()
+    credential = trace.printed_credential(inspection)
+    return f"{name} ({credential})" if credential else name
 
 
 def _day(value) -> str:
@@ -114,8 +122,9 @@ def _inspection(inspection: Inspection | None, system: str) -> dict | None:
     observations' words (inspections.observations through Inspection.recorded)."""
     if inspection is None:
         return None
-    return {"pk": inspection.pk, "accepted": inspection.accepted, "inspector": _person(inspection.inspector),
+    return {"pk": inspection.pk, "accepted": inspection.accepted, "inspector": _inspector(inspection),
             "date": _day(inspection.inspected_at), "stage": inspection.get_stage_display(),
+            "gauge": inspection.gauge_calibration.printed() if inspection.gauge_calibration else "",
             "recorded": [f"{label} {value}" for label, value in inspection.recorded(system)]}
 
 
@@ -171,7 +180,7 @@ def gather(assembly_pk: int) -> dict:
     system = job.unit_system
     iso = wording.throat_first(job)
     convention = _convention(job)
-    welds = list(Weld.objects.filter(assembly=assembly).select_related("wps")
+    welds = list(Weld.objects.filter(assembly=assembly).select_related("wps", "filler_lot")
                  .prefetch_related("welders").order_by("mark"))
     for weld in welds:
         weld.assembly = assembly  # the capacity service and the size words read the job from here
@@ -181,7 +190,8 @@ def gather(assembly_pk: int) -> dict:
     chains = proof.check_assembly(assembly, welds, statuses)  # WPS, welders (original and repairs), hold point
     fit_ups = {}
     for inspection in (Inspection.objects.current().filter(weld_id__in=weld_ids, stage=InspectionStage.FIT_UP)
-                       .select_related("inspector").order_by("weld_id", "-inspected_at", "-pk")):
+                       .select_related("inspector", "credential", "gauge_calibration__gauge")
+                       .order_by("weld_id", "-inspected_at", "-pk")):
         fit_ups.setdefault(inspection.weld_id, inspection)
     photos = list(Photo.objects.filter(inspection__weld_id__in=weld_ids)
                   .select_related("inspection").order_by("-uploaded_at", "-pk")[:PHOTOS_MAX + 1])
@@ -242,6 +252,7 @@ def gather(assembly_pk: int) -> dict:
             "fit_up": _inspection(fit_ups.get(weld.pk), system), "final": _inspection(final, system),
             "result": result, "released_ok": status.released_ok, "ncrs": ncrs, "repairs": repairs,
             "chain_ok": link.ok,
+            "filler": weld.filler_lot.printed(system) if weld.filler_lot else "", "filler_problem": link.filler,
         }
         rows.append(row)
         cap = _capacity(weld, final, system)

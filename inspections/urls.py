@@ -9,6 +9,7 @@ from inspections.views import lists as list_views
 from inspections.views import ncr as ncr_views
 from inspections.views import records as record_views
 from inspections.views import strength as strength_views
+from inspections.views import trace as trace_views
 from inspections.views import travelers as traveler_views
 from inspections.views import trends as trend_views
 
@@ -72,6 +73,27 @@ urlpatterns = [
     path("inspection/<int:pk>/capacity.pdf", strength_views.inspection_capacity_pdf,
          name="inspection_capacity_pdf"),
     # end of strength calculator and calculation sheets
+    # --- traceability registers: inspector credentials, gauges (inspections.views.trace) ---
+    path("credentials/", trace_views.credential_list, name="credential_list"),
+    path("credentials/new/", trace_views.credential_create, name="credential_create"),
+    path("credentials/<int:pk>/", trace_views.credential_detail, name="credential_detail"),
+    path("credentials/<int:pk>/withdraw/", trace_views.credential_withdraw, name="credential_withdraw"),
+    path("credentials/<int:pk>/card/", trace_views.credential_document, name="credential_document"),
+    path("gauges/", trace_views.gauge_list, name="gauge_list"),
+    path("gauges/new/", trace_views.gauge_create, name="gauge_create"),
+    path("gauges/<int:pk>/", trace_views.gauge_detail, name="gauge_detail"),
+    path("gauges/<int:pk>/calibrations/new/", trace_views.calibration_create, name="calibration_create"),
+    path("gauges/<int:pk>/retire/", trace_views.gauge_retire, name="gauge_retire"),
+    path("calibrations/<int:pk>/", trace_views.calibration_detail, name="calibration_detail"),
+    path("calibrations/<int:pk>/certificate/", trace_views.calibration_document, name="calibration_document"),
+    path("filler-lots/", trace_views.filler_lot_list, name="filler_lot_list"),
+    path("filler-lots/new/", trace_views.filler_lot_create, name="filler_lot_create"),
+    path("filler-lots/<int:pk>/", trace_views.filler_lot_detail, name="filler_lot_detail"),
+    path("filler-lots/<int:pk>/certificate/", trace_views.filler_lot_document, name="filler_lot_document"),
+    path("welds/<int:pk>/filler/", trace_views.weld_filler, name="weld_filler"),
+    path("recall/", trace_views.recall, name="recall"),
+    path("recall.csv", trace_views.recall_csv, name="recall_csv"),
+    # end of traceability registers
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),
     path("assemblies/<int:pk>/travelers/issue/", traveler_views.traveler_issue, name="traveler_issue"),

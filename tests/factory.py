@@ -46,13 +46,70 @@ class Factory:
         models.Model.save(record, update_fields=list(fields))
         return record
 
-    def make_user(self, role, username=None, **kwargs):
+    def make_user(self, role, username=None, credential=True, **kwargs):
         username = username or f"{role}-{next(_counter)}"
         user = User(username=username, role=role, first_name=kwargs.pop("first_name", role.replace("_", " ").title()),
                     **kwargs)
         user.set_password(self.password)
         user.save()
+        if role == "inspector" and credential:  # an inspector signs final visuals only under a current credential
+            self.make_credential(user)
         return user
+
+    def make_credential(self, inspector=None, **kwargs):
+        """An AWS CWI credential, current from a year ago to two years ahead, eye examination a year ago."""
+        from datetime import timedelta
+
+        from django.utils import timezone
+
+        from inspections.models import InspectorCredential
+
+        today = timezone.localdate()
+        fields = dict(scheme="aws_cwi", number=f"CWI {next(_counter):02d}-{today:%m%d}",
+                      issued_on=today - timedelta(days=365), expires_on=today + timedelta(days=730),
+                      eye_exam_on=today - timedelta(days=365))
+        fields.update(kwargs)
+        credential = InspectorCredential(inspector=inspector or self.make_user("inspector", credential=False),
+                                         **fields)
+        credential.save()
+        return credential
+
+    def make_gauge(self, number=None, kind="fillet", calibrated_on=None, due_on=None, result="in_tolerance"):
+        """A gauge of the register with one calibration (calibrated 100 days ago, due in a year) unless result=None."""
+        from datetime import timedelta
+
+        from django.utils import timezone
+
+        from inspections.models import Gauge
+
+        today = timezone.localdate()
+        gauge = Gauge(number=number or f"FG-{next(_counter):02d}", kind=kind, description="Fillet gauge set")
+        gauge.save()
+        if result is not None:
+            self.calibrate(gauge, calibrated_on or today - timedelta(days=100), due_on or today + timedelta(days=265),
+                           result)
+        return gauge
+
+    def make_filler_lot(self, classification="E71T-1C", **kwargs):
+        """A filler lot as received (no certificate attached)."""
+        from inspections.models import FillerLot
+
+        fields = dict(classification=classification, specification="AWS A5.20/A5.20M", diameter=L("0.045 in"),
+                      lot_number=f"LOT-{next(_counter):04d}", manufacturer="Kessler Wire Co.",
+                      received_on=date(2026, 9, 14))
+        fields.update(kwargs)
+        lot = FillerLot(**fields)
+        lot.save()
+        return lot
+
+    @staticmethod
+    def calibrate(gauge, calibrated_on, due_on, result="in_tolerance"):
+        from inspections.models import GaugeCalibration
+
+        record = GaugeCalibration(gauge=gauge, calibrated_on=calibrated_on, due_on=due_on, result=result,
+                                  performed_by="Brannock QA bench, reference block set R-2")
+        record.save()
+        return record
 
     def make_wps(self, state=WPSState.DRAFT, via_steps=True, **kwargs):
         """A WPS in `state`, taken there through the real steps; via_steps=False stores the row in that state
@@ -194,7 +251,7 @@ class Factory:
         return weld
 
     def make_inspection(self, weld=None, *, accepted=None, stage="final", user=None, supersedes=None, reason="",
-                        **observed):
+                        gauge=None, **observed):
         """A signed inspection through the one signing path (inspections.services.inspect.sign_inspection).
 
         With no observations: accepted=True (the default) measures the full specified leg; accepted=False a leg
@@ -206,7 +263,8 @@ class Factory:
 
         weld = weld or (supersedes.weld if supersedes is not None else self.make_weld())
         user = user or (supersedes.inspector if supersedes is not None else self.make_user("inspector"))
-        observed = {k: (parse_length(v) if isinstance(v, str) else v) for k, v in observed.items()}
+        observed = {k: (parse_length(v) if isinstance(v, str) and k != "temperature_method" else v)
+                    for k, v in observed.items()}
         if stage == "fit_up":
             observed.setdefault("fit_up_ok", accepted is not False)
         elif not observed:
@@ -214,7 +272,7 @@ class Factory:
                 observed = {"min_size": Length(weld.size.mm - L("1/16 in").mm), "undersize_length": L("3 in")}
             else:
                 observed = {"min_size": weld.size}
-        inspection = sign_inspection(weld, observed, stage, user, supersedes=supersedes, reason=reason)
+        inspection = sign_inspection(weld, observed, stage, user, supersedes=supersedes, reason=reason, gauge=gauge)
         if accepted is not None:
             assert inspection.accepted == accepted, f"the engine judged {observed} otherwise: {inspection.findings}"
         return inspection

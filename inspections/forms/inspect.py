@@ -9,14 +9,17 @@ everywhere (core.units reads a decimal comma). Angles are read by core.units.par
 """
 
 from django import forms
+from django.utils import timezone
 
 from core import units
-from core.fields import set_unit_system
+from core.fields import TemperatureFormField, set_unit_system
+from core.inputs import parse_id
 from core.units import parse_length
-from inspections import observations
+from inspections import observations, preheat
 from inspections.criteria import resolve
-from inspections.models import Inspection, InspectionStage, Weld
+from inspections.models import Gauge, Inspection, InspectionStage, TemperatureMethod, Weld
 from inspections.photos import PhotoError, clean_photo
+from inspections.services import trace
 
 MAX_DEFECT = parse_length("1000 mm")  # nothing a fillet gauge reads on one weld is longer than a metre
 MAX_SIZE = parse_length("100 mm")
@@ -24,6 +27,7 @@ SIZES = ("min_size", "min_size2", "throat", "convexity", "face_width", "leg_diff
          "overlap_width", "crater_depth", "pore_max", "undercut_depth")
 ALONG_THE_WELD = ("undersize_length", "undercut_length", "throat_short_length")
 OBSERVED = [o.name for o in observations.OBSERVATIONS]
+TEMPERATURES = ("preheat_measured", "interpass_measured")
 
 
 class FindAssemblyForm(forms.Form):
@@ -70,6 +74,18 @@ class InspectionForm(forms.ModelForm):
         required=False, label="Fit-up acceptable",
         help_text="Joint, alignment and cleanliness match the drawing and the WPS.")
     shown_verdict = forms.CharField(required=False, widget=forms.HiddenInput(attrs={"id": "lw-shown"}))
+    preheat_measured = TemperatureFormField(
+        required=False, label="Preheat measured",
+        help_text="At fit-up or in-process, before the arc; a bare number is read in the job's units. "
+                  + preheat.MEASURED_WHERE)
+    interpass_measured = TemperatureFormField(
+        required=False, label="Interpass temperature measured", help_text="In-process, before the next pass.")
+    temperature_method = forms.ChoiceField(label="Measured with", required=False,
+                                           choices=[("", "—"), *TemperatureMethod.choices])
+    gauge = forms.CharField(
+        required=False, label="Gauge used", max_length=20, widget=forms.Select(),
+        help_text="From the gauge register: only gauges in calibration today are offered. Optional: an inspection "
+                  "that measured nothing names none.")
 
     def __init__(self, *args, weld: Weld, batch=(), **kwargs):
         super().__init__(*args, **kwargs)
@@ -114,6 +130,13 @@ class InspectionForm(forms.ModelForm):
         if "min_size" in self.fields:
             self.fields["min_size"].allow_zero = False
         self.fields["fit_up_ok"].widget.attrs.update({"class": "lw-tile-input"})
+        for name in TEMPERATURES:
+            self.fields[name].system = system
+            self.fields[name].widget.attrs.update({"inputmode": inputmode, "data-unit": "°F" if system == "US"
+                                                   else "°C", "placeholder": "e.g. 150" if system == "US"
+                                                   else "e.g. 65"})
+        self.fields["gauge"].widget.choices = [("", "— none —")] + [
+            (str(g.pk), f"{g.number} · {g.get_kind_display()}") for g in trace.usable_gauges(timezone.localdate())]
         self.fields["stage"].widget = forms.RadioSelect(choices=InspectionStage.choices, attrs={"class": "btn-check"})
         self.batch = list(batch)
         if self.batch:
@@ -168,9 +191,24 @@ class InspectionForm(forms.ModelForm):
                                         f"{'4 in' if self.system == 'US' else '100 mm'} only.")
         return value
 
+    def clean_gauge(self):
+        """The Gauge chosen, or None; a gauge out of calibration today is refused with the reason."""
+        text = self.cleaned_data.get("gauge") or ""
+        if not text.strip():
+            return None
+        pk = parse_id(text)
+        gauge = Gauge.objects.filter(pk=pk).first() if pk is not None else None
+        if gauge is None:
+            raise forms.ValidationError("Choose a gauge from the register.", code="invalid_choice")
+        why = trace.gauge_refusal(gauge, timezone.localdate())
+        if why:
+            raise forms.ValidationError(why, code="out_of_calibration")
+        return gauge
+
     def clean(self):
         data = super().clean()
         weld = self.weld
+        self._clean_temperatures(data)
         if self.errors:
             return data
         if data.get("stage") == InspectionStage.FIT_UP:
@@ -188,6 +226,24 @@ class InspectionForm(forms.ModelForm):
                 self.add_error(name, "This is longer than the weld itself; measure it along this weld only.")
         return data
 
+    def _clean_temperatures(self, data):
+        """Preheat is measured before the arc (fit-up or in-process), interpass between passes (in-process); each
+        reading names what measured it."""
+        stage = data.get("stage")
+        typed = [name for name in TEMPERATURES if data.get(name) is not None]
+        if stage == InspectionStage.FINAL:
+            for name in typed:
+                self.add_error(name, "Temperatures are measured before and during welding: record this at fit-up "
+                                     "or in-process.")
+            return
+        if stage == InspectionStage.FIT_UP and data.get("interpass_measured") is not None:
+            self.add_error("interpass_measured", "Interpass temperature is measured between passes: record it "
+                                                 "in-process.")
+        if typed and not data.get("temperature_method"):
+            self.add_error("temperature_method", "Say what the temperature was measured with.")
+        if data.get("temperature_method") and not typed:
+            self.add_error("temperature_method", "Enter the temperature measured, or leave this empty.")
+
     def _clean_fit_up(self, data):
         """Fit-up comes before welding: the root opening is gauged; weld measurements and defects come later."""
         for name in OBSERVED:
@@ -200,7 +256,7 @@ class InspectionForm(forms.ModelForm):
 
     def typed_anything(self) -> bool:
         """Has anything been typed or ticked yet (the stage aside)? An empty form is not judged on the panel."""
-        names = [*OBSERVED, "fit_up_ok", "remarks"]
+        names = [*OBSERVED, *TEMPERATURES, "fit_up_ok", "remarks"]
         return any(self.data.get(self.add_prefix(name)) not in (None, "") for name in names if name in self.fields)
 
     def observed(self) -> dict:
@@ -208,6 +264,8 @@ class InspectionForm(forms.ModelForm):
         data = self.cleaned_data
         observed = {name: data.get(name) for name in OBSERVED if name in self.fields}
         observed["fit_up_ok"] = bool(data.get("fit_up_ok"))
+        for name in (*TEMPERATURES, "temperature_method"):
+            observed[name] = data.get(name) or None
         return observed
 
     def _post_clean(self):

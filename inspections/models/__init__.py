@@ -1,12 +1,30 @@
 """Jobs, assemblies and their weld maps, inspections with photos, NCRs, client criteria sets."""
 
 from inspections.models.criteria import ClientCriteriaSet
-from inspections.models.inspection import DraftPhoto, Inspection, InspectionDraft, InspectionStage, Photo
+from inspections.models.inspection import (
+    DraftPhoto,
+    Inspection,
+    InspectionDraft,
+    InspectionStage,
+    Photo,
+    TemperatureMethod,
+)
 from inspections.models.jobs import Assembly, AssemblyState, Customer, Job, Weld
 from inspections.models.ncr import NCR
 from inspections.models.repair import WeldRepair
+from inspections.models.trace import (
+    CalibrationResult,
+    CredentialState,
+    FillerLot,
+    Gauge,
+    GaugeCalibration,
+    GaugeKind,
+    GaugeState,
+    InspectorCredential,
+)
 from inspections.models.traveler import JobPacket, PacketState, Traveler
 
-__all__ = ["NCR", "Assembly", "AssemblyState", "ClientCriteriaSet", "Customer", "DraftPhoto", "Inspection",
-           "InspectionDraft", "InspectionStage", "Job", "JobPacket", "PacketState", "Photo", "Traveler", "Weld",
-           "WeldRepair"]
+__all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCriteriaSet", "CredentialState",
+           "Customer", "DraftPhoto", "FillerLot", "Gauge", "GaugeCalibration", "GaugeKind", "GaugeState", "Inspection",
+           "InspectionDraft", "InspectionStage", "InspectorCredential", "Job", "JobPacket", "PacketState", "Photo",
+           "TemperatureMethod", "Traveler", "Weld", "WeldRepair"]

@@ -14,7 +14,7 @@ from django.utils import timezone
 
 from core import units
 from core.errors import RecordLocked
-from core.fields import LengthField
+from core.fields import LengthField, TemperatureField
 from core.locking import ALWAYS, Guarded, GuardedQuerySet, Lock, sql_text
 from inspections import observations
 
@@ -23,6 +23,12 @@ class InspectionStage(models.TextChoices):
     FIT_UP = "fit_up", "Fit-up"
     IN_PROCESS = "in_process", "In-process"
     FINAL = "final", "Final visual"
+
+
+class TemperatureMethod(models.TextChoices):
+    CONTACT = "contact", "Contact thermometer"
+    CRAYON = "crayon", "Temperature-indicating crayon"
+    INFRARED = "infrared", "Infrared thermometer"
 
 
 class InspectionQuerySet(GuardedQuerySet):
@@ -100,6 +106,22 @@ class Inspection(Guarded):
         "leg increase for the root opening", null=True, blank=True, editable=False,
         help_text="Added to the specified leg for the root opening measured at fit-up (AWS D1.1 clause 7.21.1)")
 
+    credential = models.ForeignKey(
+        "inspections.InspectorCredential", null=True, blank=True, on_delete=models.PROTECT, editable=False,
+        related_name="inspections", help_text="The inspector's certification current when signed (a final visual "
+                                              "needs one: inspections.services.trace)")
+    # Measured at fit-up or in-process, judged by inspections.preheat against the WPS (and Table 5.8).
+    preheat_measured = TemperatureField("preheat measured", null=True, blank=True)
+    interpass_measured = TemperatureField("interpass temperature measured", null=True, blank=True)
+    # Nullable, unlike the other text columns: SQLite then adds the column in place instead of rebuilding this table
+    # of signed rows (a rebuild trips the photo table's guard trigger, which reads this one).
+    temperature_method = models.CharField("measured with", max_length=10, choices=TemperatureMethod.choices,  # noqa: DJ001
+                                          null=True, blank=True)
+    gauge_calibration = models.ForeignKey(
+        "inspections.GaugeCalibration", null=True, blank=True, on_delete=models.PROTECT, editable=False,
+        related_name="inspections", verbose_name="gauge used",
+        help_text="The gauge and the calibration it was in when signed (inspections.calibration)")
+
     accepted = models.BooleanField(editable=False)
     findings = models.JSONField(editable=False, help_text="The verdict's findings as judged when signed")
     criteria_key = models.CharField(max_length=60, editable=False)
@@ -174,6 +196,11 @@ class Inspection(Guarded):
             else:
                 text = str(value)
             rows.append((o.label(system), text))
+        for label, value in (("Preheat measured", self.preheat_measured),
+                             ("Interpass temperature measured", self.interpass_measured)):
+            if value is not None:
+                rows.append((label, f"{units.format_temperature(value, system)} "
+                                    f"({(self.get_temperature_method_display() or 'method not recorded').lower()})"))
         if self.leg_increase:
             rows.append(("Specified leg increased for the root opening at fit-up",
                          f"+{units.format_length(self.leg_increase, system)}"))

@@ -202,7 +202,7 @@ class Sides(models.TextChoices):
 
 # Who welded it, when, to which WPS (and the welders, a many-to-many link): recorded after fit-up, frozen at the
 # first final visual inspection. Everything else a weld holds is the drawing's data, frozen at its first inspection.
-PRODUCTION_FIELDS = ("wps", "welded_on")
+PRODUCTION_FIELDS = ("wps", "welded_on", "filler_lot")
 WELD_POINTERS = ("latest_inspection", "latest_final")
 
 
@@ -341,6 +341,9 @@ class Weld(Guarded):
                             verbose_name="WPS")
     welders = models.ManyToManyField("procedures.Welder", blank=True, related_name="welds")
     welded_on = models.DateField("date welded", null=True, blank=True)
+    filler_lot = models.ForeignKey("inspections.FillerLot", null=True, blank=True, on_delete=models.PROTECT,
+                                   related_name="welds", verbose_name="filler lot",
+                                   help_text="The lot of filler metal the weld was made with (the filler register)")
     completed_at = models.DateTimeField(
         "weld completed and cooled", null=True, blank=True,
         help_text="When the weld was finished and cooled to ambient; the delayed final visual of quenched and "

@@ -81,7 +81,8 @@ def weld_statuses(weld_ids) -> dict[int, WeldStatus]:
         return statuses
     # The weld rows point at their latest current inspection and latest current final one (kept at signing).
     for weld in (Weld.objects.filter(pk__in=weld_ids).only("pk", "latest_inspection", "latest_final")
-                 .select_related("latest_inspection__inspector", "latest_final__inspector")):
+                 .select_related(*(f"{which}__{what}" for which in ("latest_inspection", "latest_final")
+                                   for what in ("inspector", "credential", "gauge_calibration__gauge")))):
         status = statuses[weld.pk]
         status.latest, status.final = weld.latest_inspection, weld.latest_final
         if status.latest is not None and status.final is not None and status.latest.pk == status.final.pk:

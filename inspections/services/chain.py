@@ -9,6 +9,8 @@ For every weld of an assembly (and each recorded repair of it), on the day it wa
 3. Inspection: an accepted current final visual (or an NCR closed as use-as-is), no NCR open
    (services.assemblies.weld_statuses); an NCR for repair closes only on a re-inspection after the repair.
 4. Hold point: where the job requires it, an accepted current fit-up inspection.
+5. Filler: the lot recorded for the weld has the WPS's classification (a lot not recorded is not a blocker yet;
+   an NCR closed as use-as-is accepts a mismatch, as for every deviation).
 
 check_assembly() answers all of it in a fixed number of queries whatever the number of welds, repairs and welders
 (tests/test_chain_queries.py pins it). Each problem is a Blocker: the words, and the page where it is put right.
@@ -22,10 +24,11 @@ from datetime import date
 from django.urls import reverse
 from django.utils import timezone
 
-from inspections.models import Inspection, InspectionStage, Job, Weld, WeldRepair
+from inspections.models import FillerLot, Inspection, InspectionStage, Job, Weld, WeldRepair
 from inspections.models.ncr import NCRState
 from inspections.services.assemblies import WeldStatus, weld_statuses
 from procedures import applicability, eligibility
+from procedures.electrodes import decode
 from procedures.models.wps import WPS
 
 
@@ -70,6 +73,7 @@ class WeldChain:
     repairs: list[RepairChain] = field(default_factory=list)
     fit_up: Inspection | None = None
     fit_up_required: bool = False
+    filler: str = ""  # why the filler lot does not match the WPS ("" when it does, or none is recorded)
     blockers: list[Blocker] = field(default_factory=list)
 
     @property
@@ -211,6 +215,7 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
     checks = eligibility.check_work(works) if works else {}
     held = [w.pk for job, welds in items if job.fit_up_hold_point for w in welds]
     fit_ups = _fit_ups(held) if held else {}
+    lots = _filler_lots(everything)
 
     found = []
     for job, welds in items:
@@ -218,7 +223,8 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
         for weld in welds:
             day = weld.welded_on
             chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
-                              statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point)
+                              statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point,
+                              filler=filler_mismatch(lots.get(weld.filler_lot_id), weld.wps))
             for repair in repairs.get(weld.pk, []):
                 label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
                 chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
@@ -227,6 +233,33 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
             chains[weld.pk] = chain
         found.append(chains)
     return found
+
+
+def _filler_lots(welds) -> dict[int, FillerLot]:
+    """The filler lots the welds name (one query when any does, none otherwise), set on each weld too."""
+    wanted = {w.filler_lot_id for w in welds if w.filler_lot_id}
+    lots = {lot.pk: lot for lot in FillerLot.objects.filter(pk__in=wanted)} if wanted else {}
+    for weld in welds:
+        if weld.filler_lot_id:
+            Weld.filler_lot.field.set_cached_value(weld, lots[weld.filler_lot_id])
+    return lots
+
+
+def filler_mismatch(lot: FillerLot | None, wps: WPS | None) -> str:
+    """Why the lot does not match the WPS's filler classification ("" when it does, or either is missing). Both
+    are read by procedures.electrodes.decode, so E71T-1C and e71t-1c are one classification and E71T-1C and
+    E71T-1M are two (the shielding gas is part of the classification, AWS A5.20/A5.20M; from memory)."""
+    if lot is None or wps is None or not wps.electrode:
+        return ""
+    try:
+        used, specified = decode(lot.classification).classification, decode(wps.electrode).classification
+    except ValueError as exc:
+        return f"filler lot {lot.lot_number} cannot be compared with {wps}: {exc}"
+    if used != specified:
+        return (f"filler lot {lot.lot_number} is {used}; {wps} specifies {specified} (a different classification "
+                "is a different filler metal: the WPS names it, AWS D1.1/D1.1M:2020 clause 5 and Table 6.5, "
+                "ISO 15609-1:2019; from memory)")
+    return ""
 
 
 def _fit_ups(ids) -> dict[int, Inspection]:
@@ -289,6 +322,8 @@ def _blockers(chain: WeldChain) -> list[Blocker]:
         found += _wps_blockers(about, item.wps, repair.ncr.get_absolute_url())
         found += _welder_blockers(about, item.welders, repair.welded_on, repair.ncr.get_absolute_url())
     found += _inspection_blockers(subject, chain)
+    if chain.filler and not chain.status.accepted_as_is:
+        found.append(Blocker(f"{subject}: {chain.filler}.", _url("inspections:weld_filler", weld.pk)))
     if chain.fit_up_required:
         fit_up = chain.fit_up
         if fit_up is None:

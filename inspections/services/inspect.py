@@ -24,8 +24,8 @@ from django.utils import timezone
 
 from core import seals
 from core.errors import Refused
-from core.units import Length, format_length
-from inspections import fit_up, observations, visual_timing
+from core.units import Length, Temperature, format_length, format_temperature
+from inspections import fit_up, observations, preheat, visual_timing
 from inspections.acceptance import Finding, Verdict, evaluate
 from inspections.models import (
     Assembly,
@@ -37,8 +37,10 @@ from inspections.models import (
     Photo,
     Weld,
 )
+from inspections.services import trace
 from inspections.services.assemblies import refresh_assembly_state
 from inspections.services.ncr import close_ncrs_for, open_ncr
+from procedures.models.wps import Basis
 
 ZERO = Length(0)
 
@@ -165,7 +167,8 @@ def judge(weld: Weld, observed: dict, stage: str | None = None, *, fitted=_LOOK_
     Raises ValueError (from the engine) when the observations cannot be judged, e.g. a required leg is missing.
     """
     if stage == InspectionStage.FIT_UP:
-        return judge_fit_up(weld, bool(observed.get("fit_up_ok")), observed.get("root_gap"))
+        return with_temperatures(judge_fit_up(weld, bool(observed.get("fit_up_ok")), observed.get("root_gap")),
+                                 weld, observed)
     if fitted is _LOOK_UP:
         fitted = latest_fit_up(weld)
     increase = leg_increase(weld, fitted)
@@ -173,7 +176,35 @@ def judge(weld: Weld, observed: dict, stage: str | None = None, *, fitted=_LOOK_
     if increase:
         finding = _increase_finding(weld, fitted, increase, verdict.criteria_key, verdict.criteria_version)
         verdict = replace(verdict, findings=(finding, *verdict.findings))
-    return verdict
+    return with_temperatures(verdict, weld, observed)
+
+
+def with_temperatures(verdict: Verdict, weld: Weld, observed: dict) -> Verdict:
+    """The verdict with the measured preheat and interpass judged (inspections.preheat) against the weld's WPS and,
+    for a prequalified AWS WPS, Table 5.8 for the thicker part; a reading out of range rejects."""
+    readings = [(kind, observed.get(f"{kind}_measured")) for kind in ("preheat", "interpass")]
+    readings = [(kind, value) for kind, value in readings if value is not None]
+    if not readings:
+        return verdict
+    wps = weld.wps
+    if wps is None:
+        raise ValueError("The weld has no WPS on the weld map, so the temperature cannot be judged: add the WPS "
+                         "first.")
+    system = weld.assembly.job.unit_system
+    code = None
+    if wps.basis == Basis.PREQUALIFIED and wps.code.startswith("AWS"):
+        code = preheat.table_5_8_minimum(wps.review_input(), weld.thicker_part, system)
+    found = tuple(replace(preheat.judge(value, kind, wps_min=wps.preheat_min, wps_max=wps.interpass_max, code=code,
+                                        system=system, wps_name=f"WPS {wps.number} rev {wps.revision}"),
+                          criteria_key=verdict.criteria_key, criteria_version=verdict.criteria_version)
+                  for kind, value in readings)
+    return replace(verdict, findings=(*verdict.findings, *found),
+                   accepted=verdict.accepted and all(f.ok for f in found))
+
+
+def below_preheat(verdict: Verdict) -> bool:
+    """A temperature reading rejected the inspection (the weld is being made outside the WPS's temperatures)."""
+    return any(not f.ok and f.criterion in ("preheat", "interpass") for f in verdict.findings)
 
 
 def verdict_digest(verdict: Verdict) -> str:
@@ -204,6 +235,8 @@ def _text(value, system):
         return None
     if isinstance(value, Length):
         return format_length(value, system)
+    if isinstance(value, Temperature):
+        return format_temperature(value, system)
     if isinstance(value, bool):
         return value
     return str(value)
@@ -248,7 +281,7 @@ def _check_signable(weld: Weld, stage: str) -> None:
 
 def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: Inspection | None = None,
                     reason: str = "", remarks: str = "", *, draft: InspectionDraft | None = None,
-                    shown: str | None = None) -> Inspection:
+                    shown: str | None = None, gauge=None) -> Inspection:
     """Judge once, sign and store one inspection; move the NCR and assembly states on. All or nothing.
 
     A correction names the inspection it supersedes and why; only a current inspection of the same weld can be
@@ -257,7 +290,7 @@ def sign_inspection(weld: Weld, observed: dict, stage: str, user, supersedes: In
     photos are attached and it is deleted. The judged verdict is on the returned inspection as .verdict.
     """
     return sign_batch([weld], observed, stage, user, supersedes=supersedes, reason=reason, remarks=remarks,
-                      draft=draft, shown=shown)[0]
+                      draft=draft, shown=shown, gauge=gauge)[0]
 
 
 def batch_key(weld: Weld) -> tuple:
@@ -279,7 +312,7 @@ class VerdictChanged(Refused):
 @transaction.atomic
 def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersedes: Inspection | None = None,
                reason: str = "", remarks: str = "", draft: InspectionDraft | None = None,
-               shown: str | None = None) -> list[Inspection]:
+               shown: str | None = None, gauge=None) -> list[Inspection]:
     """Sign one pass over identical welds of one assembly with one verdict: an inspection per weld, in weld order.
 
     Refused when the welds are not identical in what the engines read (split the odd one out and inspect it on its
@@ -290,6 +323,8 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
     first = welds[0]
     for weld in welds:
         _check_signable(weld, stage)
+    credential = trace.signing_credential(user, stage, timezone.localdate())
+    calibrated = trace.signing_calibration(gauge, timezone.localdate())  # the gauge (registers), if one was used
     others = [w for w in welds[1:] if batch_key(w) != batch_key(first)]
     if others:
         raise Refused(f"Weld {others[0].mark} is not identical to {first.mark} (size, length, parts or WPS differ): "
@@ -337,7 +372,10 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
         inspection = Inspection(
             weld=weld, stage=stage, inspector=user, supersedes=supersedes, correction_reason=reason.strip(),
             remarks=remarks, accepted=verdict.accepted, findings=findings, criteria_key=key,
-            criteria_version=version, batch=batch, leg_increase=increase, **values,
+            criteria_version=version, batch=batch, leg_increase=increase, credential=credential,
+            gauge_calibration=calibrated, preheat_measured=observed.get("preheat_measured"),
+            interpass_measured=observed.get("interpass_measured"),
+            temperature_method=observed.get("temperature_method") or None, **values,
         )
         inspection.save(user=user)
         seals.seal(inspection, "inspection.signed")
@@ -354,6 +392,8 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
                 close_ncrs_for(inspection)
             else:
                 open_ncr(inspection, user, ncr_description(weld, verdict))
+        elif stage == InspectionStage.IN_PROCESS and below_preheat(verdict):  # welded outside the WPS's temperatures
+            open_ncr(inspection, user, ncr_description(weld, verdict, "in-process inspection"))
         inspection.verdict = verdict
         signed.append(inspection)
     if draft is not None and draft.pk:
@@ -382,9 +422,9 @@ def _point_weld_at(weld: Weld, inspection: Inspection) -> None:
         setattr(weld, name, value)
 
 
-def ncr_description(weld: Weld, verdict: Verdict) -> str:
+def ncr_description(weld: Weld, verdict: Verdict, at: str = "final visual inspection") -> str:
     """What the NCR says was found, in the findings' headings (never the engine's names)."""
-    lines = [f"Weld {weld.mark} on {weld.assembly.piece_mark} rejected at final visual inspection "
+    lines = [f"Weld {weld.mark} on {weld.assembly.piece_mark} rejected at {at} "
              f"({verdict.criteria_title}):"]
     lines += [f"- {observations.criterion_label(f.criterion)}: {f.message}" for f in verdict.rejections]
     return "\n".join(lines)

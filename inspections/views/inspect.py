@@ -14,10 +14,12 @@ from django.db.models import Exists, OuterRef, Q
 from django.http import FileResponse, Http404, QueryDict
 from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
+from django.utils import timezone
 from django.views.decorators.http import require_http_methods, require_POST, require_safe
 
 from core import faults, history, seals
 from core.errors import RecordLocked, Refused
+from core.inputs import parse_id
 from core.roles import can, role_required
 from core.storage import files_or_nothing
 from core.visibility import get_visible_or_404, visible
@@ -28,6 +30,7 @@ from inspections.models import NCR, Assembly, DraftPhoto, Inspection, Inspection
 from inspections.models.ncr import Disposition, NCRState
 from inspections.photos import PhotoError, clean_photo
 from inspections.services import inspect as service
+from inspections.services import trace
 from inspections.services.assemblies import weld_statuses
 from inspections.services.capacity import capacity_cards
 from inspections.services.chain import wps_checks
@@ -108,7 +111,7 @@ def _weld(request, pk, related=WELD_RELATED):
 def _batch_of(weld, request):
     """The identical welds of the same assembly named by ?with=pk,pk (GET) or the posted 'with' (POST)."""
     raw = request.POST.get("with") if request.method == "POST" else request.GET.get("with")
-    ids = [int(part) for part in (raw or "").split(",") if part.strip().isdigit() and len(part.strip()) <= 18][:50]
+    ids = [pk for pk in (parse_id(part) for part in (raw or "").split(",")[:50]) if pk is not None]
     if not ids:
         return []
     others = [w for w in Weld.objects.filter(assembly_id=weld.assembly_id, pk__in=ids).exclude(pk=weld.pk)
@@ -212,7 +215,7 @@ def _sign(request, form, welds, supersedes=None, draft=None):
         inspections = service.sign_batch(
             welds, form.observed(), data["stage"], request.user, supersedes=supersedes,
             reason=data.get("correction_reason", ""), remarks=data.get("remarks", ""), draft=draft,
-            shown=data.get("shown_verdict") or "")
+            shown=data.get("shown_verdict") or "", gauge=data.get("gauge"))
     except service.VerdictChanged as exc:
         form.changed_verdict = exc.verdict
         form.add_error(None, _message(exc) if data.get("shown_verdict") else
@@ -266,6 +269,7 @@ def _form_page(request, form, weld, correcting=None, draft=None, photo_errors=()
         "system": weld.assembly.job.unit_system, "verdict": verdict, "digest": digest, "correcting": correcting,
         "draft": draft, "held": list(draft.photos.all()) if draft is not None else [],
         "photo_errors": photo_errors, "too_early": service.final_visual_refusal(weld), "flags": weld_flags(weld),
+        "no_credential": trace.credential_refusal(request.user, timezone.localdate()),
         "batch_ids": ",".join(str(w.pk) for w in form.batch),
     }, status=status)
 
@@ -289,7 +293,8 @@ def inspect_preview(request, pk):
 def _inspection(request, pk):
     return get_visible_or_404(
         request.user, Inspection.objects.select_related(
-            "weld__assembly__job__client_criteria", "weld__wps", "inspector", "supersedes__inspector",
+            "weld__assembly__job__client_criteria", "weld__wps", "inspector", "credential", "gauge_calibration__gauge",
+            "supersedes__inspector",
             "superseded_by__inspector"), pk=pk)
 
 

@@ -14,6 +14,7 @@ from django.core.exceptions import ValidationError
 from django.utils import timezone
 
 from core import units
+from core.documents import ACCEPT, clean_document
 from core.fields import LengthFormField, set_unit_system
 from core.forms import VersionedModelForm
 from core.vocabulary import Backing, JointType, Position, Process, Progression, UnitSystem
@@ -23,7 +24,6 @@ from procedures.models.welders import Qualification, QualificationCode, Welder
 from procedures.models.wps import WPS, Transfer
 
 REPORT_MAX_BYTES = settings.LEGWORK_REPORT_MAX_BYTES
-REPORT_KINDS = {".pdf": "PDF", ".png": "PNG", ".jpg": "JPEG", ".jpeg": "JPEG"}
 
 
 class DateInput(forms.DateInput):
@@ -82,7 +82,7 @@ class QualificationForm(forms.ModelForm):
         set_unit_system(self, posted if posted in UnitSystem.values else UnitSystem.US)
         self.fields["wps"].queryset = WPS.objects.order_by("number", "-revision")
         self.fields["wps"].required = False
-        self.fields["report"].widget.attrs["accept"] = ".pdf,.png,.jpg,.jpeg,application/pdf,image/png,image/jpeg"
+        self.fields["report"].widget.attrs["accept"] = ACCEPT
         self.helper = FormHelper()
         self.helper.form_tag = False
         self.helper.layout = Layout(
@@ -108,21 +108,7 @@ class QualificationForm(forms.ModelForm):
             raise ValidationError(str(exc), code="electrode") from None
 
     def clean_report(self):
-        upload = self.cleaned_data.get("report")
-        if not upload or not hasattr(upload, "content_type"):  # nothing new uploaded
-            return upload
-        name = upload.name.lower()
-        kind = next((k for ext, k in REPORT_KINDS.items() if name.endswith(ext)), None)
-        if kind is None:
-            raise ValidationError("Attach the test report as a PDF, PNG or JPEG file.", code="report_type")
-        if upload.size > REPORT_MAX_BYTES:
-            raise ValidationError(f"The report is {upload.size // (1024 * 1024)} MB; the limit is "
-                                  f"{REPORT_MAX_BYTES // (1024 * 1024)} MB. Scan it at a lower resolution.",
-                                  code="report_size")
-        if _sniff(upload) != kind:
-            raise ValidationError(f"This file is not a readable {kind} (its name says {kind}, its content does not).",
-                                  code="report_content")
-        return upload
+        return clean_document(self.cleaned_data.get("report"), "test report", REPORT_MAX_BYTES)
 
     def clean(self):
         data = super().clean()
@@ -192,27 +178,6 @@ class QualificationForm(forms.ModelForm):
             )
         except (KeyError, ValueError) as exc:
             raise ValidationError(str(exc), code="engine") from None
-
-
-def _sniff(upload) -> str | None:
-    """What the file really is: 'PDF', 'PNG', 'JPEG', or None."""
-    upload.seek(0)
-    head = upload.read(8)
-    upload.seek(0)
-    if head.startswith(b"%PDF-"):
-        return "PDF"
-    try:
-        from PIL import Image
-
-        Image.MAX_IMAGE_PIXELS = getattr(settings, "LEGWORK_PHOTO_MAX_PIXELS", 40_000_000)
-        with Image.open(upload) as image:
-            image.verify()
-            kind = image.format
-    except Exception:  # noqa: BLE001 - Pillow raises many kinds of error for a bad file; any is "not an image"
-        kind = None
-    finally:
-        upload.seek(0)
-    return kind if kind in ("PNG", "JPEG") else None
 
 
 class ContinuityForm(forms.Form):

@@ -4,14 +4,13 @@ Ranges and lapse dates are never typed: procedures.qualification derives them fr
 the continuity entries (production welds recorded in Legwork add their own entries).
 """
 
-import hashlib
-
 from django.conf import settings
 from django.db import models
 from django.db.models import Q
 from django.urls import reverse
 from django.utils import timezone
 
+from core.documents import hash_document
 from core.errors import RecordLocked
 from core.fields import LengthField
 from core.locking import Guarded, GuardedQuerySet, Lock
@@ -149,11 +148,9 @@ class Qualification(Guarded):
         return f"{self.welder.stamp} {self.process} {self.test_position} {self.test_date:%Y-%m-%d}"
 
     def save(self, *args, **kwargs):
-        if self.report and not self.report._committed:  # a report attached now: hash the bytes about to be stored
-            digest = hashlib.sha256()
-            for chunk in self.report.chunks():
-                digest.update(chunk)
-            self.report_sha256 = digest.hexdigest()
+        digest = hash_document(self.report)  # a report attached now: hash the bytes about to be stored
+        if digest:
+            self.report_sha256 = digest
             if kwargs.get("update_fields") is not None:
                 kwargs["update_fields"] = {*kwargs["update_fields"], "report_sha256"}
         super().save(*args, **kwargs)

@@ -6,19 +6,18 @@ a login; every write names its action in core.roles. Test reports are served onl
 after the login check; media is never public.
 """
 
-import mimetypes
-from pathlib import PurePath
 
 from django.contrib import messages
 from django.core.exceptions import ValidationError
 from django.db import transaction
-from django.http import FileResponse, Http404
+from django.http import Http404
 from django.shortcuts import redirect, render
 from django.utils import timezone
 from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods, require_safe
 
 from core import faults, lists
+from core.documents import send_document
 from core.errors import Refused
 from core.pdf import pdf_response, render_pdf
 from core.roles import role_required
@@ -170,17 +169,7 @@ def _qualification_page(request, form, welder, status=200):
 def qualification_report(request, pk):
     """The attached test report, only to a signed-in user (LoginRequiredMiddleware), never from a public URL."""
     qualification = get_visible_or_404(request.user, Qualification, pk=pk)
-    if not qualification.report:
-        raise Http404("No report attached.")
-    try:
-        handle = qualification.report.open("rb")
-    except FileNotFoundError:
-        raise Http404("The report file is missing from storage.") from None
-    name = PurePath(qualification.report.name).name
-    content_type = mimetypes.guess_type(name)[0] or "application/octet-stream"
-    response = FileResponse(handle, content_type=content_type, filename=name)
-    response["Content-Security-Policy"] = "sandbox; default-src 'none'; img-src 'self'; style-src 'unsafe-inline'"
-    return response
+    return send_document(qualification.report, "report")
 
 
 @role_required("continuity.log")

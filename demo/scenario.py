@@ -87,8 +87,9 @@ def load() -> bool:
 
 
 def _credentials(users, today):
-    """Two inspectors' cards: Rosa Quint's AWS CWI runs two more years; Theo Brandt's ISO 9712 VT level 2 lapses in
-    three weeks, so the credentials page shows it ahead. Recorded by the QA lead."""
+    """Two inspectors' cards: Rosa Quint's AWS CWI runs two more years, its eye examination older than the demo's
+    twenty weeks of history (demo/history.py signs under it); Theo Brandt's ISO 9712 VT level 2 lapses in three
+    weeks, so the credentials page shows it ahead. Recorded by the QA lead."""
     from inspections.models import InspectorCredential
 
     theo, created = User.objects.get_or_create(username="inspector2", defaults=dict(
@@ -99,7 +100,7 @@ def _credentials(users, today):
     with history.acting(users[Role.QA_LEAD]):
         InspectorCredential(inspector=users[Role.INSPECTOR], scheme="aws_cwi", number="21-0417",
                             endorsements="AWS D1.1 structural steel", issued_on=today - timedelta(days=400),
-                            expires_on=today + timedelta(days=700), eye_exam_on=today - timedelta(days=120),
+                            expires_on=today + timedelta(days=700), eye_exam_on=today - timedelta(days=300),
                             recorded_by=users[Role.QA_LEAD]).save()
         InspectorCredential(inspector=theo, scheme="iso_9712", number="VT2-4471", level="2",
                             endorsements="Sector: welded products (w)", issued_on=today - timedelta(days=1800),

@@ -258,7 +258,7 @@ def test_home_page_query_count_is_pinned(role, shop, client_as, django_assert_nu
         client.get(reverse("home"))
 
 
-def test_links_to_lists_not_on_this_branch_keep_the_contracts_address():
+def test_links_to_lists_carry_the_list_filter_parameters():
     assert morning.list_url("inspections:assembly_list", job=3, waiting="final", state="") == \
         "/inspections/assemblies/?job=3&waiting=final"
     assert morning.list_url("inspections:inspection_list") == "/inspections/inspections/"

@@ -23,7 +23,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
-from typing import NamedTuple
 from urllib.parse import urlencode
 
 from django.db.models import Count, OuterRef, Q, Subquery
@@ -37,7 +36,7 @@ from inspections.models import NCR, Assembly, AssemblyState, Job, Weld
 from inspections.models.jobs import CLOSED_STATES
 from inspections.models.ncr import NCRState
 from procedures import eligibility
-from procedures.models import WPS, ContinuityEntry, Welder
+from procedures.models import WPS, Welder
 from procedures.models.wps import WPSState
 
 # Open NCRs are counted in these age bands (days since raised): common practice, no source.
@@ -301,31 +300,14 @@ def _release(user) -> list[Section]:
     ]
 
 
-class _Use(NamedTuple):
-    """One day a welder used a process: all procedures.eligibility reads of a continuity entry."""
-
-    process: str
-    date: date
-
-
-def active_welders_with_uses(user):
-    """The visible active welders with their test records and their days of use, each (process, day) once: a
-    welder's thousands of production entries are a few hundred distinct days, and eligibility reads no more of
-    them (it takes prefetched `qualifications` and `continuity` as they are). Three queries, and no model object
-    per entry: building those cost most of the QA lead's page on two years of records (benchmarks/morning_page.py)."""
-    welders = list(visible(user, Welder.objects.filter(active=True)).prefetch_related("qualifications"))
-    uses = {w.pk: [] for w in welders}
-    for welder_id, process, day in (ContinuityEntry.objects.filter(welder_id__in=list(uses))
-                                    .values_list("welder_id", "process", "date").distinct()
-                                    .order_by("welder_id", "process", "date")):
-        uses[welder_id].append(_Use(process, day))
-    for welder in welders:
-        welder._prefetched_objects_cache["continuity"] = uses[welder.pk]
-    return welders
+def active_welders(user):
+    """The visible active welders with their test records and continuity runs (procedures/continuity.py): three
+    queries, one row per welder, test and run, whatever the length of their production history."""
+    return visible(user, Welder.objects.filter(active=True)).prefetch_related("qualifications", "continuity_runs")
 
 
 def _welders(user, today) -> Section:
-    statuses = eligibility.welder_statuses(active_welders_with_uses(user), on=today)
+    statuses = eligibility.welder_statuses(active_welders(user), on=today)
     lapsed, lapsing = eligibility.State.LAPSED, eligibility.State.LAPSING
     rows = sorted((s for s in statuses.values() if s.state in (lapsed, lapsing)),
                   key=lambda s: (s.lapses_on or date.min, s.welder.stamp))

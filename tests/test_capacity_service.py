@@ -218,15 +218,17 @@ def test_the_ncr_card_shows_the_stored_calculation_when_there_is_one(make):
 
     weld = make.make_weld(size=L("5/16 in"))
     inspection = make.make_inspection(weld, min_size="3/16 in", undersize_length="3 in")
-    ncr = NCR.objects.get(inspection=inspection) if NCR.objects.filter(inspection=inspection).exists() else None
-    if ncr is None:
-        pytest.skip("signing a rejected inspection does not open an NCR in this tree")
+    ncr = NCR.objects.get(inspection=inspection)  # a rejected final visual opens one
     live = capacity_cards(ncr=ncr)[0]
     assert live["kind"] == "as_inspected" and not live.get("stored")
     disposition_use_as_is(ncr, make.make_user("qa_lead"), "M. Ferreira, PE", timezone.localdate())
     ncr.refresh_from_db()
     stored = ncr.capacity_calculation
-    assert stored == capacity_for_inspection(_inspection(inspection.pk))
+    again = capacity_for_inspection(_inspection(inspection.pk))
+    # The same calculation, worked out again a moment later: only the time it was computed may differ (a second
+    # boundary between the two made this test fail now and then).
+    assert stored.pop("computed_at") and again.pop("computed_at")
+    assert stored == again
     card = capacity_cards(ncr=ncr)[0]
     assert card["stored"] is True and card["results"] == stored["results"]
 

@@ -23,7 +23,10 @@ from inspections.models import Photo, Traveler
 from procedures.models import Qualification
 from tests.factory import png_bytes
 
-INTERNALS = ("Traceback", "File \"", "/work/", "site-packages", "OperationalError", "Errno", "errno", "settings.py")
+# The checkout's own folder, wherever it is, stands for "a path of the server" on an error page.
+PROJECT_ROOT = str(Path(__file__).resolve().parent.parent)
+INTERNALS = ("Traceback", "File \"", PROJECT_ROOT, "site-packages", "OperationalError", "Errno", "errno",
+             "settings.py")
 
 
 def _plain(text):

@@ -224,6 +224,37 @@ def test_viewer_sees_its_jobs_progress_only(shop, users, make):
     assert _link(a.note_url) == ("/inspections/assemblies/", {"job": str(shop["a"].pk)})
 
 
+def test_qa_lead_sees_inspector_credentials_and_gauges_lapsing_or_lapsed(make, users):
+    # The notice: 30 days ahead (inspections/credentials.py LAPSE_NOTICE_DAYS, common practice, no source). A
+    # credential's last valid day is its printed expiry (AWS QC1:2016 / ISO 9712:2021, from memory); a gauge's is
+    # its calibration's due date (common practice, no source).
+    today = timezone.localdate()
+    renewed = users["inspector"]  # an old card lapsing tomorrow, and its renewal: the renewal counts
+    make.make_credential(renewed, expires_on=today)
+    make.make_credential(renewed)
+    edge = make.make_user("inspector", credential=False)
+    edge.first_name, edge.last_name = "Edge", "Thirty"
+    edge.save()
+    make.make_credential(edge, expires_on=today + timedelta(days=29))  # lapses on day 30: shown
+    beyond = make.make_user("inspector", credential=False)
+    make.make_credential(beyond, expires_on=today + timedelta(days=30))  # lapses on day 31: not shown
+    bare = make.make_user("inspector", credential=False)
+    bare.first_name, bare.last_name = "Bare", "Nocard"
+    bare.save()
+    make.make_gauge(number="FG-LATE", due_on=today - timedelta(days=1))
+    make.make_gauge(number="FG-SOON", due_on=today + timedelta(days=10))
+    make.make_gauge(number="FG-FAR", due_on=today + timedelta(days=200))
+    section = _section(morning.for_user(users["qa_lead"], today), "registers")
+    texts = [i.text for i in section.items]
+    assert texts == ["Gauge FG-LATE", "Inspector Bare Nocard", "Gauge FG-SOON", "Inspector Edge Thirty"]
+    assert section.total == 4
+    late, none, soon, lapsing = section.items
+    assert late.overdue and "calibration was due on" in late.note
+    assert none.overdue and "no current credential" in none.note
+    assert not soon.overdue and soon.note == f"calibration due on {(today + timedelta(days=10)).isoformat()}"
+    assert lapsing.note.endswith(f"lapses on {(today + timedelta(days=30)).isoformat()}")
+
+
 # --- the page: every role, fixed queries -----------------------------------------------------------------------
 
 @pytest.mark.parametrize("role", ["inspector", "welding_engineer", "qa_lead", "viewer"])
@@ -247,7 +278,7 @@ def test_home_page_takes_a_fixed_number_of_queries(role, shop, make, client_as):
     assert len(large.captured_queries) == len(small.captured_queries), role
 
 
-PINNED = {"inspector": 4, "welding_engineer": 5, "qa_lead": 21, "viewer": 6}
+PINNED = {"inspector": 4, "welding_engineer": 5, "qa_lead": 24, "viewer": 6}
 
 
 @pytest.mark.parametrize("role", list(PINNED))

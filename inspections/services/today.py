@@ -7,7 +7,8 @@ inspector      the inspector's queue (inspections.queue) by job: welds waiting f
 welding eng.   procedure drafts (those the QA lead returned, with the reason); welds whose WPS does not apply
 QA lead        procedures waiting for approval; open NCRs by age with the oldest; assemblies waiting for release,
                ready or blocked (with the first blocker); welders whose qualification lapses within 30 days or has
-               lapsed
+               lapsed; inspectors whose credential lapses within 30 days or has lapsed, and gauges whose
+               calibration falls due within 30 days or has (the registers of inspections.services.trace)
 viewer         its jobs' progress (core.visibility: its customers' jobs only)
 
 Every figure is a database aggregate (Count, Min) over the visible rows, in a fixed number of queries whatever
@@ -25,6 +26,7 @@ from dataclasses import dataclass, field
 from datetime import date, datetime, timedelta
 from urllib.parse import urlencode
 
+from django.contrib.auth import get_user_model
 from django.db.models import Count, OuterRef, Q, Subquery
 from django.urls import reverse
 from django.utils import timezone
@@ -211,7 +213,7 @@ def wps_not_applying(user, today) -> list[Item]:
 # --- QA lead -----------------------------------------------------------------------------------------------------
 
 def qa_lead(user, today) -> list[Section]:
-    return [_approvals(user), _ncrs(user, today), *_release(user), _welders(user, today)]
+    return [_approvals(user), _ncrs(user, today), *_release(user), _welders(user, today), _registers(today)]
 
 
 def _approvals(user) -> Section:
@@ -325,6 +327,54 @@ def _welders(user, today) -> Section:
                    all_url=list_url("procedures:welder_list", continuity="lapsing"),
                    empty="Every active welder is qualified and in continuity.",
                    help="Active welders only (procedures/eligibility.py).")
+
+
+def _registers(today) -> Section:
+    """Lapses ahead in the shop's registers, like welder continuity: each active inspector whose best credential
+    lapses within the notice days (or who has none current), and each gauge in service due within them or past due.
+    Three queries (credentials with their inspectors, the active inspectors, gauges with their calibrations)."""
+    from inspections import credentials as engine
+    from inspections.models.trace import GaugeState
+    from inspections.services import trace
+
+    notice = engine.LAPSE_NOTICE_DAYS
+    best = {}  # inspector id -> the current credential that lapses last, or None
+    for row in trace.credential_rows(today):
+        credential, answer = row["credential"], row["currency"]
+        held = best.get(credential.inspector_id)
+        if answer.current and (held is None or answer.lapses_on > held["currency"].lapses_on):
+            best[credential.inspector_id] = row
+        else:
+            best.setdefault(credential.inspector_id, None)
+    people = get_user_model().objects.filter(is_active=True, role=Role.INSPECTOR).order_by("last_name", "username")
+    items = []
+    for person in people:
+        row = best.get(person.pk)
+        name = person.get_full_name() or person.username
+        if row is None:
+            items.append((date.min, Item(f"Inspector {name}", list_url("inspections:credential_list"), overdue=True,
+                                         word="", note="no current credential: cannot sign a final visual")))
+        elif row["days_left"] <= notice:
+            lapses = row["currency"].lapses_on
+            items.append((lapses, Item(f"Inspector {name}", row["credential"].get_absolute_url(),
+                                       note=f"{row['credential'].short} lapses on {lapses.isoformat()}")))
+    for row in trace.gauge_rows(today):
+        gauge, answer = row["gauge"], row["standing"]
+        if gauge.state != GaugeState.IN_SERVICE:
+            continue
+        if not answer.ok:
+            items.append((date.min, Item(f"Gauge {gauge.number}", gauge.get_absolute_url(), overdue=True, word="",
+                                         note=f"cannot be used: {answer.reason}")))
+        elif row["soon"]:
+            items.append((answer.due_on, Item(f"Gauge {gauge.number}", gauge.get_absolute_url(),
+                                              note=f"calibration due on {answer.due_on.isoformat()}")))
+    items = [item for _day, item in sorted(items, key=lambda t: (t[0], t[1].text))]
+    return Section("registers", f"Inspector credentials and gauges lapsing within {notice} days or lapsed",
+                   items[:SHOWN], total=len(items), all_url=list_url("inspections:credential_list"),
+                   empty="Every inspector holds a current credential and every gauge in service is in calibration.",
+                   help="Credentials: the expiry printed on the card and the eye examination "
+                        "(inspections/credentials.py); gauges: the due date of the last calibration "
+                        "(inspections/calibration.py). The gauge register lists every gauge.")
 
 
 # --- viewer ------------------------------------------------------------------------------------------------------

@@ -1,8 +1,8 @@
 """A job's whole record as JSON tables plus its stored files, in one zip: the layout of docs/export-format.md.
 
 Everything the job's records hold or name: the job and its client criteria set, assemblies, welds, inspections,
-photos, NCRs, travelers and packets; the WPSs and PQRs and the welders (with their tests and continuity) the welds
-and repairs name; the history rows and seals of all of these; and the people named (no passwords). Values are
+photos, NCRs, repairs, travelers and packets; the WPSs and PQRs and the welders (with their tests and continuity) the
+welds and repairs name; the filler lots, inspector credentials and gauges (with their calibrations) they name; the history rows and seals of all of these; and the people named (no passwords). Values are
 written as the record chain seals them (core.seals.encode): exact Decimal text in the stored base unit, times in
 UTC to the microsecond, relations as ids, files as {"name", "sha256"}. Rows are streamed table by table, so a large
 job does not sit in memory; each file is copied once and its SHA-256 checked against the one recorded.
@@ -22,7 +22,22 @@ from django.utils import timezone
 from core import seals
 from core.models import Event, Seal, User
 from core.version import legwork_version
-from inspections.models import NCR, Assembly, ClientCriteriaSet, Inspection, Job, JobPacket, Photo, Traveler, Weld
+from inspections.models import (
+    NCR,
+    Assembly,
+    ClientCriteriaSet,
+    FillerLot,
+    Gauge,
+    GaugeCalibration,
+    Inspection,
+    InspectorCredential,
+    Job,
+    JobPacket,
+    Photo,
+    Traveler,
+    Weld,
+    WeldRepair,
+)
 from procedures.models import PQR, WPS, ContinuityEntry, Qualification, Welder
 
 FORMAT = "legwork-job-export 1"
@@ -45,14 +60,29 @@ def record_sets(job: Job) -> list[tuple[str, models.QuerySet]]:
                | set(Qualification.objects.filter(welder_id__in=welder_ids).exclude(wps=None)
                      .values_list("wps_id", flat=True)))
     pqr_ids = set(WPS.pqrs.through.objects.filter(wps_id__in=wps_ids).values_list("pqr_id", flat=True))
+    inspections = Inspection.objects.filter(weld__assembly__job=job)
+    repairs = WeldRepair.objects.filter(weld__assembly__job=job)
+    welder_ids |= set(WeldRepair.welders.through.objects.filter(weldrepair__in=repairs)
+                      .values_list("welder_id", flat=True))
+    wps_ids |= set(repairs.values_list("wps_id", flat=True))
+    lot_ids = (set(welds.exclude(filler_lot=None).values_list("filler_lot_id", flat=True))
+               | set(repairs.exclude(filler_lot=None).values_list("filler_lot_id", flat=True)))
+    calibration_ids = set(inspections.exclude(gauge_calibration=None).values_list("gauge_calibration_id", flat=True))
+    gauge_ids = set(GaugeCalibration.objects.filter(pk__in=calibration_ids).values_list("gauge_id", flat=True))
     return [
         ("inspections.job", Job.objects.filter(pk=job.pk)),
         ("inspections.clientcriteriaset", ClientCriteriaSet.objects.filter(pk=job.client_criteria_id)),
         ("inspections.assembly", Assembly.objects.filter(job=job)),
         ("inspections.weld", welds),
-        ("inspections.inspection", Inspection.objects.filter(weld__assembly__job=job)),
+        ("inspections.inspection", inspections),
         ("inspections.photo", Photo.objects.filter(inspection__weld__assembly__job=job)),
         ("inspections.ncr", ncrs),
+        ("inspections.weldrepair", repairs),
+        ("inspections.fillerlot", FillerLot.objects.filter(pk__in=lot_ids)),
+        ("inspections.inspectorcredential", InspectorCredential.objects.filter(
+            pk__in=inspections.exclude(credential=None).values("credential"))),
+        ("inspections.gauge", Gauge.objects.filter(pk__in=gauge_ids)),
+        ("inspections.gaugecalibration", GaugeCalibration.objects.filter(gauge_id__in=gauge_ids)),
         ("inspections.traveler", Traveler.objects.filter(assembly__job=job)),
         ("inspections.jobpacket", JobPacket.objects.filter(job=job)),
         ("procedures.wps", WPS.objects.filter(pk__in=wps_ids)),

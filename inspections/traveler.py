@@ -228,6 +228,7 @@ def gather(assembly_pk: int) -> dict:
                                                "name": one.welder.name}
             repairs.append({"ncr": repair.ncr.number, "date": _day(repair.welded_on),
                             "wps": f"{repair.wps.number} rev {repair.wps.revision}", "wps_ok": item.wps.ok,
+                            "lot": repair.filler_lot.lot_number if repair.filler_lot_id else "",
                             "welders": [{"stamp": c.welder.stamp, "allowed": bool(c.allowed)}
                                         for c in item.welders.checks]})
         result = "Not inspected"

@@ -111,8 +111,11 @@ def test_the_job_form_records_the_fit_up_hold_point(client_as):
 
     client_as("qa_lead").post(reverse("inspections:job_create"), {
         "number": "J-7200", "name": "Mill crane runway", "customer": "Ostrander", "unit_system": "US",
-        "criteria": "builtin:aws-d1.1-2020-cyclic", "fit_up_hold_point": "on"})
-    assert Job.objects.get(number="J-7200").fit_up_hold_point is True
+        "criteria": "builtin:aws-d1.1-2020-cyclic", "fit_up_hold_point": "on", "gauge_required": "on"})
+    job = Job.objects.get(number="J-7200")
+    assert (job.fit_up_hold_point, job.gauge_required, job.filler_lot_required) == (True, True, False)
+    page = client_as("qa_lead").get(job.get_absolute_url()).text
+    assert "every final visual names its gauge" in page and "filler lots recorded where known" in page
 
 
 def test_the_wps_form_records_progression_for_vertical_and_backing_for_groove_welds_only(client_as):

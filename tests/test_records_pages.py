@@ -174,6 +174,30 @@ def test_a_job_export_holds_every_record_and_file_exactly(shop, client_as):
     assert recipe["check"](seal, by_table) == {"min_size": (row["min_size"], "1.0000000")}
 
 
+def test_a_job_export_holds_the_lots_credentials_gauges_and_repairs_its_welds_name(make, users, client_as):
+    from inspections.services import trace
+    from inspections.services.ncr import disposition_repair
+    from inspections.services.repairs import record_repair
+
+    weld = make.make_sound_weld()
+    lot, repair_lot, gauge = make.make_filler_lot(), make.make_filler_lot(), make.make_gauge()
+    trace.record_weld_filler(weld, lot, users["inspector"])
+    ncr = make.make_inspection(weld, accepted=False, gauge=gauge).ncrs.get()
+    disposition_repair(ncr, users["qa_lead"], weld.wps, weld.welders.get(), "Grind out and re-weld")
+    record_repair(ncr.__class__.objects.get(pk=ncr.pk), users["inspector"], wps=weld.wps,
+                  welders=[weld.welders.get()], welded_on=weld.welded_on, filler_lot=repair_lot)
+    make.make_filler_lot()  # a lot no weld of the job names: not exported
+    response = client_as("qa_lead").get(reverse("inspections:job_export", args=[weld.assembly.job_id]))
+    archive, _root, description = _open_export(b"".join(response.streaming_content))
+    rows = {t["name"]: json.loads(archive.read(t["path"])) for t in description["tables"]}
+    assert {r["id"] for r in rows["inspections.fillerlot"]} == {lot.pk, repair_lot.pk}
+    assert [r["filler_lot"] for r in rows["inspections.weldrepair"]] == [repair_lot.pk]
+    inspection = weld.inspections.get()
+    assert [r["id"] for r in rows["inspections.inspectorcredential"]] == [inspection.credential_id]
+    assert [r["id"] for r in rows["inspections.gauge"]] == [gauge.pk]
+    assert [r["id"] for r in rows["inspections.gaugecalibration"]] == [inspection.gauge_calibration_id]
+
+
 def test_export_job_command_writes_the_zip_once(shop, tmp_path, capsys):
     out = tmp_path / "job.zip"
     call_command("export_job", shop["job"].number, "--output", str(out))

@@ -134,6 +134,40 @@ def test_the_ncr_page_shows_a_refusal_beside_the_field(client_as, make, ncr):
     assert not WeldRepair.objects.exists()
 
 
+def test_the_repair_names_its_filler_lot_of_the_wps_classification(client_as, make, users, ncr):
+    # The repair WPS names the filler (AWS D1.1/D1.1M:2020 clause 5 and Table 6.5; from memory): a lot of another
+    # classification is refused beside the field; the factory's WPS specifies E71T-1C.
+    client = client_as("inspector")
+    post = {"wps": ncr.repair_wps_id, "welders": [ncr.repair_welder_id], "welded_on": TODAY.isoformat()}
+    wrong = make.make_filler_lot("E71T-1M")
+    response = client.post(reverse("inspections:ncr_repair", args=[ncr.pk]), {**post, "filler_lot": wrong.pk})
+    assert response.status_code == 400
+    assert "specifies E71T-1C" in " ".join(response.context["repair_form"].errors["filler_lot"])
+    for nasty in ("x", "-1", "99999999"):
+        assert client.post(reverse("inspections:ncr_repair", args=[ncr.pk]),
+                           {**post, "filler_lot": nasty}).status_code == 400
+    assert not WeldRepair.objects.exists()
+    right = make.make_filler_lot("E71T-1C")
+    response = client.post(reverse("inspections:ncr_repair", args=[ncr.pk]), {**post, "filler_lot": right.pk})
+    assert response.status_code == 302
+    repair = WeldRepair.objects.get()
+    assert repair.filler_lot == right and f"Filler {right}." in history_of(repair).get().reason
+    assert right.lot_number in client.get(ncr.get_absolute_url()).text
+    from inspections.services import trace  # a recall of the lot finds the repaired weld
+    assert [row["weld"] for row in trace.recall("lot", right)] == [ncr.weld.mark]
+
+
+def test_a_job_that_requires_lots_requires_the_repairs_lot(users, ncr):
+    job = ncr.weld.assembly.job
+    job.filler_lot_required = True
+    job.save()
+    with pytest.raises(Refused) as refused:
+        record_repair(NCR.objects.get(pk=ncr.pk), users["inspector"], wps=ncr.repair_wps,
+                      welders=[ncr.repair_welder], welded_on=TODAY)
+    assert "requires the filler lot" in str(refused.value.messages if hasattr(refused.value, "messages")
+                                            else refused.value)
+
+
 def test_a_viewer_sees_no_repair_form(client_as, ncr):
     assert "Record the repair" not in client_as("viewer").get(ncr.get_absolute_url()).text
 

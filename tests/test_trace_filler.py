@@ -36,6 +36,18 @@ def test_a_weld_without_a_lot_is_not_blocked_yet(make):
     assert release_blockers(weld.assembly) == []
 
 
+def test_a_job_that_requires_lots_blocks_a_weld_without_one(make, users):
+    # The job's switch (Job.filler_lot_required): a contract's traceability clause, common practice, no source.
+    job = make.make_job(filler_lot_required=True)
+    weld = make.make_sound_weld(make.make_assembly(job))
+    make.make_inspection(weld)
+    blocker, = release_blockers(weld.assembly)
+    assert "no filler lot is recorded" in blocker and blocker.url == reverse("inspections:weld_filler", args=[weld.pk])
+    job.filler_lot_required = False
+    job.save()
+    assert release_blockers(Assembly.objects.get(pk=weld.assembly_id)) == []
+
+
 def test_the_lot_freezes_with_the_weld_at_its_final_visual(make, users, client_as):
     weld = make.make_sound_weld()
     make.make_inspection(weld)

@@ -56,6 +56,23 @@ def test_the_form_offers_only_gauges_in_calibration_and_says_why_beside_the_fiel
     assert weld.inspections.get().gauge_calibration.gauge == good
 
 
+def test_a_job_that_requires_a_gauge_refuses_a_final_visual_without_one(make, client_as):
+    # The job's switch (Job.gauge_required): a contract's traceability clause, common practice, no source.
+    job = make.make_job(gauge_required=True)
+    weld = make.make_sound_weld(make.make_assembly(job))
+    with pytest.raises(Refused, match="requires the gauge") as refused:
+        make.make_inspection(weld)
+    assert refused.value.code == "gauge"
+    make.make_inspection(weld, stage="in_process")  # only the final visual asks
+    client = client_as("inspector")
+    response = client.post(reverse("inspections:inspect_weld", args=[weld.pk]), {"stage": "final", "min_size": "1/4"})
+    assert response.status_code == 400
+    assert "requires the gauge" in str(response.context["form"].errors["gauge"])
+    assert not weld.inspections.filter(stage="final").exists()
+    signed = sign(client, weld, {"stage": "final", "min_size": "1/4", "gauge": str(make.make_gauge().pk)})
+    assert signed.status_code == 302
+
+
 def test_found_out_of_tolerance_lists_what_was_measured_since_the_last_good_calibration(make, users):
     gauge = make.make_gauge(calibrated_on=today() - timedelta(days=10))
     cleared = make.make_inspection(gauge=gauge)  # under the first calibration, which the second one confirms

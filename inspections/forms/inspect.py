@@ -213,6 +213,9 @@ class InspectionForm(forms.ModelForm):
             return data
         if data.get("stage") == InspectionStage.FIT_UP:
             return self._clean_fit_up(data)
+        if (data.get("stage") == InspectionStage.FINAL and data.get("gauge") is None
+                and weld.assembly.job.gauge_required):
+            self.add_error("gauge", trace.GAUGE_REQUIRED)
         if data.get("min_size") is None and data.get("throat") is None:
             if self.throat_first:
                 self.add_error("throat", "Enter the smallest throat a measured (or the smallest leg z below).")

@@ -7,7 +7,7 @@ from core.fields import LengthFormField, set_unit_system
 from core.forms import VersionedModelForm, read_decimal_comma
 from core.vocabulary import WELD_PROCESS_CHOICES
 from inspections import wording
-from inspections.models import Assembly, ClientCriteriaSet, Customer, Job, Weld
+from inspections.models import Assembly, ClientCriteriaSet, Customer, FillerLot, Job, Weld
 from inspections.services import chain
 from inspections.services.flags import cyclic_fillet_flag
 from inspections.strength import leg_for_throat
@@ -40,10 +40,11 @@ class JobForm(VersionedModelForm):
 
     class Meta:
         model = Job
-        fields = ["number", "name", "unit_system", "fit_up_hold_point"]
+        fields = ["number", "name", "unit_system", "fit_up_hold_point", "filler_lot_required", "gauge_required"]
         labels = {"number": "Job number", "name": "Job name", "unit_system": "Units"}
 
-    field_order = ["number", "name", "customer", "unit_system", "criteria", "fit_up_hold_point"]
+    field_order = ["number", "name", "customer", "unit_system", "criteria", "fit_up_hold_point",
+                   "filler_lot_required", "gauge_required"]
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
@@ -355,6 +356,9 @@ class RepairRecordForm(forms.Form):
     welders = forms.ModelMultipleChoiceField(label="Welded by", queryset=Welder.objects.none(),
                                              widget=forms.CheckboxSelectMultiple)
     welded_on = forms.DateField(label="Date repaired", widget=forms.DateInput(attrs={"type": "date"}))
+    filler_lot = forms.ModelChoiceField(label="Filler lot used", queryset=FillerLot.objects.none(), required=False,
+                                        help_text="As printed on the spool or box; its classification must be the "
+                                                  "repair WPS's.")
     notes = forms.CharField(label="What was done", widget=forms.Textarea(attrs={"rows": 2}), max_length=2000,
                             required=False)
 
@@ -365,6 +369,7 @@ class RepairRecordForm(forms.Form):
                                 Welder.objects.filter(active=True), keep)
         self.fields["wps"].queryset = wps.order_by("number", "-revision")
         self.fields["welders"].queryset = welders.order_by("stamp")
+        self.fields["filler_lot"].queryset = FillerLot.objects.order_by("classification", "-received_on", "-pk")
         if ncr is not None and not self.is_bound:
             self.initial.update(wps=ncr.repair_wps_id, welders=[ncr.repair_welder_id] if ncr.repair_welder_id else [],
                                 welded_on=timezone.localdate())

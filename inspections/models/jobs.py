@@ -51,6 +51,15 @@ class Job(Guarded):
         "fit-up hold point required", default=False,
         help_text="Every weld needs an accepted fit-up inspection before the assembly is released",
     )
+    # Traceability the contract may ask for (issue 18): off by default, a shop starts its registers part-way.
+    filler_lot_required = models.BooleanField(
+        "filler lot required", default=False,
+        help_text="Every weld names the filler lot it was made with before the assembly is released",
+    )
+    gauge_required = models.BooleanField(
+        "gauge required at final visual", default=False,
+        help_text="Every final visual names the gauge it was measured with (a gauge in calibration that day)",
+    )
     created_at = models.DateTimeField(default=timezone.now, editable=False)
     version = models.PositiveIntegerField(default=1, editable=False)
 

@@ -21,6 +21,8 @@ class WeldRepair(models.Model):
                             verbose_name="WPS welded to")
     welders = models.ManyToManyField("procedures.Welder", related_name="repairs")
     welded_on = models.DateField("date repaired")
+    filler_lot = models.ForeignKey("inspections.FillerLot", null=True, blank=True, on_delete=models.PROTECT,
+                                   related_name="repairs", verbose_name="filler lot used")
     notes = models.TextField(blank=True)
     recorded_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
     recorded_at = models.DateTimeField(default=timezone.now)

@@ -201,7 +201,7 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
     statuses = statuses if statuses is not None else weld_statuses(ids)
     repairs = {}
     if ids:
-        for repair in (WeldRepair.objects.filter(weld_id__in=ids).select_related("wps", "ncr")
+        for repair in (WeldRepair.objects.filter(weld_id__in=ids).select_related("wps", "ncr", "filler_lot")
                        .prefetch_related("welders").order_by("welded_on", "pk")):
             repairs.setdefault(repair.weld_id, []).append(repair)
     everything = [w for _job_, welds in items for w in welds]
@@ -224,7 +224,8 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
             day = weld.welded_on
             chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
                               statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point,
-                              filler=filler_mismatch(lots.get(weld.filler_lot_id), weld.wps))
+                              filler=filler_mismatch(lots.get(weld.filler_lot_id), weld.wps)
+                              or filler_missing(weld, job))
             for repair in repairs.get(weld.pk, []):
                 label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
                 chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
@@ -260,6 +261,14 @@ def filler_mismatch(lot: FillerLot | None, wps: WPS | None) -> str:
                 "is a different filler metal: the WPS names it, AWS D1.1/D1.1M:2020 clause 5 and Table 6.5, "
                 "ISO 15609-1:2019; from memory)")
     return ""
+
+
+def filler_missing(weld, job) -> str:
+    """Why the weld's missing filler lot blocks (the job asks every weld's lot: a contract's traceability clause,
+    common practice, no source); "" when a lot is named or the job does not ask."""
+    if weld.filler_lot_id or not job.filler_lot_required:
+        return ""
+    return "no filler lot is recorded (this job requires the filler lot of every weld)"
 
 
 def _fit_ups(ids) -> dict[int, Inspection]:

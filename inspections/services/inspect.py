@@ -324,7 +324,8 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
     for weld in welds:
         _check_signable(weld, stage)
     credential = trace.signing_credential(user, stage, timezone.localdate())
-    calibrated = trace.signing_calibration(gauge, timezone.localdate())  # the gauge (registers), if one was used
+    calibrated = trace.signing_calibration(  # the gauge (registers), if one was used or the job asks for one
+        gauge, timezone.localdate(), required=stage == InspectionStage.FINAL and first.assembly.job.gauge_required)
     others = [w for w in welds[1:] if batch_key(w) != batch_key(first)]
     if others:
         raise Refused(f"Weld {others[0].mark} is not identical to {first.mark} (size, length, parts or WPS differ): "

@@ -30,9 +30,14 @@ def may_record(user) -> bool:
     return any(can(user, action) for action in ROLE_ACTIONS)
 
 
-def repair_problems(ncr, wps, welders, welded_on) -> dict[str, list[str]]:
+def repair_problems(ncr, wps, welders, welded_on, filler_lot=None) -> dict[str, list[str]]:
     """Why this repair cannot be recorded as given, by form field; empty when it can."""
     problems = {}
+    if filler_lot is None and ncr.weld.assembly.job.filler_lot_required:
+        problems["filler_lot"] = ["This job requires the filler lot of every weld: name the lot the repair was "
+                                  "welded with."]
+    elif wps is not None and (mismatch := chain.filler_mismatch(filler_lot, wps)):
+        problems["filler_lot"] = [mismatch[0].upper() + mismatch[1:] + "."]
     if not isinstance(welded_on, date):
         problems["welded_on"] = ["Give the date the repair was welded."]
     elif welded_on > timezone.localdate():
@@ -60,7 +65,7 @@ def repair_problems(ncr, wps, welders, welded_on) -> dict[str, list[str]]:
     return problems
 
 
-def record_repair(ncr, user, *, wps, welders, welded_on, notes=""):
+def record_repair(ncr, user, *, wps, welders, welded_on, notes="", filler_lot=None):
     """Record the NCR's repair as welded; refused (Refused with messages by field) while anything does not hold."""
     if not may_record(user):
         raise PermissionDenied(f"Your role may not: {ACTIONS['weld.record'].lower()}.")
@@ -76,14 +81,16 @@ def record_repair(ncr, user, *, wps, welders, welded_on, notes=""):
                           "is recorded on an NCR dispositioned for repair.", code="state")
         if WeldRepair.objects.filter(ncr=locked).exists():
             raise Refused(f"{locked} already has its repair recorded.", code="recorded")
-        problems = repair_problems(locked, wps, welders, welded_on)
+        problems = repair_problems(locked, wps, welders, welded_on, filler_lot)
         if problems:
             raise Refused(problems, code="repair")
         repair = WeldRepair.objects.create(weld=locked.weld, ncr=locked, wps=wps, welded_on=welded_on, notes=notes,
-                                           recorded_by=user)
+                                           filler_lot=filler_lot, recorded_by=user)
         repair.welders.set(welders)
         stamps = ", ".join(sorted(w.stamp for w in welders))
         said = f"Repair welded on {welded_on.isoformat()} by {stamps} to {wps}."
+        if filler_lot is not None:
+            said += f" Filler {filler_lot}."
         differs = []
         if locked.repair_wps_id and locked.repair_wps_id != wps.pk:
             differs.append(f"the disposition named {locked.repair_wps}")

@@ -7,6 +7,7 @@ signed inspection names the credential it was signed under, printed beside the i
 """
 
 from django.db import transaction
+from django.db.models import Q
 from django.urls import reverse
 from django.utils import timezone
 
@@ -27,6 +28,7 @@ from inspections.models import (
     InspectionStage,
     InspectorCredential,
     Weld,
+    WeldRepair,
 )
 
 REGISTERS = "register.manage"
@@ -163,6 +165,10 @@ def usable_gauges(on) -> list[Gauge]:
     return found
 
 
+GAUGE_REQUIRED = ("This job requires the gauge used at the final visual (a job setting): choose it from the "
+                  "register.")
+
+
 def gauge_refusal(gauge: Gauge, on) -> str | None:
     """Why this gauge cannot be used on the day (None: it can). One query."""
     answer = gauge.standing(on)
@@ -172,9 +178,12 @@ def gauge_refusal(gauge: Gauge, on) -> str | None:
             f"({calibration.SOURCE}).")
 
 
-def signing_calibration(gauge: Gauge | None, on) -> GaugeCalibration | None:
-    """The calibration a new inspection's gauge is used under; Refused when the gauge is out of calibration."""
+def signing_calibration(gauge: Gauge | None, on, required: bool = False) -> GaugeCalibration | None:
+    """The calibration a new inspection's gauge is used under; Refused when the gauge is out of calibration, or
+    missing where the job requires one at this stage (Job.gauge_required)."""
     if gauge is None:
+        if required:
+            raise Refused(GAUGE_REQUIRED, code="gauge")
         return None
     rows = list(gauge.calibrations.all())
     answer = gauge.standing(on, rows)
@@ -226,8 +235,10 @@ def recall(kind: str, subject, start=None, end=None) -> list[dict]:
     """Every weld the filler lot, the gauge or the inspector touched between the dates (inclusive; welded on for a
     lot, signed on for a gauge or an inspector), with its assembly's state and job. One query whatever the number,
     read as plain values (benchmarks/recall.py: 10,000 of 100,000 welds)."""
-    if kind == "lot":
-        rows = _between(Weld.objects.filter(filler_lot=subject), "welded_on", start, end)
+    if kind == "lot":  # the welds made with it, and the welds whose repair was (by the repair's date)
+        repaired = _between(WeldRepair.objects.filter(filler_lot=subject), "welded_on", start, end).values("weld")
+        rows = Weld.objects.filter(Q(pk__in=_between(Weld.objects.filter(filler_lot=subject), "welded_on", start,
+                                                     end).values("pk")) | Q(pk__in=repaired))
         prefix = ""
         rows = rows.order_by("welded_on", "pk")
     elif kind in ("gauge", "inspector"):

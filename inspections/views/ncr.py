@@ -47,7 +47,7 @@ def _description(ncr, findings) -> list[str]:
 
 def _ncr_page(request, ncr, forms=None, status=200, repair_form=None):
     forms = forms or {}
-    repair = WeldRepair.objects.filter(ncr=ncr).select_related("wps", "recorded_by").prefetch_related(
+    repair = WeldRepair.objects.filter(ncr=ncr).select_related("wps", "recorded_by", "filler_lot").prefetch_related(
         "welders").first()
     awaiting_repair = (ncr.state == NCRState.DISPOSITIONED and ncr.disposition == Disposition.REPAIR
                        and repair is None)
@@ -97,7 +97,8 @@ def ncr_repair(request, pk):
         data = form.cleaned_data
         try:
             repair_steps.record_repair(ncr, request.user, wps=data["wps"], welders=list(data["welders"]),
-                                       welded_on=data["welded_on"], notes=data["notes"])
+                                       welded_on=data["welded_on"], notes=data["notes"],
+                                       filler_lot=data.get("filler_lot"))
         except Refused as exc:
             add_step_errors(form, exc)
         else:

@@ -2,7 +2,8 @@
 
 Everything the job's records hold or name: the job and its client criteria set, assemblies, welds, inspections,
 photos, NCRs, repairs, travelers and packets; the WPSs and PQRs and the welders (with their tests and continuity) the
-welds and repairs name; the filler lots, inspector credentials and gauges (with their calibrations) they name; the history rows and seals of all of these; and the people named (no passwords). Values are
+welds and repairs name; the filler lots, inspector credentials and gauges (with their calibrations) they name; the
+history rows and seals of all of these; and the people named (no passwords). Values are
 written as the record chain seals them (core.seals.encode): exact Decimal text in the stored base unit, times in
 UTC to the microsecond, relations as ids, files as {"name", "sha256"}. Rows are streamed table by table, so a large
 job does not sit in memory; each file is copied once and its SHA-256 checked against the one recorded.

@@ -32,13 +32,47 @@ from core.roles import require
 from core.storage import files_or_nothing
 from core.transitions import transition
 from inspections import traveler as travelers
-from inspections.models import Assembly, JobPacket, PacketState
+from inspections.models import Assembly, AssemblyState, JobPacket, PacketState
 from inspections.services.numbering import next_in_job
 from procedures import printing
 from procedures.models import WPS
 
 log = logging.getLogger(__name__)
 COVER_TEMPLATE = "pdf/packet_cover.html"
+MAX_ASSEMBLIES = 2000  # one packet; a bigger job is packed in parts (by state or piece marks)
+ALL, BY_STATE, BY_MARKS = "all", "state", "marks"
+
+
+def choose_assemblies(job, rule: str, state: str = "", marks: str = "") -> list[int]:
+    """The ids of the job's assemblies a rule picks (every one, those in a state, or the piece marks typed: commas,
+    spaces or lines between them), in one query; Refused, with the field to blame, when it picks none or an unknown
+    mark. How a big job's packet is chosen without a checkbox per assembly."""
+    rows = Assembly.objects.filter(job=job)
+    if rule == BY_STATE:
+        if state not in AssemblyState.values:
+            raise Refused({"state": ["Choose a state."]}, code="choice")
+        rows = rows.filter(state=state)
+    elif rule == BY_MARKS:
+        wanted = list(dict.fromkeys(m for m in marks.replace(",", " ").split() if m))
+        if not wanted:
+            raise Refused({"marks": ["Type the piece marks, separated by commas, spaces or lines."]}, code="choice")
+        if len(wanted) > MAX_ASSEMBLIES:
+            raise Refused({"marks": [f"At most {MAX_ASSEMBLIES:,} piece marks in one packet."]}, code="choice")
+        found = dict(rows.filter(piece_mark__in=wanted).values_list("piece_mark", "pk"))
+        unknown = [m for m in wanted if m not in found]
+        if unknown:
+            more = f" and {len(unknown) - 5} more" if len(unknown) > 5 else ""
+            raise Refused({"marks": [f"Not on job {job.number}: {', '.join(unknown[:5])}{more}."]}, code="choice")
+        return [found[m] for m in wanted]
+    elif rule != ALL:
+        raise Refused({"rule": ["Choose which assemblies go in the packet."]}, code="choice")
+    ids = list(rows.order_by("piece_mark").values_list("pk", flat=True)[:MAX_ASSEMBLIES + 1])
+    if not ids:
+        raise Refused({"rule": ["No assembly of the job is in that state."]}, code="choice")
+    if len(ids) > MAX_ASSEMBLIES:
+        raise Refused({"rule": [f"That is more than {MAX_ASSEMBLIES:,} assemblies, the most one packet holds: "
+                                "pack the job in parts, by state or by piece marks."]}, code="choice")
+    return ids
 
 
 

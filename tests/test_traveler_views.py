@@ -108,6 +108,63 @@ def test_bad_packet_choices_are_refused_on_the_page_and_change_nothing(data, mak
     assert "alert-danger" in response.content.decode()
 
 
+# --- a big job's packet: chosen by rule ----------------------------------------------------------------------------
+
+@pytest.fixture
+def big_job(make, monkeypatch):
+    """A job above the checkbox limit (lowered to 2 here): B1 and B2 in fabrication, C3 awaiting inspection."""
+    from inspections.views import travelers
+
+    monkeypatch.setattr(travelers, "CHECKBOXES", 2)
+    job = make.make_job()
+    marks = {mark: make.make_assembly(job, piece_mark=mark, **({"state": "awaiting_inspection"} if mark == "C3"
+                                                                 else {})) for mark in ("B2", "B1", "C3")}
+    return job, marks
+
+
+def test_a_big_job_is_packed_by_rule_and_its_page_weighs_the_same(big_job, make, client_as,
+                                                                    django_assert_num_queries):
+    job, marks = big_job
+    client = client_as("qa_lead")
+    page = client.get(reverse("inspections:packet_list", args=[job.pk])).content.decode()
+    assert 'name="assemblies"' not in page and "3 assemblies" in page and "Awaiting inspection (1)" in page
+    with django_assert_num_queries(5) as few:  # session, user, job, counts by state, packets
+        client.get(reverse("inspections:packet_list", args=[job.pk]))
+    for i in range(20):
+        make.make_assembly(job, piece_mark=f"D{i}")
+    with django_assert_num_queries(len(few.captured_queries)):
+        client.get(reverse("inspections:packet_list", args=[job.pk]))
+    response = client.post(reverse("inspections:packet_start", args=[job.pk]),
+                           {"rule": "marks", "marks": "C3,\nB1  B2"})
+    packet = JobPacket.objects.get()
+    assert response.status_code == 302 and packet.assembly_pks == [marks[m].pk for m in ("B1", "B2", "C3")]
+    client.post(reverse("inspections:packet_start", args=[job.pk]), {"rule": "state", "state": "awaiting_inspection"})
+    assert JobPacket.objects.latest("pk").assembly_pks == [marks["C3"].pk]
+
+
+@pytest.mark.parametrize("data, field, words", [
+    ({"rule": "marks", "marks": "B1 Z9 Q1"}, "marks", "Not on job"),
+    ({"rule": "marks", "marks": " , "}, "marks", "Type the piece marks"),
+    ({"rule": "state", "state": ""}, "state", "Choose a state"),
+    ({"rule": "state", "state": "scrapped"}, "rule", "No assembly"),
+    ({"rule": "every"}, "rule", "Select a valid choice"),
+    ({"rule": "marks", "marks": "B1 " * 20_000}, "marks", "at most 40000"),
+])
+def test_a_bad_rule_is_refused_beside_its_field_and_changes_nothing(big_job, client_as, data, field, words):
+    job, _marks = big_job
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]), data)
+    assert response.status_code == 400 and not JobPacket.objects.exists()
+    assert words.lower() in " ".join(response.context["rule_form"].errors[field]).lower()
+
+
+def test_a_packet_over_the_limit_is_refused_with_the_way_out(big_job, client_as, monkeypatch):
+    job, _marks = big_job
+    monkeypatch.setattr(packets, "MAX_ASSEMBLIES", 2)
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]), {"rule": "all"})
+    assert response.status_code == 400 and "pack the job in parts" in response.content.decode()
+    assert not JobPacket.objects.exists()
+
+
 @pytest.mark.parametrize("role", ["welding_engineer", "inspector", "viewer"])
 def test_other_roles_may_not_start_packets(role, make, client_as):
     assembly = make.make_assembly()

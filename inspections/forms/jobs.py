@@ -7,7 +7,7 @@ from core.fields import LengthFormField, set_unit_system
 from core.forms import VersionedModelForm, read_decimal_comma
 from core.vocabulary import WELD_PROCESS_CHOICES
 from inspections import wording
-from inspections.models import Assembly, ClientCriteriaSet, Customer, FillerLot, Job, Weld
+from inspections.models import Assembly, AssemblyState, ClientCriteriaSet, Customer, FillerLot, Job, Weld
 from inspections.services import chain
 from inspections.services.flags import cyclic_fillet_flag
 from inspections.strength import leg_for_throat
@@ -466,3 +466,23 @@ class CriteriaDeriveForm(forms.Form):
 
     def fields_of(self, limit_name):
         return dict(self.limit_fields).get(limit_name, [])
+
+
+class PacketRuleForm(forms.Form):
+    """Which assemblies of a big job go in a packet, by rule (inspections.packets.choose_assemblies): a job with
+    hundreds of assemblies is packed by state or piece marks, not by a checkbox per assembly."""
+
+    rule = forms.ChoiceField(label="Assemblies", widget=forms.RadioSelect, initial="all", choices=[
+        ("all", "Every assembly of the job"), ("state", "The assemblies in one state"),
+        ("marks", "The piece marks typed below")])
+    state = forms.ChoiceField(label="State", required=False,
+                              choices=[("", "—")] + list(AssemblyState.choices))
+    marks = forms.CharField(label="Piece marks", required=False, max_length=40_000,
+                            widget=forms.Textarea(attrs={"rows": 3, "placeholder": "e.g. B101, B102, C7"}),
+                            help_text="Separated by commas, spaces or lines.")
+
+    def __init__(self, *args, counts=None, **kwargs):
+        super().__init__(*args, **kwargs)
+        if counts:  # the state choices say how many assemblies each holds
+            self.fields["state"].choices = [("", "—")] + [
+                (value, f"{label} ({counts.get(value, 0):,})") for value, label in AssemblyState.choices]

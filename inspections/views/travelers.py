@@ -6,7 +6,7 @@ sends the stored bytes with their SHA-256 in the X-Content-SHA256 header.
 
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
-from django.db.models import OuterRef, Subquery
+from django.db.models import Count, OuterRef, Subquery
 from django.http import FileResponse, Http404, HttpResponse
 from django.shortcuts import redirect, render
 from django.views.decorators.http import require_POST, require_safe
@@ -18,6 +18,7 @@ from core.roles import can, role_required
 from core.visibility import get_visible_or_404
 from inspections import packets
 from inspections import traveler as travelers
+from inspections.forms.jobs import PacketRuleForm, add_step_errors
 from inspections.models import Assembly, Job, JobPacket, PacketState, Traveler
 
 
@@ -85,15 +86,25 @@ def traveler_sha256(request, pk):
 
 # --- packets --------------------------------------------------------------------------------------------------
 
-def _packet_page(request, job, errors=None, chosen=None, status=200):
-    # one row per assembly with its latest traveler's number (a subquery), never every revision of every traveler
-    latest = Traveler.objects.filter(assembly=OuterRef("pk")).order_by("-revision").values("document_number")[:1]
-    assemblies = list(job.assemblies.only("pk", "piece_mark", "state", "job_id")
-                      .annotate(traveler_number=Subquery(latest)).order_by("piece_mark"))
-    rows = [(a, {"document_number": a.traveler_number} if a.traveler_number else None) for a in assemblies]
+CHECKBOXES = 150  # up to this many assemblies the page offers a checkbox each; above, rules (PacketRuleForm)
+
+
+def _packet_page(request, job, errors=None, chosen=None, status=200, rule_form=None):
+    """A small job: a checkbox per assembly with its latest traveler. A big one: counts by state and the rule form,
+    so the page weighs the same for 200 or 20,000 assemblies."""
+    counts = dict(job.assemblies.values_list("state").annotate(n=Count("pk")).order_by())
+    total = sum(counts.values())
+    rows = []
+    if total <= CHECKBOXES:
+        # one row per assembly with its latest traveler's number (a subquery), never every revision
+        latest = Traveler.objects.filter(assembly=OuterRef("pk")).order_by("-revision").values("document_number")[:1]
+        assemblies = list(job.assemblies.only("pk", "piece_mark", "state", "job_id")
+                          .annotate(traveler_number=Subquery(latest)).order_by("piece_mark"))
+        rows = [(a, {"document_number": a.traveler_number} if a.traveler_number else None) for a in assemblies]
     return render(request, "inspections/packet_list.html", {
-        "job": job, "rows": rows, "errors": errors or [],
-        "chosen": set(chosen) if chosen is not None else {a.pk for a in assemblies},
+        "job": job, "rows": rows, "errors": errors or [], "total": total,
+        "rule_form": rule_form or (PacketRuleForm(counts=counts) if total > CHECKBOXES else None),
+        "chosen": set(chosen) if chosen is not None else {a.pk for a, _t in rows},
         "packets": list(job.packets.select_related("requested_by")[:20]),
     }, status=status)
 
@@ -108,7 +119,17 @@ def packet_list(request, pk):
 @require_POST
 def packet_start(request, pk):
     job = get_visible_or_404(request.user, Job, pk=pk)
-    chosen = parse_ids(request.POST.getlist("assemblies"), limit=2000)
+    if "rule" in request.POST:  # a big job: assemblies chosen by rule
+        form = PacketRuleForm(request.POST)
+        if form.is_valid():
+            try:
+                data = form.cleaned_data
+                chosen = packets.choose_assemblies(job, data["rule"], data["state"], data["marks"])
+                return redirect(packets.start_packet(job, chosen, request.user))
+            except Refused as exc:
+                add_step_errors(form, exc)
+        return _packet_page(request, job, status=400, rule_form=form)
+    chosen = parse_ids(request.POST.getlist("assemblies"), limit=packets.MAX_ASSEMBLIES)
     if chosen is None:
         return _packet_page(request, job, ["The assemblies chosen could not be read; choose them again."], [], 400)
     try:

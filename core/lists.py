@@ -160,7 +160,9 @@ class CappedPaginator(Paginator):
     @cached_property
     def count(self):
         if isinstance(self.object_list, QuerySet):
-            return self.object_list[:COUNT_CAP + 1].count()
+            # Unordered: the rows counted need no order, and an ORDER BY inside the LIMIT made the database sort
+            # every matching row first (a viewer's 100,000 inspections: 90 ms for the count alone).
+            return self.object_list.order_by()[:COUNT_CAP + 1].count()
         return len(self.object_list)
 
     @property

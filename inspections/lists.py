@@ -20,16 +20,20 @@ def _date(value):
     return value.date().isoformat() if hasattr(value, "date") else value.isoformat()
 
 
+# The filters' choices read only what their labels print: 500 WPSs of 45 columns each cost more than the page.
 def _jobs(request):
-    return visible(request.user, Job.objects.order_by("number")) if request else Job.objects.none()
+    rows = Job.objects.only("pk", "number", "name").order_by("number")
+    return visible(request.user, rows) if request else Job.objects.none()
 
 
 def _welders(request):
-    return visible(request.user, Welder.objects.order_by("stamp")) if request else Welder.objects.none()
+    rows = Welder.objects.only("pk", "stamp", "name").order_by("stamp")
+    return visible(request.user, rows) if request else Welder.objects.none()
 
 
 def _wpss(request):
-    return visible(request.user, WPS.objects.order_by("number", "-revision")) if request else WPS.objects.none()
+    rows = WPS.objects.only("pk", "number", "revision").order_by("number", "-revision")
+    return visible(request.user, rows) if request else WPS.objects.none()
 
 
 def job_filter(path):
@@ -170,7 +174,10 @@ class InspectionFilter(ListFilterSet):
         fields = []
 
     def with_verdict(self, queryset, name, value):
-        return queryset.filter(accepted=value == "accepted")
+        # IN, not =: on SQLite Django writes `accepted = False` as `NOT accepted`, which no index serves, and the
+        # list then walked 300,000 inspections newest first to find 2,000 rejected (0.5 s); `IN (0)` uses the
+        # verdict index (migration 0004) and takes a millisecond.
+        return queryset.filter(accepted__in=[value == "accepted"])
 
 
 INSPECTION_COLUMNS = [Column("Signed", "inspected_at", lambda d: d.isoformat(timespec="minutes")),

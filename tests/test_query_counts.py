@@ -125,5 +125,5 @@ def test_the_ncr_page_reads_a_fixed_number_of_queries(make, weld, client_as, dja
 NCR_PAGE_OPEN = 6
 # dispositioned for repair: no disposition forms, but the repair record and the form to record it, offering the
 # covering WPSs (two queries) and the welders qualified for the repair (active welders, their tests, their
-# continuity runs and the entries near today), then its two lists
-NCR_PAGE_DISPOSITIONED = 12
+# continuity runs and the entries near today), then its two lists, and the filler lots of the offered WPSs' classes
+NCR_PAGE_DISPOSITIONED = 13

@@ -148,6 +148,8 @@ def test_the_repair_names_its_filler_lot_of_the_wps_classification(client_as, ma
                            {**post, "filler_lot": nasty}).status_code == 400
     assert not WeldRepair.objects.exists()
     right = make.make_filler_lot("E71T-1C")
+    offered = client.get(ncr.get_absolute_url()).context["repair_form"].fields["filler_lot"].widget.choices
+    assert [pk for pk, _text in offered] == ["", right.pk]  # only the lots of the offered WPSs' classification
     response = client.post(reverse("inspections:ncr_repair", args=[ncr.pk]), {**post, "filler_lot": right.pk})
     assert response.status_code == 302
     repair = WeldRepair.objects.get()

@@ -349,6 +349,9 @@ def _offered(choices, wps, welders, keep=()):
     return wps.filter(pk__in=wps_ids), welders.filter(pk__in=welder_ids)
 
 
+LOTS_OFFERED = 40  # the repair form's filler lot list (newest first), like the repair choices' bound
+
+
 class RepairRecordForm(forms.Form):
     """The repair as welded: who, to which WPS, when (inspections.services.repairs.record_repair checks it)."""
 
@@ -369,7 +372,11 @@ class RepairRecordForm(forms.Form):
                                 Welder.objects.filter(active=True), keep)
         self.fields["wps"].queryset = wps.order_by("number", "-revision")
         self.fields["welders"].queryset = welders.order_by("stamp")
-        self.fields["filler_lot"].queryset = FillerLot.objects.order_by("classification", "-received_on", "-pk")
+        lots = self.fields["filler_lot"]
+        lots.queryset = FillerLot.objects.all()  # any lot is read back, so a mismatch is named beside the field
+        # ...but the list offers only the newest lots of the classifications the offered WPSs specify (one query)
+        lots.widget.choices = [("", "—")] + [(lot.pk, str(lot)) for lot in FillerLot.objects.filter(
+            classification__in=wps.values("electrode")).order_by("-received_on", "-pk")[:LOTS_OFFERED]]
         if ncr is not None and not self.is_bound:
             self.initial.update(wps=ncr.repair_wps_id, welders=[ncr.repair_welder_id] if ncr.repair_welder_id else [],
                                 welded_on=timezone.localdate())

@@ -243,7 +243,10 @@ def _build(packet: JobPacket, directory: Path):
 def _welder_summary(welder_pk, job, paper=None) -> bytes:
     """The welder's qualification summary as the welder pages print it (procedures.printing); production welds on
     other customers' jobs are shown without their job (the packet goes to this job's customer)."""
-    context = printing.welder_context(printing.welder_with_records(welder_pk))
+    welder = printing.welder_with_records(welder_pk, continuity=False)
+    entries, total = printing.continuity_evidence(welder)
+    context = printing.welder_context(welder, continuity=entries)
+    context["continuity_total"] = total
     context["continuity"] = [(entry, url, hidden or bool(entry.weld_id and entry.weld.assembly.job.customer_id
                                                           != job.customer_id))
                              for entry, url, hidden in context["continuity"]]

@@ -178,6 +178,20 @@ def continuity_entries():
     return ContinuityEntry.objects.select_related("weld__assembly__job", "entered_by").order_by("-date", "-pk")
 
 
+def continuity_evidence(welder) -> tuple[list, int]:
+    """(the entries a printed summary lists, how many are recorded): per process the fewest uses that show every
+    run unbroken (procedures.qualification.continuity_evidence), newest first. Two queries whatever the history's
+    length: ten years of a welder's production print as a few lines a year, not thousands."""
+    from procedures.qualification import continuity_evidence as fewest
+
+    rows = list(welder.continuity.order_by("process", "date", "pk").values_list("pk", "process", "date"))
+    days = {}
+    for pk, process, day in rows:
+        days.setdefault(process, {}).setdefault(day, pk)
+    wanted = [found[day] for found in days.values() for day in fewest(found)]
+    return list(continuity_entries().filter(pk__in=wanted)), len(rows)
+
+
 def welder_context(welder, continuity=None):
     """What the welder page and the printed qualification summary show; continuity: the entries to list (default
     every one, as the printed summary lists them)."""

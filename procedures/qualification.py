@@ -311,6 +311,24 @@ def continuity_runs(days) -> list[tuple[date, date]]:
     return [(first, last) for first, last in runs]
 
 
+def continuity_evidence(days) -> list[date]:
+    """The fewest uses of one process that still show every run unbroken: the first use of each run, then each
+    time the latest use on or before continuity_until of the one picked before, up to the run's last use (same rule
+    and source as continuity_runs). A printed summary lists these rather than ten years of entries: each shown use
+    keeps the chain alive to the next, so the chain is proven by them alone. Interval covering; greedy is fewest."""
+    found = sorted(set(days))
+    picked: list[date] = []
+    i = 0
+    while i < len(found):
+        picked.append(found[i])
+        limit = continuity_until(found[i])
+        j = i
+        while j + 1 < len(found) and found[j + 1] <= limit:
+            j += 1
+        i = j if j > i else i + 1  # the latest use within reach; past a gap, the next use starts a new run
+    return picked
+
+
 # ISO 9606-1:2012 9.3 revalidation routes (published): months until revalidation is due; None = no fixed date.
 ISO_REVALIDATION_MONTHS = {
     "a": 36,  # a) a new test every 3 years

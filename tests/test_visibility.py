@@ -2,6 +2,8 @@
 records that hang from a job, and the welders and procedures used on it. Pages of single records are walked by
 tests/test_role_matrix.py with a second customer."""
 
+from datetime import timedelta
+
 import pytest
 from django.urls import reverse
 from django.utils import timezone
@@ -171,7 +173,8 @@ def test_a_packets_welder_summary_names_no_other_customers_job(make):
     from inspections.packets import _welder_summary
     from tests.test_traveler import pdf_text
 
-    a = _tree(make, make.customer_name, "AAA", welded_on=timezone.localdate())
+    # Ten days apart: the printed summary lists both (the first use, then the latest within six months of it).
+    a = _tree(make, make.customer_name, "AAA", welded_on=timezone.localdate() - timedelta(days=10))
     _tree(make, OTHER, "BBB", welders=[a["welder"]], welded_on=timezone.localdate())
     text, _pages = pdf_text(_welder_summary(a["welder"].pk, a["job"]))
     assert "J-AAA" in text and "J-BBB" not in text and "another customer's job" in text

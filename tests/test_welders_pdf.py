@@ -51,3 +51,22 @@ def test_the_summary_of_a_welder_with_nothing_recorded_still_prints(client_as, m
     assert "No qualification test recorded" in text
     assert "No passed test on record" in text
     assert '"' not in response["Content-Disposition"].split("filename=")[1].strip('"')
+
+
+def test_a_long_history_prints_the_fewest_uses_that_prove_the_chain(client_as, make, users):
+    # Use at least once in any 6 months (AWS D1.1/D1.1M:2020 clause 6.2.3.1, from memory): two years of weekly
+    # hand entries print as one use every six months or so, the first and the last always among them.
+    from procedures.models import ContinuityEntry
+
+    welder = make.make_welder(stamp="B-31")
+    make.make_qualification(welder, test_date=date(2024, 1, 8))
+    start = date(2024, 1, 15)
+    ContinuityEntry.objects.bulk_create([
+        ContinuityEntry(welder=welder, process="FCAW", date=start + timedelta(weeks=n), source="manual",
+                        note=f"Work order {7000 + n}", entered_by=users["qa_lead"]) for n in range(104)])
+    from procedures import continuity
+    continuity.refresh([welder.pk])
+    text = pdf_text(client_as("qa_lead").get(reverse("procedures:welder_pdf", args=[welder.pk])))
+    shown = [n for n in range(104) if f"Work order {7000 + n}" in text]
+    assert shown[0] == 0 and shown[-1] == 103 and len(shown) == 5  # 2024-01-15, then each latest within reach
+    assert "5 of 104 recorded uses shown" in text

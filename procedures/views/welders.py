@@ -229,7 +229,9 @@ def welder_reactivate(request, pk):
 def welder_pdf(request, pk):
     """The printable qualification summary: each test, its ranges, its lapse date, the continuity behind it."""
     welder = _welder(request, pk)
-    context = _welder_context(request, welder)
+    entries, total = printing.continuity_evidence(welder)
+    context = printing.welder_context(welder, continuity=entries)
+    context.update(continuity=continuity_for(request.user, context["continuity"]), continuity_total=total)
     rendered = render_pdf("pdf/welder_summary.html", context,
                           f"welder-{slugify(welder.stamp) or welder.pk}-qualifications-{context['today']:%Y%m%d}.pdf")
     return pdf_response(rendered)

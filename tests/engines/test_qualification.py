@@ -863,3 +863,23 @@ def test_a_rounded_inch_value_is_marked_approximate():
 def test_thin_groove_test_refusal_marks_a_rounded_value():  # D1.1:2020 Table 6.11 starts at 3/8 in
     with pytest.raises(ValueError, match='A ≈11/32" groove test'):
         thickness_qualified(Length(Decimal(9)), system="US")
+
+
+# --- the fewest uses that prove continuity (printed summaries) -------------------------------------------------
+
+def test_continuity_evidence_keeps_the_latest_use_within_six_months_of_the_one_before():
+    # AWS D1.1/D1.1M:2020 clause 6.2.3.1 (from memory): use at least once in any 6 months. 2026-08-31 reaches
+    # 2027-02-28 (month end clamped): a use on that day is within reach, the next day is not.
+    uses = [date(2026, 8, 31), date(2026, 10, 1), date(2027, 1, 15), date(2027, 2, 28), date(2027, 3, 1)]
+    assert q.continuity_evidence(uses) == [date(2026, 8, 31), date(2027, 2, 28), date(2027, 3, 1)]
+    past = [date(2026, 8, 31), date(2027, 3, 1), date(2027, 3, 2)]  # a gap of six months and a day: a new run
+    assert q.continuity_evidence(past) == [date(2026, 8, 31), date(2027, 3, 1), date(2027, 3, 2)]
+    assert q.continuity_evidence([]) == []
+    assert q.continuity_evidence([date(2026, 5, 1)] * 3) == [date(2026, 5, 1)]
+
+
+@given(st.lists(st.dates(min_value=date(2015, 1, 1), max_value=date(2030, 12, 31)), max_size=60))
+def test_continuity_evidence_shows_the_same_runs_as_every_use(days):
+    picked = q.continuity_evidence(days)
+    assert set(picked) <= set(days)
+    assert q.continuity_runs(picked) == q.continuity_runs(days)  # the chain is proven by the picked uses alone

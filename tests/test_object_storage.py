@@ -52,6 +52,37 @@ def test_a_photo_goes_to_the_bucket_and_comes_back_through_the_view(object_stora
     call_command("verify_records", stdout=io.StringIO())  # the photo's seal names the bucket's bytes
 
 
+def test_a_photo_held_at_the_weld_is_attached_at_signing_and_a_discarded_one_leaves_the_bucket(
+        object_storage, make, client_as, users):
+    from inspections.models import DraftPhoto
+    from tests.factory import L
+    from tests.test_inspect_views import sign
+
+    weld = make.make_weld(size=L("1/4 in"))
+    client = client_as("inspector")
+    upload = SimpleUploadedFile("toe.png", png_bytes((64, 48)), content_type="image/png")
+    held = client.post(reverse("inspections:inspect_weld", args=[weld.pk]), {
+        "stage": "final", "min_size": "1/4", "action": "photo", "photo": upload, "photo_caption": "north toe"},
+        HTTP_HX_REQUEST="true")
+    assert held.status_code == 200
+    draft = DraftPhoto.objects.get()
+    assert sha(object_storage.read(draft.image.name)) == draft.sha256
+    assert sign(client, weld, {"stage": "final", "min_size": "1/4"}).status_code == 302
+    attached = Photo.objects.get()
+    assert attached.image.name == draft.image.name and sha(object_storage.read(attached.image.name)) == draft.sha256
+
+    other = make.make_weld(size=L("1/4 in"))
+    client.post(reverse("inspections:inspect_weld", args=[other.pk]), {
+        "stage": "final", "min_size": "1/4", "action": "photo", "photo_caption": "thrown away",
+        "photo": SimpleUploadedFile("b.png", png_bytes((32, 24), color=(1, 2, 3)), content_type="image/png")},
+        HTTP_HX_REQUEST="true")
+    thrown = DraftPhoto.objects.get()
+    names = {thrown.image.name, thrown.thumbnail.name}
+    assert names <= set(object_storage.keys())
+    client.post(reverse("inspections:inspect_weld", args=[other.pk]), {"action": "discard"})
+    assert not names & set(object_storage.keys())
+
+
 def test_a_calibration_certificate_is_stored_as_uploaded_in_the_bucket(object_storage, make, client_as):
     gauge = make.make_gauge(result=None)
     content = png_bytes((64, 48))
@@ -160,17 +191,22 @@ def test_a_missing_file_is_file_not_found_and_there_is_no_local_path(object_stor
         default_storage.path("photos/nowhere.jpg")
 
 
-@pytest.fixture
-def unreachable_store(object_storage, settings, monkeypatch):
+def _point_at_nothing(settings, monkeypatch):
+    """The storage settings of a store that does not answer (a free loopback port), failing fast (one attempt)."""
+    from botocore.config import Config
+
+    from legwork.env import default_storage_from_env
     from tests.s3server import free_port
 
-    monkeypatch.setenv("LEGWORK_S3_ENDPOINT_URL", f"http://127.0.0.1:{free_port()}")  # nothing listens there
-    from legwork.env import default_storage_from_env
-
+    monkeypatch.setenv("LEGWORK_S3_ENDPOINT_URL", f"http://127.0.0.1:{free_port()}")
     options = default_storage_from_env()
-    options["OPTIONS"]["client_config"] = __import__("botocore.config").config.Config(
-        retries={"max_attempts": 1}, connect_timeout=1, read_timeout=1)
+    options["OPTIONS"]["client_config"] = Config(retries={"max_attempts": 1}, connect_timeout=1, read_timeout=1)
     settings.STORAGES = {**settings.STORAGES, "default": options}
+
+
+@pytest.fixture
+def unreachable_store(object_storage, settings, monkeypatch):
+    _point_at_nothing(settings, monkeypatch)
 
 
 def test_an_unreachable_store_is_an_oserror_without_keys(unreachable_store):
@@ -179,6 +215,14 @@ def test_an_unreachable_store_is_an_oserror_without_keys(unreachable_store):
     text = str(raised.value)
     assert "photos/b.jpg" in text and "object store could not" in text
     assert SECRET_KEY not in text and ACCESS_KEY not in text
+
+
+def test_verify_records_says_when_the_store_cannot_be_read(object_storage, make, settings, monkeypatch):
+    make.make_photo()
+    _point_at_nothing(settings, monkeypatch)
+    with pytest.raises(CommandError, match="could not be read") as raised:
+        call_command("verify_records", stdout=io.StringIO(), stderr=io.StringIO())
+    assert SECRET_KEY not in str(raised.value)
 
 
 def test_a_photo_the_store_cannot_take_is_said_beside_the_field(unreachable_store, make, client_as, users):

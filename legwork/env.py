@@ -87,9 +87,16 @@ def default_storage_from_env() -> dict:
         "endpoint_url": env_str("LEGWORK_S3_ENDPOINT_URL") or None,  # empty: AWS S3 itself
         "region_name": env_str("LEGWORK_S3_REGION") or None,
         "location": (env_str("LEGWORK_S3_PREFIX") or "").strip("/"),  # a folder inside the bucket
-        "addressing_style": env_str("LEGWORK_S3_ADDRESSING_STYLE") or None,  # "path" for some self-hosted stores
         "max_memory_size": 1024 * 1024,  # a file read back beyond 1 MiB spools to a temporary file, not memory
     }
     if access:
         options.update(access_key=access, secret_key=secret)
+    from botocore.config import Config
+
+    # A store that does not answer fails the request in seconds (then "the file could not be stored"), not after
+    # botocore's default minute-long connect timeout and retries. Common practice, no source: the values are ours.
+    # LEGWORK_S3_ADDRESSING_STYLE=path for a self-hosted store that wants path-style addresses.
+    options["client_config"] = Config(connect_timeout=5, read_timeout=60, retries={"mode": "standard",
+                                                                                     "max_attempts": 3},
+                                      s3={"addressing_style": env_str("LEGWORK_S3_ADDRESSING_STYLE") or "auto"})
     return {"BACKEND": "core.object_storage.ObjectStorage", "OPTIONS": options}

@@ -172,11 +172,11 @@ def test_a_stored_file_is_never_overwritten_even_when_the_name_is_taken_meanwhil
     # Another machine takes the name between the look-up and the PUT: the store refuses (If-None-Match) and the
     # next free name is used; the first file keeps its bytes.
     storage = type(default_storage._wrapped)
-    looked_up = []
+    real_exists, looked_up = storage.exists, []
 
     def exists_once_stale(self, name):
         looked_up.append(name)
-        return False if len(looked_up) == 1 else storage.__mro__[1].exists(self, name)
+        return False if len(looked_up) == 1 else real_exists(self, name)
 
     monkeypatch.setattr(storage, "exists", exists_once_stale)
     third = default_storage.save("photos/a.jpg", ContentFile(b"third"))
@@ -282,3 +282,17 @@ def test_deploy_checks_pass_with_the_files_in_an_object_store(s3_server):
                           timeout=120)
     assert done.returncode == 0, done.stdout + done.stderr
     assert SECRET_KEY not in done.stdout + done.stderr
+
+
+def test_a_prefix_keeps_legworks_files_in_one_folder_of_the_bucket(object_storage, settings, monkeypatch):
+    from legwork.env import default_storage_from_env
+
+    monkeypatch.setenv("LEGWORK_S3_PREFIX", "/legwork/")
+    monkeypatch.setenv("LEGWORK_S3_ADDRESSING_STYLE", "path")
+    settings.STORAGES = {**settings.STORAGES, "default": default_storage_from_env()}
+    name = default_storage.save("photos/c.jpg", ContentFile(b"in a folder"))
+    assert name == "photos/c.jpg" and object_storage.keys() == ["legwork/photos/c.jpg"]
+    with default_storage.open(name) as handle:
+        assert handle.read() == b"in a folder"
+    config = default_storage._wrapped.client_config
+    assert config.s3 == {"addressing_style": "path"} and config.connect_timeout == 5

@@ -12,6 +12,11 @@ names, the database kind and the migrations BEFORE it touches anything; refuses 
 that holds records unless forced; unpacks the media to a staging folder (checked again), restores the database
 (SQLite online backup into the target file; pg_restore --clean in one transaction), puts the media in place, and
 compares every table's row count with the manifest. The layout is in docs/decisions/2026-12-05-backup-archive.md.
+
+Both read and write the local media folder only. With the files in an object store (LEGWORK_STORAGE=s3, several
+machines) they refuse before doing anything: the bucket is backed up by the store itself (versioning, replication)
+and the database with pg_dump; `manage.py verify_records` checks every stored file's SHA-256 through the storage
+API whichever the backend.
 """
 
 from __future__ import annotations
@@ -31,6 +36,7 @@ from pathlib import Path, PurePosixPath
 
 from django.apps import apps
 from django.conf import settings
+from django.core.files.storage import FileSystemStorage, default_storage
 from django.db import connections, transaction
 from django.db.migrations.loader import MigrationLoader
 from django.utils import timezone
@@ -60,12 +66,22 @@ class Restored:
 
 # --- backup ---------------------------------------------------------------------------------------------------------
 
+def _local_media(media_root) -> Path:
+    """The media folder to back up or restore; refused when the files live in an object store, not on this disk."""
+    if media_root is None and not isinstance(default_storage, FileSystemStorage):
+        raise ArchiveError("The files are in an object store (LEGWORK_STORAGE=s3), not in a media folder on this "
+                           "machine: backup and restore handle the local disk only. Back up the bucket with the "
+                           "store's own versioning or replication and the database with pg_dump (README, "
+                           "\"Deployment on several machines\"); manage.py verify_records checks the files.")
+    return Path(media_root or settings.MEDIA_ROOT)
+
+
 def backup(output, *, using="default", media_root=None) -> dict:
     """Write one consistent archive of the database and the media to `output`; returns its manifest."""
     output = Path(output)
     if output.exists():
         raise ArchiveError(f"{output} exists: name a new file (backups are never overwritten).")
-    media_root = Path(media_root or settings.MEDIA_ROOT)
+    media_root = _local_media(media_root)
     connection = connections[using]
     if connection.vendor not in DATABASE_MEMBER:
         raise ArchiveError(f"Backups support SQLite and PostgreSQL, not {connection.vendor}.")
@@ -281,7 +297,7 @@ def not_empty(using="default", media_root=None) -> list[str]:
                 reasons.append(f"{table} holds {rows} row{'s' if rows != 1 else ''}")
     if len(reasons) > 3:
         reasons[3:] = [f"{len(reasons) - 3} more tables hold rows"]
-    media_root = Path(media_root or settings.MEDIA_ROOT)
+    media_root = _local_media(media_root)
     files = sum(1 for _ in _media_files(media_root))
     if files:
         reasons.append(f"the media folder {media_root} holds {files} files")
@@ -290,6 +306,7 @@ def not_empty(using="default", media_root=None) -> list[str]:
 
 def restore(path, *, force=False, using="default", media_root=None) -> Restored:
     """Check the archive, then restore the database and the media into an empty target (or `force`)."""
+    media_root = _local_media(media_root)
     manifest = check(path)
     connection = connections[using]
     vendor = manifest["database"].get("vendor")
@@ -303,7 +320,6 @@ def restore(path, *, force=False, using="default", media_root=None) -> Restored:
     if newer:
         raise ArchiveError("The backup was made by a newer Legwork (migrations this one does not have: "
                            f"{', '.join(newer[:5])}). Restore it with that version or newer.")
-    media_root = Path(media_root or settings.MEDIA_ROOT)
     if connection.vendor == "sqlite":
         target = Path(str(connection.settings_dict["NAME"]))
         if str(target) == ":memory:" or "mode=memory" in str(target):

@@ -15,6 +15,7 @@ from django.http import HttpResponse
 from django.template.loader import render_to_string
 
 from core.roles import CAUTIONS
+from core.storage import ObjectStoreError
 
 log = logging.getLogger("legwork.faults")
 
@@ -29,6 +30,8 @@ def storage_problem(exc) -> str | None:
     """What a person is told when storing a file failed with this error; None when it is not such an error."""
     if not isinstance(exc, OSError) or exc.errno not in STORAGE_ERRNOS:
         return None
+    if isinstance(exc, ObjectStoreError):
+        return "The file store (object storage) did not take the file."
     if exc.errno in (errno.ENOSPC, errno.EDQUOT):
         return "The server's disk is full."
     if exc.errno == errno.EIO:

@@ -5,9 +5,15 @@ flushes and syncs it, and only then moves it into place: a full disk or an unwri
 or zero-byte file behind, only the OSError. files_or_nothing() wraps the saving of one record: if anything in the
 block fails (the second of two files, the database row), the files it already stored are deleted again, so no
 orphan file outlives a record that was not saved.
+
+With LEGWORK_STORAGE=s3 the default storage is core.object_storage.ObjectStorage instead (several app machines
+share one bucket): each file is one PUT, which the object store applies whole or not at all, under a name no
+other object holds (If-None-Match), and it joins files_or_nothing() the same way. Its failures reach the caller as
+ObjectStoreError, an OSError, so the views' "the file could not be stored" answers cover both backends.
 """
 
 import contextvars
+import errno
 import os
 import tempfile
 from contextlib import contextmanager, suppress
@@ -46,8 +52,7 @@ class SafeFileSystemStorage(FileSystemStorage):
             with suppress(FileNotFoundError):
                 os.unlink(partial)
         name = str(name).replace("\\", "/")
-        for saved in _open_blocks.get():
-            saved.append((self, name))
+        remember(self, name)
         return name
 
     def _reserve(self, name, full_path):
@@ -59,6 +64,20 @@ class SafeFileSystemStorage(FileSystemStorage):
             except FileExistsError:
                 name = self.get_available_name(name)
                 full_path = self.path(name)
+
+
+class ObjectStoreError(OSError):
+    """The object store refused a request or did not answer. The message names the operation, the file and the
+    store's error code, never an access key, a signature or a presigned address."""
+
+    def __init__(self, message):
+        super().__init__(errno.EIO, message)
+
+
+def remember(storage, name: str) -> None:
+    """Tell the open files_or_nothing() blocks that `name` was stored (deleted again if the block fails)."""
+    for saved in _open_blocks.get():
+        saved.append((storage, name))
 
 
 @contextmanager

@@ -65,3 +65,38 @@ def database_from_url(url: str) -> dict:
         "CONN_HEALTH_CHECKS": True,
         "TEST": {"NAME": f"test_{name}"},
     }
+
+
+def default_storage_from_env() -> dict:
+    """The STORAGES["default"] entry: the local disk (LEGWORK_STORAGE unset or "local") or an S3-compatible object
+    store (LEGWORK_STORAGE=s3, several app machines). Errors name the variable, never a key's value."""
+    kind = (env_str("LEGWORK_STORAGE") or "local").strip().lower()
+    if kind == "local":
+        return {"BACKEND": "core.storage.SafeFileSystemStorage"}
+    if kind != "s3":
+        raise ImproperlyConfigured(f"LEGWORK_STORAGE={kind!r}: use local (the default) or s3.")
+    bucket = (env_str("LEGWORK_S3_BUCKET") or "").strip()
+    if not bucket:
+        raise ImproperlyConfigured("LEGWORK_STORAGE=s3 needs LEGWORK_S3_BUCKET (the bucket's name).")
+    access, secret = env_str("LEGWORK_S3_ACCESS_KEY_ID"), env_str("LEGWORK_S3_SECRET_ACCESS_KEY")
+    if bool(access) != bool(secret):
+        raise ImproperlyConfigured("Set both LEGWORK_S3_ACCESS_KEY_ID and LEGWORK_S3_SECRET_ACCESS_KEY, or neither "
+                                   "(then boto3 finds credentials itself: AWS_* variables, an instance role).")
+    options = {
+        "bucket_name": bucket,
+        "endpoint_url": env_str("LEGWORK_S3_ENDPOINT_URL") or None,  # empty: AWS S3 itself
+        "region_name": env_str("LEGWORK_S3_REGION") or None,
+        "location": (env_str("LEGWORK_S3_PREFIX") or "").strip("/"),  # a folder inside the bucket
+        "max_memory_size": 1024 * 1024,  # a file read back beyond 1 MiB spools to a temporary file, not memory
+    }
+    if access:
+        options.update(access_key=access, secret_key=secret)
+    from botocore.config import Config
+
+    # A store that does not answer fails the request in seconds (then "the file could not be stored"), not after
+    # botocore's default minute-long connect timeout and retries. Common practice, no source: the values are ours.
+    # LEGWORK_S3_ADDRESSING_STYLE=path for a self-hosted store that wants path-style addresses.
+    options["client_config"] = Config(connect_timeout=5, read_timeout=60, retries={"mode": "standard",
+                                                                                     "max_attempts": 3},
+                                      s3={"addressing_style": env_str("LEGWORK_S3_ADDRESSING_STYLE") or "auto"})
+    return {"BACKEND": "core.object_storage.ObjectStorage", "OPTIONS": options}

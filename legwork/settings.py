@@ -11,7 +11,7 @@ from pathlib import Path
 
 from django.core.exceptions import ImproperlyConfigured
 
-from legwork.env import database_from_url, env_bool, env_int, env_list, env_str
+from legwork.env import database_from_url, default_storage_from_env, env_bool, env_int, env_list, env_str
 
 BASE_DIR = Path(__file__).resolve().parent.parent
 VAR_DIR = Path(env_str("LEGWORK_VAR_DIR", str(BASE_DIR / "var")))
@@ -158,8 +158,9 @@ STATIC_ROOT = Path(env_str("LEGWORK_STATIC_ROOT", str(VAR_DIR / "static")))
 # Photos, reports and PDFs: never under STATIC and never served by URL; views check the user first.
 MEDIA_ROOT = Path(env_str("LEGWORK_MEDIA_ROOT", str(VAR_DIR / "media")))
 STORAGES = {
-    # Whole files or none: a full disk leaves no truncated file (core/storage.py).
-    "default": {"BACKEND": "core.storage.SafeFileSystemStorage"},
+    # Whole files or none: a full disk leaves no truncated file (core/storage.py). On several machines,
+    # LEGWORK_STORAGE=s3 and LEGWORK_S3_* put them in one S3-compatible bucket (core/object_storage.py).
+    "default": default_storage_from_env(),
     "staticfiles": {
         "BACKEND": "whitenoise.storage.CompressedManifestStaticFilesStorage"
         if not DEBUG

@@ -63,3 +63,43 @@ def _media_in_a_temp_folder(request, tmp_path_factory):
     """Photos, reports and PDFs written by tests go to a throwaway folder, never the project's var/media."""
     if request.config.pluginmanager.hasplugin("django"):
         request.getfixturevalue("settings").MEDIA_ROOT = str(tmp_path_factory.mktemp("media"))
+
+
+@pytest.fixture(scope="session")
+def s3_server():
+    """An S3-compatible server (moto, a separate process on a loopback port) for the whole run (tests/s3server.py)."""
+    from tests.s3server import S3Server
+
+    with S3Server() as server:
+        yield server
+
+
+@pytest.fixture
+def object_storage(settings, monkeypatch, s3_server):
+    """Legwork's files in a fresh bucket of the S3 server, configured through the LEGWORK_S3_* variables as a
+    deployment would; yields a helper that reads an object's bytes back with boto3 directly."""
+    from uuid import uuid4
+
+    from legwork.env import default_storage_from_env
+
+    bucket = f"legwork-{uuid4().hex[:16]}"
+    client = s3_server.client()
+    client.create_bucket(Bucket=bucket)
+    for name, value in s3_server.env(bucket).items():
+        monkeypatch.setenv(name, value)
+    settings.STORAGES = {**settings.STORAGES, "default": default_storage_from_env()}
+
+    class Bucket:
+        name = bucket
+        server = s3_server
+        s3 = client
+
+        @staticmethod
+        def read(key):
+            return client.get_object(Bucket=bucket, Key=key)["Body"].read()
+
+        @staticmethod
+        def keys():
+            return sorted(o["Key"] for o in client.list_objects_v2(Bucket=bucket).get("Contents", []))
+
+    return Bucket

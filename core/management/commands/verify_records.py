@@ -34,7 +34,10 @@ class Command(BaseCommand):
         parser.add_argument("--show", type=int, default=50, help="How many problems to list (default 50).")
 
     def handle(self, *args, anchor=(), show=50, **options):
-        report = seals.verify(anchors=anchor)
+        try:
+            report = seals.verify(anchors=anchor)
+        except OSError as exc:  # the disk or the object store could not be read: nothing was checked to the end
+            raise CommandError(f"The stored files could not be read, so the records were not checked: {exc}") from None
         if report.ok:
             head = f"#{report.head[0]} {report.head[1]}" if report.head else "empty"
             self.stdout.write(self.style.SUCCESS(

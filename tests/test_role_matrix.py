@@ -5,6 +5,7 @@ test_every_url_is_in_the_matrix, so the matrix keeps up as pages are added.
 """
 
 import importlib
+import re
 from pathlib import Path
 
 import pytest
@@ -70,6 +71,9 @@ def test_page_answers_each_role_as_expected(name, role, client_as, make):
             assert response.url.startswith(reverse("login"))
     else:
         assert response.status_code == expected[role], f"{role} GET {url}"
+        if response.status_code == OK and response.get("Content-Type", "").startswith("text/html"):
+            title = re.search(r"<title>(.*?)</title>", response.content.decode(), re.S)
+            assert title is None or "<" not in title.group(1), f"{url}: markup inside the page title"
 
 
 @pytest.mark.parametrize("name", sorted(NOT_PAGES))

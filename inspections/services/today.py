@@ -318,7 +318,9 @@ def _welders(user, today) -> Section:
               Item(f"Lapsing within {eligibility.WARN_DAYS} days", list_url("procedures:welder_list",
                                                                           continuity="lapsing"),
                    count=sum(1 for s in rows if s.state == lapsing))]
-    items = [Item(f"{s.welder.stamp} {s.welder.name}", s.welder.get_absolute_url(), since=s.lapses_on,
+    # "since" a day past; a lapse ahead is said in the note alone
+    items = [Item(f"{s.welder.stamp} {s.welder.name}", s.welder.get_absolute_url(),
+                  since=s.lapses_on if s.state == lapsed else None,
                   overdue=s.state == lapsed, word="",
                   note=("lapsed" if s.state == lapsed else "lapses") +
                   (f" on {s.lapses_on.isoformat()}" if s.lapses_on else "")) for s in rows]

@@ -144,8 +144,11 @@ def continuity_for(user, continuity):
     job, piece mark and link."""
     if sees_everything(user):
         return continuity
-    weld_ids = {entry.weld_id for entry, _url, _hidden in continuity if entry.weld_id}
+
+    def weld_of(entry):  # a repair's entry is judged by the weld it repaired
+        return entry.repair.weld_id if entry.repair_id else entry.weld_id
+
+    weld_ids = {weld_of(entry) for entry, _url, _hidden in continuity if weld_of(entry)}
     shown = set(visible(user, Weld.objects.filter(pk__in=weld_ids)).values_list("pk", flat=True))
-    return [(entry, url if entry.weld_id in shown else None, hidden or bool(entry.weld_id and entry.weld_id
-                                                                              not in shown))
-            for entry, url, hidden in continuity]
+    return [(entry, url if weld_of(entry) in shown else None,
+             hidden or bool(weld_of(entry) and weld_of(entry) not in shown)) for entry, url, hidden in continuity]

@@ -247,7 +247,7 @@ def _welder_summary(welder_pk, job, paper=None) -> bytes:
     entries, total = printing.continuity_evidence(welder)
     context = printing.welder_context(welder, continuity=entries)
     context["continuity_total"] = total
-    context["continuity"] = [(entry, url, hidden or bool(entry.weld_id and entry.weld.assembly.job.customer_id
+    context["continuity"] = [(entry, url, hidden or bool(entry.weld_used and entry.weld_used.assembly.job.customer_id
                                                           != job.customer_id))
                              for entry, url, hidden in context["continuity"]]
     return render_pdf("pdf/welder_summary.html", context, f"welder-{welder_pk}.pdf", paper=paper).content

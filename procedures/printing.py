@@ -175,7 +175,8 @@ def welder_with_records(pk, continuity=True):
 
 def continuity_entries():
     """Continuity entries newest first, with what their lines print."""
-    return ContinuityEntry.objects.select_related("weld__assembly__job", "entered_by").order_by("-date", "-pk")
+    return ContinuityEntry.objects.select_related("weld__assembly__job", "repair__weld__assembly__job", "repair__ncr",
+                                                  "entered_by").order_by("-date", "-pk")
 
 
 def continuity_evidence(welder) -> tuple[list, int]:
@@ -206,7 +207,7 @@ def welder_context(welder, continuity=None):
         "welder": welder, "status": status, "tests": tests, "today": today,
         "runs": list(welder.continuity_runs.all()),
         # (entry, link, hidden): core.visibility.continuity_for hides other customers' jobs from a viewer
-        "continuity": [(entry, weld_url(entry.weld), False) for entry in entries],
+        "continuity": [(entry, weld_url(entry.weld_used), False) for entry in entries],
         "history": history.panel(welder, *welder.qualifications.all(), *entries),
         "history_mixed": True,
     }

@@ -214,3 +214,33 @@ def test_the_repair_forms_offer_only_covering_procedures_and_qualified_welders_i
     assert groove_only.pk not in more_wps and untested.pk not in more_welders
     assert len(more_wps) == len(wps_ids) + 5 and len(more_welders) == len(welder_ids) + 5
     assert more_queries == queries
+
+
+def test_the_welder_page_and_summary_name_the_repair_behind_a_continuity_entry(make, users, ncr, client_as):
+    welder = ncr.repair_welder
+    record_repair(ncr, users["inspector"], wps=ncr.repair_wps, welders=[welder], welded_on=TODAY)
+    said = f"Repair of weld {ncr.weld} for {ncr.number}"
+    import re
+
+    page = re.sub(r"<[^>]+>", "", client_as("qa_lead").get(welder.get_absolute_url()).text)
+    assert said in page
+    # The printed summary lists one use per day and process (the production weld made the same day here): its
+    # wording for a repair entry, rendered with that entry alone.
+    from django.template.loader import render_to_string
+
+    from procedures import printing as printed
+    from procedures.models import ContinuityEntry
+
+    entry = printed.continuity_entries().get(source=ContinuityEntry.Source.REPAIR)
+    html = render_to_string("pdf/welder_summary.html", printed.welder_context(
+        printed.welder_with_records(welder.pk, continuity=False), continuity=[entry]))
+    assert said in html
+    # A viewer of another customer keeps the date and process, not the job (core.visibility.continuity_for).
+    stranger = make.make_user("viewer")
+    make.make_customer(name="Ostrander Bridge Works", viewers=[stranger])
+    from core.visibility import continuity_for
+    from procedures import printing
+
+    rows = continuity_for(stranger, printing.welder_context(printing.welder_with_records(welder.pk))["continuity"])
+    repair_rows = [(url, hidden) for entry, url, hidden in rows if entry.source == "repair"]
+    assert repair_rows == [(None, True)]

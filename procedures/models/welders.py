@@ -198,6 +198,13 @@ class ContinuityEntry(Guarded):
     def __str__(self):
         return f"{self.welder.stamp} {self.process} {self.date:%Y-%m-%d}"
 
+    @property
+    def weld_used(self):
+        """The weld the process was used on: the production weld, or the weld a repair was made on (None by hand)."""
+        if self.repair_id:
+            return self.repair.weld
+        return self.weld if self.weld_id else None
+
 
 class ContinuityRun(models.Model):
     """A welder's unbroken run of uses of a process (each within six months of the one before): a fact derived from

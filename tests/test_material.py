@@ -374,3 +374,39 @@ def test_the_job_setting_is_on_the_job_form(make, client_as):
     job = make.make_job()
     page = client_as("qa_lead").get(reverse("inspections:job_edit", args=[job.pk])).content.decode()
     assert "mill_certificates" in page
+
+
+# --- traveler and packet -----------------------------------------------------------------------------------------
+
+def test_the_traveler_prints_each_parts_heat_and_the_packet_lists_heats_and_lots(make, users):
+    import io
+
+    from pypdf import PdfReader
+
+    from inspections import packets
+    from inspections.models import JobPacket
+    from inspections.services import trace
+    from inspections.traveler import gather, issue
+
+    assembly = make.make_assembly()
+    weld = make.make_sound_weld(assembly)
+    lot = make.make_filler_lot()
+    trace.record_weld_filler(weld, lot, users["inspector"])
+    make.make_inspection(weld)
+    before = gather(assembly.pk)
+    assert "parts" not in before and "parts" not in before["welds"][0]  # older travelers keep their fingerprint
+    heat = make.make_heat("A992/A572-50", heat_number="H-TRAV")
+    part = make.make_part(assembly, heat=heat, specified_grade="A992", mark="P1")
+    make.make_part(assembly, specified_grade="A36", mark="P2")
+    snapshot = gather(assembly.pk)
+    assert [p["mark"] for p in snapshot["parts"]] == ["P1", "P2"] and "H-TRAV" in snapshot["parts"][0]["heat"]
+    traveler, _ = issue(Assembly.objects.get(pk=assembly.pk), users["qa_lead"])
+    text = "\n".join(p.extract_text() for p in PdfReader(io.BytesIO(traveler.file.read())).pages)
+    assert "Parts and heats" in text and "H-TRAV" in text and "No heat recorded" in text
+    packet = JobPacket.objects.create(job=assembly.job, document_number="PKT-H", assembly_pks=[assembly.pk],
+                                      requested_by=users["qa_lead"])
+    packets.build_packet(packet.pk)
+    packet.refresh_from_db()
+    text = "\n".join(p.extract_text() for p in PdfReader(io.BytesIO(packet.file.read())).pages[:2])
+    assert "Heats and filler lots used" in text and "H-TRAV" in text and lot.lot_number in text
+    assert f"{assembly.piece_mark}/{part.mark}" in text

@@ -153,9 +153,10 @@ def repaired_weld(weld, wps, welded_on):
 
 
 class Chains(dict):
-    """{weld.pk: WeldChain} of one assembly, and `parts`: the blockers of its parts (the material link), which
-    blockers_of() lists after the welds'."""
+    """{weld.pk: WeldChain} of one assembly, with `part_list`, its parts on file (heats loaded), and `parts`, their
+    blockers (the material link), which blockers_of() lists after the welds'."""
 
+    part_list: list
     parts: list
 
 
@@ -233,7 +234,8 @@ def _check(items, statuses=None, assembly_ids=()) -> list[dict[int, WeldChain]]:
     found = []
     for index, (job, welds) in enumerate(items):
         chains = Chains()
-        chains.parts = [Blocker(*problem) for part in (parts[assembly_ids[index]] if assembly_ids else [])
+        chains.part_list = parts[assembly_ids[index]] if assembly_ids else []
+        chains.parts = [Blocker(*problem) for part in chains.part_list
                         for problem in material.part_problems(part, job)]
         for weld in welds:
             day = weld.welded_on

@@ -410,3 +410,23 @@ def test_the_traveler_prints_each_parts_heat_and_the_packet_lists_heats_and_lots
     text = "\n".join(p.extract_text() for p in PdfReader(io.BytesIO(packet.file.read())).pages[:2])
     assert "Heats and filler lots used" in text and "H-TRAV" in text and lot.lot_number in text
     assert f"{assembly.piece_mark}/{part.mark}" in text
+
+
+def test_the_job_export_holds_its_parts_and_their_certificates_with_the_scan(make, users):
+    import io
+    import json
+    import zipfile
+
+    from inspections.export import write_zip
+
+    assembly = make.make_assembly()
+    heat = with_scan(make.make_heat(heat_number="H-EXP"))
+    make.make_part(assembly, heat=heat)
+    make.make_heat(heat_number="H-NOT-USED")
+    buffer = io.BytesIO()
+    description = write_zip(assembly.job, buffer)
+    archive = zipfile.ZipFile(io.BytesIO(buffer.getvalue()))
+    tables = {t["name"]: json.loads(archive.read(t["path"])) for t in description["tables"]}
+    assert [h["heat_number"] for h in tables["inspections.millcertificate"]] == ["H-EXPS"]
+    assert tables["inspections.part"][0]["heat"] == heat.pk
+    assert any(f["name"] == heat.document.name for f in description["files"]) and not description["missing_files"]

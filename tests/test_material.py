@@ -430,3 +430,17 @@ def test_the_job_export_holds_its_parts_and_their_certificates_with_the_scan(mak
     assert [h["heat_number"] for h in tables["inspections.millcertificate"]] == ["H-EXPS"]
     assert tables["inspections.part"][0]["heat"] == heat.pk
     assert any(f["name"] == heat.document.name for f in description["files"]) and not description["missing_files"]
+
+
+def test_the_demo_leaves_one_grade_mismatch_for_the_qa_lead(db):
+    from django.core.management import call_command
+
+    call_command("load_demo", verbosity=0)
+    column = Assembly.objects.get(job__number="J-2417", piece_mark="C4")
+    found = [b for b in release_blockers(column) if b.startswith("Part ")]
+    assert len(found) == 1 and "Part P2 is specified ASTM A572 Gr 50" in found[0] and "MP-7791C" in found[0]
+    canopy = Assembly.objects.get(job__number="J-2431", piece_mark="K-07")  # ISO: 3.1 certificates with scans
+    assert canopy.job.requires_mill_certificates
+    assert not [b for b in release_blockers(canopy) if b.startswith("Part ")]
+    weld = Weld.objects.get(assembly__piece_mark="B13", mark="W1")
+    assert (weld.part1.mark, weld.part2.mark) == ("P2", "P1") and weld.thickness2 == L("1/2 in")

@@ -128,8 +128,9 @@ def meets(certified: tuple[Grade, ...], specified: Grade) -> Answer:
                     and EN_QUALITIES.index(grade.grade) > EN_QUALITIES.index(specified.grade)):
                 return Answer(True, f"{grade} meets {specified}: the same yield strength, impact-tested colder or "
                                     "to a higher energy", SOURCE_EN)
-    return Answer(False, f"certified {grades_text(certified)}, which does not meet {specified}: "
-                         f"{SOURCE_SUBSTITUTION}", SOURCE_EN if specified.family == EN else SOURCE_DUAL)
+    return Answer(False, f"certified {grades_text(certified)}, which does not meet {specified}: a substitution is "
+                         "the engineer of record's to approve",
+                  f"{SOURCE_EN}; {SOURCE_SUBSTITUTION}" if specified.family == EN else SOURCE_SUBSTITUTION)
 
 
 def certificate_refusal(kind: str, code_family: str) -> str:

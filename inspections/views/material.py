@@ -89,7 +89,8 @@ def _heat_page(request, heat, form, status=200):
                                                                   "mark")
     return render(request, "inspections/heat_detail.html", {
         "heat": heat, "parts": list(parts), "form": form, "history": history.panel(heat),
-        "chemistry": [(heat._meta.get_field(n).verbose_name, getattr(heat, n)) for n in (*engine.ELEMENTS, "ce")]},
+        "chemistry": [(heat._meta.get_field(n).verbose_name, f"{getattr(heat, n).normalize():f}")
+                      for n in (*engine.ELEMENTS, "ce") if getattr(heat, n) is not None]},
         status=status)
 
 

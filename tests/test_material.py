@@ -444,3 +444,46 @@ def test_the_demo_leaves_one_grade_mismatch_for_the_qa_lead(db):
     assert not [b for b in release_blockers(canopy) if b.startswith("Part ")]
     weld = Weld.objects.get(assembly__piece_mark="B13", mark="W1")
     assert (weld.part1.mark, weld.part2.mark) == ("P2", "P1") and weld.thickness2 == L("1/2 in")
+
+
+def test_withdrawing_through_the_pages_needs_a_reason_and_the_right_role(make, client_as):
+    heat = make.make_heat()
+    part = make.make_part(heat=heat)
+    url = reverse("inspections:heat_withdraw", args=[heat.pk])
+    assert client_as("inspector").post(url, {"reason": "no"}).status_code == 403
+    client = client_as("qa_lead")
+    assert client.post(url, {"reason": "  "}).status_code == 400
+    assert client.post(url, {"reason": "x" * 5000}).status_code in (302, 400)
+    assert MillCertificate.objects.get(pk=heat.pk).state in (MaterialState.ON_FILE, MaterialState.WITHDRAWN)
+    part_url = reverse("inspections:part_withdraw", args=[part.pk])
+    assert client_as("inspector").post(part_url, {"reason": "typo"}).status_code == 403
+    client = client_as("welding_engineer")
+    assert client.post(part_url, {"reason": ""}).status_code == 400
+    assert client.post(part_url, {"reason": "wrong heat typed"}).status_code == 302
+    assert Part.objects.get(pk=part.pk).state == MaterialState.WITHDRAWN
+    assert client.post(part_url, {"reason": "again"}).status_code == 400  # already withdrawn: said, not a 500
+
+
+@pytest.mark.parametrize("data", [{"part1": "abc"}, {"part1": "999999"}, {"part2": "-1"}, {"part1": "1e9"},
+                                  {"take_thickness": "maybe"}])
+def test_hostile_weld_parts_input_changes_nothing(make, client_as, data):
+    weld = make.make_weld()
+    response = client_as("welding_engineer").post(reverse("inspections:weld_parts", args=[weld.pk]), data)
+    assert response.status_code in (302, 400)
+    stored = Weld.objects.get(pk=weld.pk)
+    assert stored.part1_id is None and stored.part2_id is None and stored.thickness1 == weld.thickness1
+
+
+HEAT_LIST_QUERIES = 4  # session, user, the count, the page of heats with their parts counted
+PARTS_PAGE_QUERIES = 6  # session, user, assembly with job, parts with heats, withdrawn parts, heats for the form
+
+
+def test_the_new_pages_query_counts_are_pinned(make, client_as, django_assert_num_queries):
+    client = client_as("qa_lead")
+    assembly = make.make_assembly()
+    for i in range(3):
+        make.make_part(assembly, heat=make.make_heat(), mark=f"P{i}")
+    with django_assert_num_queries(HEAT_LIST_QUERIES):
+        client.get(reverse("inspections:heat_list"))
+    with django_assert_num_queries(PARTS_PAGE_QUERIES):
+        client.get(reverse("inspections:assembly_parts", args=[assembly.pk]))

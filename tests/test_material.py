@@ -249,6 +249,7 @@ def test_a_weld_takes_its_thicknesses_from_the_parts_it_joins(make, users, clien
     weld = Weld.objects.get(pk=weld.pk)
     assert (weld.part1, weld.part2) == (flange, tab)
     assert weld.thickness1 == L("3/4 in") and weld.thickness2 == L("5/16 in")
+    assert weld.base_metals == "ASTM A992"  # both parts' grade, once; a typed value would have been kept
 
 
 def test_a_weld_may_name_its_parts_and_keep_its_typed_thickness(make, users):
@@ -256,7 +257,7 @@ def test_a_weld_may_name_its_parts_and_keep_its_typed_thickness(make, users):
     part = make.make_part(weld.assembly, thickness=L("1 in"))
     material.record_weld_parts(weld, part, None, users["welding_engineer"], take_thickness=False)
     weld = Weld.objects.select_related("part1", "part2").get(pk=weld.pk)
-    assert weld.thickness1 == L("3/8 in")
+    assert weld.thickness1 == L("3/8 in") and weld.base_metals == "ASTM A992"
     assert "part " + part.mark in material.thickness_differences(weld)[0]
 
 
@@ -487,3 +488,9 @@ def test_the_new_pages_query_counts_are_pinned(make, client_as, django_assert_nu
         client.get(reverse("inspections:heat_list"))
     with django_assert_num_queries(PARTS_PAGE_QUERIES):
         client.get(reverse("inspections:assembly_parts", args=[assembly.pk]))
+
+
+def test_a_typed_base_metal_is_kept_when_the_weld_names_its_parts(make, users):
+    weld = make.make_weld(base_metals="ASTM A514, ASTM A572 Gr 50")
+    material.record_weld_parts(weld, make.make_part(weld.assembly), None, users["qa_lead"])
+    assert Weld.objects.get(pk=weld.pk).base_metals == "ASTM A514, ASTM A572 Gr 50"

@@ -71,8 +71,9 @@ def withdraw_part(part: Part, user, reason: str) -> Part:
 
 @transaction.atomic
 def record_weld_parts(weld: Weld, part1: Part | None, part2: Part | None, user, take_thickness=True) -> Weld:
-    """Name the parts a weld joins; with take_thickness, its thickness of part 1 and 2 become the parts'. Drawing
-    data: frozen at the weld's first inspection (RecordLocked after; a revision changes it)."""
+    """Name the parts a weld joins; with take_thickness, its thickness of part 1 and 2 become the parts'; a blank
+    `base_metals` becomes the parts' specified grades (a typed one is kept). Drawing data: frozen at the weld's first
+    inspection (RecordLocked after; a revision changes it)."""
     require(user, PARTS)
     for part in (part1, part2):
         if part is not None and part.assembly_id != weld.assembly_id:
@@ -81,6 +82,8 @@ def record_weld_parts(weld: Weld, part1: Part | None, part2: Part | None, user, 
     if take_thickness:
         weld.thickness1 = part1.thickness if part1 is not None else weld.thickness1
         weld.thickness2 = part2.thickness if part2 is not None else weld.thickness2
+    if not weld.base_metals.strip():  # the steels joined, when not typed yet (the 48 h rule reads them)
+        weld.base_metals = ", ".join(dict.fromkeys(p.specified_grade for p in (part1, part2) if p is not None))
     weld.save(user=user)
     return weld
 

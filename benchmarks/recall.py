@@ -1,4 +1,4 @@
-"""Benchmark (not a test): the recall of a filler lot among 100,000 welds, and its query count.
+"""Benchmark (not a test): the recall of a filler lot, and of a heat of steel, among 100,000 welds; their query counts.
 
     .venv/bin/python benchmarks/recall.py [--welds 100000] [--share 10] [--runs 5]
 
@@ -6,7 +6,9 @@ Builds a throwaway SQLite database in a temporary directory, seeds --welds inven
 assemblies per job, 10 welds per assembly, welded over the last 200 days), one filler lot on every --share-th weld
 and another lot on the rest, then times inspections.services.trace.recall for the first lot: all dates, and the
 last 30 days. Prints the median and slowest of --runs runs, the rows found and the queries (one: fixed whatever the
-number, tests/test_trace_recall.py pins it). The load average is printed.
+number, tests/test_trace_recall.py pins it). Each assembly has one part, cut from the recalled heat on every
+--share-th assembly, and every weld names it: the heat's recall (its parts and their welds: two queries,
+tests/test_material.py) is timed the same way. The load average is printed.
 """
 
 import argparse
@@ -37,11 +39,13 @@ def main():
     try:
         throwaway_sqlite(folder)
         start = time.perf_counter()
-        lot = _seed(args.welds, args.share)
+        lot, heat = _seed(args.welds, args.share)
         print(f"seeded {args.welds:,} welds in {time.perf_counter() - start:.0f} s; load average "
               f"{os.getloadavg()[0]:.2f}; {args.runs} runs each")
         print(_measure(lot, args.runs, days=None))
         print(_measure(lot, args.runs, days=30))
+        print(_measure(heat, args.runs, days=None, kind="heat"))
+        print(_measure(heat, args.runs, days=30, kind="heat"))
     finally:
         shutil.rmtree(folder, ignore_errors=True)
 
@@ -49,12 +53,13 @@ def main():
 def _seed(n, share):
     from django.utils import timezone
 
-    from inspections.models import Assembly, Weld
+    from inspections.models import Assembly, Part, Weld
     from tests.factory import Factory
 
     make = Factory()
     wps = make.approved_wps()
     recalled, other = make.make_filler_lot(), make.make_filler_lot()
+    heat, other_heat = make.make_heat(), make.make_heat()
     today = timezone.localdate()
     per_assembly, per_job = 10, 100
     job = None
@@ -63,15 +68,18 @@ def _seed(n, share):
             job = make.make_job()
         assembly = Assembly.objects.create(job=job, piece_mark=f"B{a}", drawing=f"E-{a}", drawing_revision="1",
                                            quantity=1, description="Bench beam")
+        part = Part(assembly=assembly, mark="P1", role="main", specified_grade="ASTM A992", thickness=make_size(),
+                    heat=heat if a % share == 0 else other_heat)
+        Part.objects.bulk_create([part])
         welds = []
         for i in range(min(per_assembly, n - a * per_assembly)):
             k = a * per_assembly + i
             welds.append(Weld(assembly=assembly, mark=f"W{i}", joint_type="fillet", size=make_size(), count=1,
                               length=make_length(), thickness1=make_size(), thickness2=make_size(), position="F",
                               wps=wps, welded_on=today - timedelta(days=k % 200),
-                              filler_lot=recalled if k % share == 0 else other))
+                              filler_lot=recalled if k % share == 0 else other, part1=part))
         Weld.objects.bulk_create(welds)
-    return recalled
+    return recalled, heat
 
 
 def make_size():
@@ -86,7 +94,7 @@ def make_length():
     return parse_length("12 in")
 
 
-def _measure(lot, runs, days):
+def _measure(subject, runs, days, kind="lot"):
     from django.db import connection
     from django.test.utils import CaptureQueriesContext
     from django.utils import timezone
@@ -98,10 +106,10 @@ def _measure(lot, runs, days):
     for _ in range(runs):
         with CaptureQueriesContext(connection) as queries:
             start = time.perf_counter()
-            rows = trace.recall("lot", lot, start_day, None)
+            rows = trace.recall(kind, subject, start_day, None)
             times.append(time.perf_counter() - start)
     what = f"last {days} days" if days else "all dates"
-    return (f"recall of one lot, {what}: {len(rows):,} welds found, median {statistics.median(times) * 1000:.0f} ms, "
+    return (f"recall of one {kind}, {what}: {len(rows):,} rows found, median {statistics.median(times) * 1000:.0f} ms, "
             f"slowest {max(times) * 1000:.0f} ms, {len(queries)} queries")
 
 

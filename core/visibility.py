@@ -35,6 +35,7 @@ from inspections.models import (
     Photo,
     Weld,
 )
+from inspections.models.material import MillCertificate, Part
 from inspections.models.traveler import JobPacket, Traveler
 from procedures.models import PQR, WPS, Qualification, Welder
 from procedures.models.welders import ContinuityEntry
@@ -42,7 +43,7 @@ from procedures.models.welders import ContinuityEntry
 SHOP_ROLES = {Role.WELDING_ENGINEER, Role.INSPECTOR, Role.QA_LEAD}
 
 # The shop's own registers: a viewer reads them only as printed on its travelers (docs/decisions, traceability).
-SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration, FillerLot)
+SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration, FillerLot, MillCertificate)
 
 # Records that belong to one job: the path from the record to its job.
 JOB_PATHS = {
@@ -54,6 +55,7 @@ JOB_PATHS = {
     NCR: "weld__assembly__job",
     Traveler: "assembly__job",
     JobPacket: "job",
+    Part: "assembly__job",
 }
 
 

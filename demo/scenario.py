@@ -347,6 +347,7 @@ def _jobs(users, procedures, welders, today):
     _runway(runway, users, procedures, welders, today)
     _canopy(canopy, users, procedures, welders, today)
     _platform(platform, users, procedures, welders, today)
+    _material(users, today)
     from demo import history as past
 
     past.build(users, welders, (harlan, ostrander), today)
@@ -523,6 +524,78 @@ def _platform(job, users, procedures, welders, today):
     _weld(lugs, "W1", smaw, [dana], timezone.localtime(cooled).date(), size=L("10 mm"), length=L("150 mm"),
           sides="both", thickness1=L("20 mm"), thickness2=L("25 mm"), position="H",
           base_metals="ASTM A514, ASTM A572 Gr 50", completed_at=cooled)
+
+
+# --- material: heats of steel and the parts cut from them (issue 18 item 1) -----------------------------------------
+
+# Invented mills, heats and values: (heat, producer, grade, product, thickness, type, scan, chemistry
+# C Mn P S Si Cu Ni Cr Mo V CE, yield, tensile, elongation %).
+HEATS = [
+    ("CV-24-31877", "Calder Valley Steel", "ASTM A992/A992M, A572 Gr 50", "W16x26", None, "mtr", False,
+     "0.07 1.12 0.011 0.024 0.22 0.29 0.10 0.12 0.03 0.002 0.34", "56.5 ksi", "71.0 ksi", "24"),
+    ("CV-24-31902", "Calder Valley Steel", "ASTM A992/A992M, A572 Gr 50", "W12x65", None, "mtr", False,
+     "0.08 1.05 0.013 0.021 0.20 0.31 0.09 0.10 0.02 0.003 0.33", "54.0 ksi", "69.5 ksi", "25"),
+    ("MP-7734A", "Marrow Point Plate", "ASTM A36/A36M", "PL", "3/8 in", "mtr", False,
+     "0.16 0.88 0.012 0.009 0.21 0.18 0.07 0.08 0.02 0.001 0.34", "44.0 ksi", "66.0 ksi", "27"),
+    ("MP-7791C", "Marrow Point Plate", "ASTM A36/A36M", "PL", "1-1/2 in", "mtr", False,
+     "0.17 0.92 0.010 0.008 0.24 0.21 0.08 0.07 0.02 0.001 0.36", "41.5 ksi", "68.0 ksi", "26"),
+    ("NV-55120", "Nordstrand Valseverk (invented)", "EN 10025-2 S355J2+N", "PL", "10 mm", "3.1", True,
+     "0.15 1.42 0.014 0.006 0.25 0.03 0.02 0.04 0.01 0.002 0.40", "389 MPa", "531 MPa", "26"),
+    ("NV-55187", "Nordstrand Valseverk (invented)", "EN 10025-2 S355J2+N", "PL", "12 mm", "3.1", True,
+     "0.16 1.38 0.012 0.005 0.23 0.04 0.03 0.05 0.01 0.002 0.40", "376 MPa", "524 MPa", "27"),
+]
+
+# (job, piece mark, part, role, description, specified grade, thickness, heat). C4's base plate is specified
+# A572 Gr 50 but was cut from an A36 heat: the mismatch the QA lead finds on the release list.
+PARTS = [
+    ("J-2417", "B13", "P1", "main", "W16x26 beam", "ASTM A992", "1/2 in", "CV-24-31877"),
+    ("J-2417", "B13", "P2", "connection", "Shear tab PL 3/8x6", "ASTM A36", "3/8 in", "MP-7734A"),
+    ("J-2417", "C4", "P1", "main", "W12x65 column", "ASTM A992", "5/8 in", "CV-24-31902"),
+    ("J-2417", "C4", "P2", "base", "Base plate PL 1-1/2x14x14", "ASTM A572 Gr 50", "1-1/2 in", "MP-7791C"),
+    ("J-2417", "C4", "P3", "base", "Cap plate PL 3/8x10x10", "ASTM A36", "3/8 in", "MP-7734A"),
+    ("J-2431", "K-07", "P1", "plate", "Node plate PL 10", "S355J2", "10 mm", "NV-55120"),
+    ("J-2431", "K-07", "P2", "plate", "Chord plate PL 12", "S355JR", "12 mm", "NV-55187"),
+]
+
+DEMO_SCAN = b"%PDF-1.4\n% Invented demo mill certificate (no real mill, heat or values)\n%%EOF\n"
+
+
+def _material(users, today):
+    """Mill certificates of the demo jobs' steel (the QA lead's) and the parts cut from them; B13's welds W1 and W2
+    name the parts they join (uninspected, so their thicknesses are taken from the parts)."""
+    from decimal import Decimal
+
+    from django.core.files.base import ContentFile
+
+    from core.units import parse_stress
+    from inspections import material as engine
+    from inspections.models import Assembly, MillCertificate, Part, Weld
+    from inspections.services import material
+
+    qa = users[Role.QA_LEAD]
+    heats = {}
+    with history.acting(qa):
+        for number, producer, grade, product, thick, kind, scan, chemistry, ys, ts, elong in HEATS:
+            stress = parse_stress(ys)
+            heat = MillCertificate(heat_number=number, producer=producer, grade=grade, product=product,
+                                   thickness=L(thick) if thick else None, certificate_type=kind,
+                                   issued_on=today - timedelta(days=60), yield_mpa=stress[0].mpa.quantize(
+                                       Decimal("0.01")), tensile_mpa=parse_stress(ts)[0].mpa.quantize(
+                                       Decimal("0.01")), elongation=Decimal(elong), printed_system=stress[1],
+                                   **dict(zip((*engine.ELEMENTS, "ce"), map(Decimal, chemistry.split()),
+                                              strict=True)))
+            if scan:
+                heat.document = ContentFile(DEMO_SCAN, name=f"{number}.pdf")
+            heats[number] = material.record_certificate(heat, qa)
+        parts = {}
+        for job, piece, mark, role, description, grade, thick, heat in PARTS:
+            assembly = Assembly.objects.get(job__number=job, piece_mark=piece)
+            parts[(piece, mark)] = material.record_part(
+                Part(assembly=assembly, mark=mark, role=role, description=description, specified_grade=grade,
+                     thickness=L(thick), heat=heats[heat]), qa)
+        for mark in ("W1", "W2"):
+            weld = Weld.objects.get(assembly__job__number="J-2417", assembly__piece_mark="B13", mark=mark)
+            material.record_weld_parts(weld, parts[("B13", "P2")], parts[("B13", "P1")], qa)
 
 
 __all__ = ["PASSWORD", "accounts", "load", "parse_force", "timedelta"]

@@ -1,12 +1,13 @@
 """A job's whole record as JSON tables plus its stored files, in one zip: the layout of docs/export-format.md.
 
 Everything the job's records hold or name: the job and its client criteria set, assemblies, welds, inspections,
-photos, NCRs, repairs, travelers and packets; the WPSs and PQRs and the welders (with their tests and continuity) the
-welds and repairs name; the filler lots, inspector credentials and gauges (with their calibrations) they name; the
-history rows and seals of all of these; and the people named (no passwords). Values are
-written as the record chain seals them (core.seals.encode): exact Decimal text in the stored base unit, times in
-UTC to the microsecond, relations as ids, files as {"name", "sha256"}. Rows are streamed table by table, so a large
-job does not sit in memory; each file is copied once and its SHA-256 checked against the one recorded.
+photos, NCRs, repairs, travelers and packets, parts and the mill certificates of their heats; the WPSs and PQRs and
+the welders (with their tests and continuity) the welds and repairs name; the filler lots, inspector credentials and
+gauges (with their calibrations) they name; the history rows and seals of all of these; and the people named (no
+passwords). Values are written as the record chain seals them (core.seals.encode): exact Decimal text in the stored
+base unit, times in UTC to the microsecond, relations as ids, files as {"name", "sha256"}. Rows are streamed table by
+table, so a large job does not sit in memory; each file is copied once and its SHA-256 checked against the one
+recorded.
 """
 
 from __future__ import annotations
@@ -34,6 +35,8 @@ from inspections.models import (
     InspectorCredential,
     Job,
     JobPacket,
+    MillCertificate,
+    Part,
     Photo,
     Traveler,
     Weld,
@@ -86,12 +89,20 @@ def record_sets(job: Job) -> list[tuple[str, models.QuerySet]]:
         ("inspections.gaugecalibration", GaugeCalibration.objects.filter(gauge_id__in=gauge_ids)),
         ("inspections.traveler", Traveler.objects.filter(assembly__job=job)),
         ("inspections.jobpacket", JobPacket.objects.filter(job=job)),
+        *_material_sets(job),
         ("procedures.wps", WPS.objects.filter(pk__in=wps_ids)),
         ("procedures.pqr", PQR.objects.filter(pk__in=pqr_ids)),
         ("procedures.welder", Welder.objects.filter(pk__in=welder_ids)),
         ("procedures.qualification", Qualification.objects.filter(welder_id__in=welder_ids)),
         ("procedures.continuityentry", ContinuityEntry.objects.filter(welder_id__in=welder_ids)),
     ]
+
+
+def _material_sets(job: Job):
+    """The job's parts (withdrawn ones too) and the mill certificates they name, with their scans."""
+    parts = Part.objects.filter(assembly__job=job)
+    return [("inspections.part", parts),
+            ("inspections.millcertificate", MillCertificate.objects.filter(pk__in=parts.values("heat_id")))]
 
 
 class _Member:

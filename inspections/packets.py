@@ -189,6 +189,7 @@ def _build(packet: JobPacket, directory: Path):
     pks = list(packet.assembly_pks)
     parts: list[Part] = []
     wps_pks, welder_pks, open_items, rows = {}, {}, [], []
+    heats, lots = {}, {}  # the packet's summary of material: printed heat or lot -> where used
     for done, pk in enumerate(pks, start=1):
         assembly = Assembly.objects.select_related("job").get(pk=pk)
         snapshot = travelers.gather(pk)
@@ -207,6 +208,7 @@ def _build(packet: JobPacket, directory: Path):
         for welder in snapshot["welders_used"]:
             welder_pks[welder["pk"]] = welder
         open_items += [f"{mark}: {item}" for item in snapshot["open_items"]]
+        _note_materials(heats, lots, mark, snapshot)
         advance(packet, done, f"Traveler {mark} ({done} of {len(pks)})")
         del snapshot  # one assembly's records in memory at a time
 
@@ -229,7 +231,8 @@ def _build(packet: JobPacket, directory: Path):
     released = [r for r in rows if r["released"]]
     context = {"packet": packet, "job": packet.job, "rows": rows, "open_items": open_items, "paper": paper,
                "requested_by": travelers._person(user), "released": len(released),
-               "not_released": [r["piece_mark"] for r in rows if not r["released"]], "chain_head": seals.head()}
+               "not_released": [r["piece_mark"] for r in rows if not r["released"]], "chain_head": seals.head(),
+               "heats": sorted(heats.items()), "lots": sorted(lots.items())}
     rendered = render_pdf(COVER_TEMPLATE, {**context, "part": "open_items"}, "open-items.pdf", paper=paper)
     parts.append(Part("Open items", _spool(directory, "open-items.pdf", rendered.content),
                       travelers.page_count(rendered.content), "open_items"))
@@ -238,6 +241,16 @@ def _build(packet: JobPacket, directory: Path):
     path, sha256, pages = _merge(directory, cover, parts)
     with path.open("rb") as handle, files_or_nothing():  # no stored file without its finished packet row
         finish(packet, File(handle, name=packet.filename), sha256, pages, index)
+
+
+def _note_materials(heats, lots, mark, snapshot):
+    """The heats of the assembly's parts and the filler lots of its welds, as its traveler printed them."""
+    for part in snapshot.get("parts", []):
+        if part["heat"]:
+            heats.setdefault(part["heat"], []).append(f"{mark}/{part['mark']}")
+    for weld in snapshot["welds"]:
+        if weld["filler"]:
+            lots.setdefault(weld["filler"], []).append(f"{mark}/{weld['mark']}")
 
 
 def _welder_summary(welder_pk, job, paper=None) -> bytes:

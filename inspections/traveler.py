@@ -255,6 +255,8 @@ def gather(assembly_pk: int) -> dict:
             "chain_ok": link.ok,
             "filler": weld.filler_lot.printed(system) if weld.filler_lot else "", "filler_problem": link.filler,
         }
+        if weld.part1_id or weld.part2_id:  # only then: a traveler issued before parts keeps its fingerprint
+            row["parts"] = " + ".join(p.mark for p in _joined(weld, chains))
         rows.append(row)
         cap = _capacity(weld, final, system)
         if cap is not None:
@@ -303,7 +305,7 @@ def gather(assembly_pk: int) -> dict:
     if capacity:
         cautions.append("Strength figures are AISC 360-16 J2 available strengths (LRFD) for the engineer of "
                         "record to review; they do not approve a weld.")
-    return {
+    snapshot = {
         "job": {"pk": job.pk, "number": job.number, "name": job.name, "customer": job.customer.name,
                 "unit_system": job.get_unit_system_display(), "system": system,
                 "fit_up_hold_point": job.fit_up_hold_point},
@@ -320,6 +322,26 @@ def gather(assembly_pk: int) -> dict:
         "wps_used": sorted(wps_used.values(), key=lambda w: (w["number"], w["revision"])),
         "welders_used": sorted(welders_used.values(), key=lambda w: w["stamp"]),
     }
+    parts = _parts(chains, job, system)
+    if parts:  # only then: a traveler issued before parts were recorded keeps its fingerprint
+        snapshot["parts"] = parts
+    return snapshot
+
+
+def _joined(weld, chains):
+    """The parts on file a weld names (read from the chain's parts: no query)."""
+    by_pk = {p.pk: p for p in getattr(chains, "part_list", [])}
+    return [by_pk[pk] for pk in (weld.part1_id, weld.part2_id) if pk in by_pk]
+
+
+def _parts(chains, job, system) -> list[dict]:
+    """The assembly's parts with their heats, as the traveler prints them (the chain read them: no query)."""
+    from inspections.services.material import part_problems
+
+    return [{"mark": p.mark, "role": p.get_role_display(), "description": p.description,
+             "grade": p.specified_grade, "thickness": _len(p.thickness, system),
+             "heat": p.heat.printed() if p.heat else "", "problems": [words for words, _url in part_problems(p, job)]}
+            for p in getattr(chains, "part_list", [])]
 
 
 def _last_signers(inspections) -> str:

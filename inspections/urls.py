@@ -6,6 +6,7 @@ from inspections.views import criteria as criteria_views
 from inspections.views import inspect as inspect_views
 from inspections.views import jobs as job_views
 from inspections.views import lists as list_views
+from inspections.views import material as material_views
 from inspections.views import ncr as ncr_views
 from inspections.views import records as record_views
 from inspections.views import strength as strength_views
@@ -93,6 +94,16 @@ urlpatterns = [
     path("welds/<int:pk>/filler/", trace_views.weld_filler, name="weld_filler"),
     path("recall/", trace_views.recall, name="recall"),
     path("recall.csv", trace_views.recall_csv, name="recall_csv"),
+    # --- material: heats (mill certificates) and parts (inspections.views.material) ---
+    path("heats/", material_views.heat_list, name="heat_list"),
+    path("heats/new/", material_views.heat_create, name="heat_create"),
+    path("heats/<int:pk>/", material_views.heat_detail, name="heat_detail"),
+    path("heats/<int:pk>/withdraw/", material_views.heat_withdraw, name="heat_withdraw"),
+    path("heats/<int:pk>/certificate/", material_views.heat_document, name="heat_document"),
+    path("assemblies/<int:pk>/parts/", material_views.assembly_parts, name="assembly_parts"),
+    path("assemblies/<int:pk>/parts/new/", material_views.part_create, name="part_create"),
+    path("parts/<int:pk>/withdraw/", material_views.part_withdraw, name="part_withdraw"),
+    path("welds/<int:pk>/parts/", material_views.weld_parts, name="weld_parts"),
     # end of traceability registers
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),

@@ -102,6 +102,31 @@ class Factory:
         lot.save()
         return lot
 
+    def make_heat(self, grade="ASTM A992/A572-50", certificate_type="mtr", **kwargs):
+        """A heat of steel with its mill certificate (no scan attached unless document= is given)."""
+        from decimal import Decimal
+
+        from inspections.models import MillCertificate
+
+        fields = dict(heat_number=f"H{next(_counter):05d}", producer="Ostrander Mill", grade=grade,
+                      product="W18x35", certificate_type=certificate_type, issued_on=date(2026, 8, 3),
+                      c=Decimal("0.08"), mn=Decimal("1.10"), yield_mpa=Decimal("379.21"))
+        fields.update(kwargs)
+        heat = MillCertificate(**fields)
+        heat.save()
+        return heat
+
+    def make_part(self, assembly=None, heat=None, specified_grade="ASTM A992", **kwargs):
+        """A part of an assembly (a main member 3/8 in thick) cut from `heat` (none: no heat recorded)."""
+        from inspections.models import Part
+
+        fields = dict(assembly=assembly or self.make_assembly(), mark=f"P{next(_counter)}", role="main",
+                      specified_grade=specified_grade, thickness=L("3/8 in"), heat=heat)
+        fields.update(kwargs)
+        part = Part(**fields)
+        part.save()
+        return part
+
     @staticmethod
     def calibrate(gauge, calibrated_on, due_on, result="in_tolerance"):
         from inspections.models import GaugeCalibration

@@ -131,4 +131,5 @@ def test_the_weld_page_reads_its_history_in_one_query_whatever_its_length(make, 
         assert client.get(url).status_code == 200
 
 
-QUERIES_WELD_PAGE = 10  # session, user, weld, statuses (2), welder checks (2), inspections, NCRs, history
+QUERIES_WELD_PAGE = 11  # session, user, weld, statuses (2), welder checks (2), inspections, NCRs, history,
+#                         the assembly's parts (the chain's material link)

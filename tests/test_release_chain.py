@@ -354,8 +354,8 @@ def _assembly_of(make, users, n):
     return Assembly.objects.get(pk=assembly.pk)
 
 
-RELEASE_BLOCKERS_QUERIES = 10  # job, welds, welders, 2 statuses, repairs, their welders, next WPS revisions,
-#                                the welders' test records and continuity
+RELEASE_BLOCKERS_QUERIES = 11  # job, welds, welders, 2 statuses, repairs, their welders, next WPS revisions,
+#                                the welders' test records and continuity, the parts with their heats
 
 
 @pytest.mark.parametrize("welds", [1, 20])

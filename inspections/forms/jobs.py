@@ -40,11 +40,15 @@ class JobForm(VersionedModelForm):
 
     class Meta:
         model = Job
-        fields = ["number", "name", "unit_system", "fit_up_hold_point", "filler_lot_required", "gauge_required"]
+        fields = ["number", "name", "unit_system", "fit_up_hold_point", "filler_lot_required", "gauge_required",
+                  "mill_certificates"]
         labels = {"number": "Job number", "name": "Job name", "unit_system": "Units"}
+        widgets = {"mill_certificates": forms.Select(choices=[
+            ("unknown", "As the job's code: required on ISO jobs, not on AWS jobs"), ("true", "Required"),
+            ("false", "Not required")])}
 
     field_order = ["number", "name", "customer", "unit_system", "criteria", "fit_up_hold_point",
-                   "filler_lot_required", "gauge_required"]
+                   "filler_lot_required", "gauge_required", "mill_certificates"]
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)

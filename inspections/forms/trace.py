@@ -11,7 +11,14 @@ from core.fields import LengthFormField
 from core.models import User
 from core.roles import Role
 from inspections import credentials as engine
-from inspections.models import CalibrationResult, FillerLot, Gauge, GaugeCalibration, InspectorCredential
+from inspections.models import (
+    CalibrationResult,
+    FillerLot,
+    Gauge,
+    GaugeCalibration,
+    InspectorCredential,
+    MillCertificate,
+)
 from procedures.electrodes import decode
 from procedures.forms.welders import DateInput, _not_after_today
 
@@ -167,10 +174,11 @@ class RecallForm(forms.Form):
     """Which welds a lot, a gauge or an inspector touched between two dates (inspections.services.trace.recall)."""
 
     kind = forms.ChoiceField(label="Used", choices=[("lot", "Filler lot"), ("gauge", "Gauge"),
-                                                   ("inspector", "Inspector")])
+                                                   ("inspector", "Inspector"), ("heat", "Heat of steel")])
     lot = forms.ModelChoiceField(label="Filler lot", required=False, queryset=FillerLot.objects.none())
     gauge = forms.ModelChoiceField(label="Gauge", required=False, queryset=Gauge.objects.none())
     inspector = forms.ModelChoiceField(label="Inspector", required=False, queryset=User.objects.none())
+    heat = forms.ModelChoiceField(label="Heat", required=False, queryset=MillCertificate.objects.none())
     date_from = forms.DateField(label="From", required=False, widget=DateInput())
     date_to = forms.DateField(label="To", required=False, widget=DateInput())
 
@@ -178,6 +186,7 @@ class RecallForm(forms.Form):
         super().__init__(*args, **kwargs)
         self.fields["lot"].queryset = FillerLot.objects.order_by("classification", "lot_number")
         self.fields["gauge"].queryset = Gauge.objects.order_by("number")
+        self.fields["heat"].queryset = MillCertificate.objects.order_by("heat_number", "pk")
         self.fields["inspector"].queryset = User.objects.filter(role=Role.INSPECTOR).order_by("last_name",
                                                                                               "username")
 

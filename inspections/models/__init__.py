@@ -10,6 +10,7 @@ from inspections.models.inspection import (
     TemperatureMethod,
 )
 from inspections.models.jobs import Assembly, AssemblyState, Customer, Job, Weld
+from inspections.models.material import MaterialState, MillCertificate, Part, PartRole
 from inspections.models.ncr import NCR
 from inspections.models.repair import WeldRepair
 from inspections.models.trace import (
@@ -28,3 +29,4 @@ __all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCrite
            "Customer", "DraftPhoto", "FillerLot", "Gauge", "GaugeCalibration", "GaugeKind", "GaugeState", "Inspection",
            "InspectionDraft", "InspectionStage", "InspectorCredential", "Job", "JobPacket", "PacketState", "Photo",
            "TemperatureMethod", "Traveler", "Weld", "WeldRepair"]
+__all__ += ["MaterialState", "MillCertificate", "Part", "PartRole"]  # material traceability (issue 18 item 1)

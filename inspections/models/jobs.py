@@ -60,6 +60,11 @@ class Job(Guarded):
         "gauge required at final visual", default=False,
         help_text="Every final visual names the gauge it was measured with (a gauge in calibration that day)",
     )
+    # Blank: required on ISO jobs, not on AWS jobs (docs/decisions/2026-12-05-mill-certificates.md).
+    mill_certificates = models.BooleanField(
+        "mill certificates required", null=True, blank=True,
+        help_text="Every part needs a heat with its mill certificate on file before release; blank: required on "
+                  "ISO jobs (EN 1090-2), not on AWS jobs")
     created_at = models.DateTimeField(default=timezone.now, editable=False)
     version = models.PositiveIntegerField(default=1, editable=False)
 
@@ -104,6 +109,11 @@ class Job(Guarded):
             except ValueError:
                 standard = self.criteria_key
         return "ISO" if standard.strip().upper().startswith("ISO") else "AWS"
+
+    @property
+    def requires_mill_certificates(self) -> bool:
+        """The job's setting, else the code family's default: on for ISO jobs, off for AWS jobs."""
+        return self.mill_certificates if self.mill_certificates is not None else self.code_family == "ISO"
 
     def applicability_input(self) -> dict:
         """The job as procedures.applicability.review() reads it."""
@@ -353,6 +363,12 @@ class Weld(Guarded):
     filler_lot = models.ForeignKey("inspections.FillerLot", null=True, blank=True, on_delete=models.PROTECT,
                                    related_name="welds", verbose_name="filler lot",
                                    help_text="The lot of filler metal the weld was made with (the filler register)")
+    # The parts joined (inspections.models.material), when the weld map names them: their thicknesses feed
+    # thickness1/thickness2 (inspections.services.material.record_weld_parts); drawing data, frozen with the rest.
+    part1 = models.ForeignKey("inspections.Part", null=True, blank=True, on_delete=models.PROTECT, related_name="+",
+                              verbose_name="part 1")
+    part2 = models.ForeignKey("inspections.Part", null=True, blank=True, on_delete=models.PROTECT, related_name="+",
+                              verbose_name="part 2")
     completed_at = models.DateTimeField(
         "weld completed and cooled", null=True, blank=True,
         help_text="When the weld was finished and cooled to ambient; the delayed final visual of quenched and "

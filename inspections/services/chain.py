@@ -11,6 +11,9 @@ For every weld of an assembly (and each recorded repair of it), on the day it wa
 4. Hold point: where the job requires it, an accepted current fit-up inspection.
 5. Filler: the lot recorded for the weld has the WPS's classification (a lot not recorded is not a blocker yet;
    an NCR closed as use-as-is accepts a mismatch, as for every deviation).
+6. Material (the assembly's parts, not a weld's): each part's heat meets its specified grade; where the job requires
+   mill certificates, every part names a heat whose certificate is of the right type and attached
+   (services.material.part_problems, inspections.material). Read into Chains.parts: one query.
 
 check_assembly() answers all of it in a fixed number of queries whatever the number of welds, repairs and welders
 (tests/test_chain_queries.py pins it). Each problem is a Blocker: the words, and the page where it is put right.
@@ -26,6 +29,7 @@ from django.utils import timezone
 
 from inspections.models import FillerLot, Inspection, InspectionStage, Job, Weld, WeldRepair
 from inspections.models.ncr import NCRState
+from inspections.services import material
 from inspections.services.assemblies import WeldStatus, weld_statuses
 from procedures import applicability, eligibility
 from procedures.electrodes import decode
@@ -148,11 +152,19 @@ def repaired_weld(weld, wps, welded_on):
                 welded_on=welded_on)
 
 
+class Chains(dict):
+    """{weld.pk: WeldChain} of one assembly, with `part_list`, its parts on file (heats loaded), and `parts`, their
+    blockers (the material link), which blockers_of() lists after the welds'."""
+
+    part_list: list
+    parts: list
+
+
 def check_assembly(assembly, welds=None, statuses=None) -> dict[int, WeldChain]:
     """Every weld's chain, {weld.pk: WeldChain} in weld mark order. Pass the page's welds (select_related('wps'),
     prefetch_related('welders')) and statuses to share them; the query count stays fixed either way."""
     welds = assembly_welds(assembly) if welds is None else list(welds)
-    return _check([(_job(assembly), welds)], statuses)[0]
+    return _check([(_job(assembly), welds)], statuses, [assembly.pk])[0]
 
 
 def check_assemblies(assemblies) -> dict[int, dict[int, WeldChain]]:
@@ -166,7 +178,7 @@ def check_assemblies(assemblies) -> dict[int, dict[int, WeldChain]]:
     for weld in (Weld.objects.filter(assembly_id__in=list(by_assembly)).select_related("wps")
                  .prefetch_related("welders").order_by("assembly_id", "mark")):
         by_assembly[weld.assembly_id].append(weld)
-    found = _check([(_job(a), by_assembly[a.pk]) for a in assemblies])
+    found = _check([(_job(a), by_assembly[a.pk]) for a in assemblies], None, [a.pk for a in assemblies])
     return {a.pk: chains for a, chains in zip(assemblies, found, strict=True)}
 
 
@@ -195,8 +207,9 @@ def inspection_blockers(assemblies) -> dict[int, list[Blocker]]:
     return found
 
 
-def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
-    """The chains of each (job, welds) pair, in order: every query made once for all of them."""
+def _check(items, statuses=None, assembly_ids=()) -> list[dict[int, WeldChain]]:
+    """The chains of each (job, welds) pair, in order: every query made once for all of them. assembly_ids: the
+    assembly of each pair, for the material link."""
     ids = [w.pk for _job_, welds in items for w in welds]
     statuses = statuses if statuses is not None else weld_statuses(ids)
     repairs = {}
@@ -217,9 +230,13 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
     fit_ups = _fit_ups(held) if held else {}
     lots = _filler_lots(everything)
 
+    parts = material.parts_of(assembly_ids)  # the material link: one query
     found = []
-    for job, welds in items:
-        chains = {}
+    for index, (job, welds) in enumerate(items):
+        chains = Chains()
+        chains.part_list = parts[assembly_ids[index]] if assembly_ids else []
+        chains.parts = [Blocker(*problem) for part in chains.part_list
+                        for problem in material.part_problems(part, job)]
         for weld in welds:
             day = weld.welded_on
             chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
@@ -370,5 +387,5 @@ def _status_blockers(subject, weld, status: WeldStatus, repaired) -> list[Blocke
 
 
 def blockers_of(chains) -> list[Blocker]:
-    """Every blocker of these chains, weld by weld in mark order."""
-    return [b for chain in chains.values() for b in chain.blockers]
+    """Every blocker of these chains, weld by weld in mark order, then the assembly's parts' (the material link)."""
+    return [b for chain in chains.values() for b in chain.blockers] + list(getattr(chains, "parts", []))

@@ -231,10 +231,19 @@ RECALL_COLUMNS = {"customer": "Customer", "job": "Job", "assembly": "Assembly", 
                   "verdict": "Verdict", "inspector": "Inspector"}
 
 
+def recall_columns(kind: str) -> dict:
+    """The recall's columns: a heat's rows name the part too (inspections.services.material.recall_heat)."""
+    return {**RECALL_COLUMNS, "part": "Part"} if kind == "heat" else RECALL_COLUMNS
+
+
 def recall(kind: str, subject, start=None, end=None) -> list[dict]:
     """Every weld the filler lot, the gauge or the inspector touched between the dates (inclusive; welded on for a
     lot, signed on for a gauge or an inspector), with its assembly's state and job. One query whatever the number,
     read as plain values (benchmarks/recall.py: 10,000 of 100,000 welds)."""
+    if kind == "heat":  # the parts cut from it and the welds joining them (two queries)
+        from inspections.services.material import recall_heat
+
+        return recall_heat(subject, start, end)
     if kind == "lot":  # the welds made with it, and the welds whose repair was (by the repair's date)
         repaired = _between(WeldRepair.objects.filter(filler_lot=subject), "welded_on", start, end).values("weld")
         rows = Weld.objects.filter(Q(pk__in=_between(Weld.objects.filter(filler_lot=subject), "welded_on", start,

@@ -331,7 +331,7 @@ def weld_revise(request, pk):
 
 @require_safe
 def weld_detail(request, pk):
-    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps")
+    weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps", "part1", "part2")
                               .prefetch_related("welders"), pk=pk)
     row = weld_rows(weld.assembly, [weld])[0]
     inspections = weld.inspections.select_related("inspector", "supersedes").order_by("-inspected_at", "-pk")

@@ -258,15 +258,7 @@ def filler_lot_create(request):
     form = FillerLotForm(request.POST or None, request.FILES or None)
     if request.method == "POST" and form.is_valid():
         lot = form.save(commit=False)
-        try:
-            with files_or_nothing(), transaction.atomic():  # the certificate goes with the row, or neither
-                trace.record_filler_lot(lot, request.user)
-        except OSError as exc:
-            message = faults.storage_message(exc, "certificate")
-            if message is None:
-                raise
-            form.add_error("document", message)
-        else:
+        if stored_with_file(form, trace.record_filler_lot, lot, request.user, "certificate"):
             messages.success(request, f"Recorded: {lot}.")
             return redirect(lot)
     return render(request, "inspections/trace_form.html", {
@@ -274,6 +266,21 @@ def filler_lot_create(request):
         "back": "inspections:filler_lot_list", "back_label": "Filler lots",
         "intro": "As received: the classification and lot as printed on the package, with the manufacturer's "
                  "certificate. Never edited afterwards."}, status=400 if form.errors else 200)
+
+
+def stored_with_file(form, step, record, user, what) -> bool:
+    """Store a register's new row with its document, both or neither; a storage fault becomes the message beside the
+    document field (False)."""
+    try:
+        with files_or_nothing(), transaction.atomic():
+            step(record, user)
+    except OSError as exc:
+        message = faults.storage_message(exc, what)
+        if message is None:
+            raise
+        form.add_error("document", message)
+        return False
+    return True
 
 
 def _lot(request, pk):
@@ -331,13 +338,19 @@ def _recall(request):
     return form, trace.recall(data["kind"], data[data["kind"]], data.get("date_from"), data.get("date_to"))
 
 
+def _recall_columns(form) -> dict:
+    return trace.recall_columns(form.cleaned_data.get("kind", "") if form.is_bound and form.is_valid() else "")
+
+
 @require_safe
 def recall(request):
     """Which welds, assemblies and jobs a filler lot, a gauge or an inspector touched between dates."""
     shop_only(request)
     form, rows = _recall(request)
+    columns = _recall_columns(form)
     return render(request, "inspections/recall.html", {
-        "form": form, "rows": rows, "columns": trace.RECALL_COLUMNS.values(), "query": request.GET.urlencode()},
+        "form": form, "rows": rows, "columns": list(columns.values()), "heat": "part" in columns,
+        "query": request.GET.urlencode()},
         status=400 if form.is_bound and form.errors else 200)
 
 
@@ -350,8 +363,9 @@ def recall_csv(request):
     response = HttpResponse(content_type="text/csv; charset=utf-8")
     response["Content-Disposition"] = 'attachment; filename="recall.csv"'
     writer = csv.writer(response)
-    writer.writerow(trace.RECALL_COLUMNS.values())
+    columns = _recall_columns(form)
+    writer.writerow(columns.values())
     for row in rows:
-        writer.writerow([formula_safe(row[c]) for c in trace.RECALL_COLUMNS])
+        writer.writerow([formula_safe(row[c]) for c in columns])
     return response
 

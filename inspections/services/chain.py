@@ -11,6 +11,9 @@ For every weld of an assembly (and each recorded repair of it), on the day it wa
 4. Hold point: where the job requires it, an accepted current fit-up inspection.
 5. Filler: the lot recorded for the weld has the WPS's classification (a lot not recorded is not a blocker yet;
    an NCR closed as use-as-is accepts a mismatch, as for every deviation).
+6. Consumables: for a low-hydrogen SMAW lot, no issue of it to the weld's welder covering the weld date went past
+   its exposure limit, came from an oven below its minimum, or from a batch rebaked badly or twice
+   (services.consumables.weld_exposures; no issue recorded is not a blocker).
 
 check_assembly() answers all of it in a fixed number of queries whatever the number of welds, repairs and welders
 (tests/test_chain_queries.py pins it). Each problem is a Blocker: the words, and the page where it is put right.
@@ -26,6 +29,7 @@ from django.utils import timezone
 
 from inspections.models import FillerLot, Inspection, InspectionStage, Job, Weld, WeldRepair
 from inspections.models.ncr import NCRState
+from inspections.services import consumables
 from inspections.services.assemblies import WeldStatus, weld_statuses
 from procedures import applicability, eligibility
 from procedures.electrodes import decode
@@ -74,6 +78,7 @@ class WeldChain:
     fit_up: Inspection | None = None
     fit_up_required: bool = False
     filler: str = ""  # why the filler lot does not match the WPS ("" when it does, or none is recorded)
+    exposure: list = field(default_factory=list)  # [(problem, url)]: consumable control (services.consumables)
     blockers: list[Blocker] = field(default_factory=list)
 
     @property
@@ -216,6 +221,7 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
     held = [w.pk for job, welds in items if job.fit_up_hold_point for w in welds]
     fit_ups = _fit_ups(held) if held else {}
     lots = _filler_lots(everything)
+    exposures = consumables.weld_exposures(everything)  # one query when a weld names a low-hydrogen SMAW lot
 
     found = []
     for job, welds in items:
@@ -225,7 +231,8 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
             chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
                               statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point,
                               filler=filler_mismatch(lots.get(weld.filler_lot_id), weld.wps)
-                              or filler_missing(weld, job))
+                              or filler_missing(weld, job),
+                              exposure=exposures.get(weld.pk, []))
             for repair in repairs.get(weld.pk, []):
                 label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
                 chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
@@ -333,6 +340,8 @@ def _blockers(chain: WeldChain) -> list[Blocker]:
     found += _inspection_blockers(subject, chain)
     if chain.filler and not chain.status.accepted_as_is:
         found.append(Blocker(f"{subject}: {chain.filler}.", _url("inspections:weld_filler", weld.pk)))
+    if not chain.status.accepted_as_is:  # consumable control: an NCR closed as use-as-is accepts it too
+        found += [Blocker(f"{subject}: {problem}.", url) for problem, url in chain.exposure]
     if chain.fit_up_required:
         fit_up = chain.fit_up
         if fit_up is None:

@@ -191,3 +191,17 @@ def test_the_traveler_prints_the_exposure_status(make, users):
     _issue(make, users, weld, out=NOON - timedelta(hours=5), back=NOON - timedelta(minutes=59))
     row = traveler.gather(weld.assembly_id)["welds"][0]
     assert "4 h 01 min of 4 h (past)" in row["exposure"]
+
+
+def test_the_qa_leads_morning_page_names_unread_ovens_and_electrodes_out_past_their_limit(make, users):
+    from inspections.services import today as morning
+
+    weld = _weld(make, users)
+    make.make_oven(number="OV-READ", at=NOON - timedelta(hours=12))  # read a shift ago: not due yet
+    make.make_oven(number="OV-LATE", at=NOON - timedelta(hours=12, seconds=1))
+    _issue(make, users, weld, oven=make.make_oven(number="OV-ISSUE"), out=NOON - timedelta(hours=4, minutes=1))
+    section = next(s for s in morning.for_user(users["qa_lead"]) if s.key == "consumables")
+    texts = [i.text for i in section.items]
+    assert "Oven OV-LATE: no reading for a shift" in texts and not any("OV-READ" in t for t in texts)
+    assert any(t.startswith(f"Lot {weld.filler_lot.lot_number} with ") and "(past)" in t for t in texts)
+    assert section.total == 2

@@ -554,9 +554,9 @@ def _ovens(users, welders):
     qa, inspector, dana = users[Role.QA_LEAD], users[Role.INSPECTOR], welders["B-07"]
     now = timezone.now()
     holding = consumables.record_oven(ElectrodeOven(number="OV-01", kind="holding", location="Bay 2 crib",
-                                                    description="Holding oven, 350 lb"), qa)
+                                                    description="350 lb capacity, dial thermometer"), qa)
     rod = consumables.record_oven(ElectrodeOven(number="RO-03", kind="rod", location="Yard",
-                                                description="Portable rod oven, 10 lb"), qa)
+                                                description="10 lb capacity, plugs in at the bench"), qa)
     for hours, reading in [(72, "285 F"), (64, "290 F"), (56, "270 F"), (48, "295 F"), (40, "280 F"), (32, "300 F"),
                            (24, "275 F"), (16, "290 F"), (8, "285 F"), (1, "290 F")]:
         consumables.record_reading(OvenReading(oven=holding, read_at=now - timedelta(hours=hours),

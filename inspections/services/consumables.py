@@ -22,6 +22,7 @@ from django.utils import timezone
 from core.errors import Refused
 from core.roles import require
 from core.transitions import required_reason, transition
+from core.units import Temperature
 from inspections import consumables as engine
 from inspections.models import (
     ElectrodeIssue,
@@ -175,10 +176,7 @@ def judge(issue: ElectrodeIssue, now=None) -> Judged:
     system = issue.oven.system
     read_c = getattr(issue, "oven_read_c", None)
     if read_c is not None:
-        from core.units import Temperature
-
-        reading = engine.OvenReading(None, issue.oven_read_at, read_c if isinstance(read_c, Temperature)
-                                     else Temperature(read_c))
+        reading = engine.OvenReading(None, issue.oven_read_at, _temperature(read_c))
         standing = engine.oven_at([reading], issue.taken_out_at, system)
         if not standing.ok:
             judged.problems.append(f"taken from oven {issue.oven} when {standing.reason}")
@@ -278,9 +276,8 @@ def oven_rows(now=None) -> list[dict]:
     return rows
 
 
-def _temperature(value):
-    from core.units import Temperature
-
+def _temperature(value) -> Temperature:
+    """A reading annotated through a subquery comes back as the field's Temperature (or its number of degC)."""
     return value if isinstance(value, Temperature) else Temperature(value)
 
 

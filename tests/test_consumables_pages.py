@@ -170,3 +170,12 @@ def test_a_viewer_never_opens_the_register(make, client_as):
     viewer = client_as("viewer")
     assert viewer.get(reverse("inspections:oven_list")).status_code == 403
     assert viewer.get(oven.get_absolute_url()).status_code == 404
+
+
+def test_a_flux_ovens_readings_are_kept_not_judged_against_the_electrode_minimum(make, client_as):
+    make.make_oven(reading="200 F")
+    flux = ElectrodeOven(number="FX-01", kind="flux")
+    flux.save()
+    OvenReading(oven=flux, read_at=timezone.now() - timedelta(hours=1), temperature=make_temperature("200 F")).save()
+    page = client_as("inspector").get(reverse("inspections:oven_list")).content.decode()
+    assert "flux oven: not judged" in page and "200 °F, below the minimum" in page  # OV-.. is judged, FX-01 not

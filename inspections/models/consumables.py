@@ -61,6 +61,18 @@ class ElectrodeOven(Recorded, Guarded):
     def get_absolute_url(self):
         return reverse("inspections:oven_detail", args=[self.pk])
 
+    @property
+    def holds_electrodes(self) -> bool:
+        """A holding or rod oven, judged against the electrode minimum; a flux oven keeps the flux maker's
+        temperature, which the shop reads but Legwork does not judge."""
+        return self.kind != OvenKind.FLUX
+
+    def reading_ok(self, temperature) -> bool | None:
+        """The reading against D1.1 clause 7.3.2.1's minimum (from memory); None for a flux oven."""
+        from inspections import consumables
+
+        return consumables.reading_ok(temperature, self.system) if self.holds_electrodes else None
+
 
 class OvenReading(Recorded, Guarded):
     """One temperature reading of an oven: when, what, by whom (the person who recorded it)."""

@@ -175,7 +175,7 @@ def judge(issue: ElectrodeIssue, now=None) -> Judged:
         return judged
     system = issue.oven.system
     read_c = getattr(issue, "oven_read_c", None)
-    if read_c is not None:
+    if read_c is not None and issue.oven.holds_electrodes:
         reading = engine.OvenReading(None, issue.oven_read_at, _temperature(read_c))
         standing = engine.oven_at([reading], issue.taken_out_at, system)
         if not standing.ok:
@@ -269,7 +269,7 @@ def oven_rows(now=None) -> list[dict]:
     for oven in ovens:
         ok = None
         if oven.last_c is not None:
-            ok = engine.reading_ok(_temperature(oven.last_c), oven.system)
+            ok = oven.reading_ok(_temperature(oven.last_c))
         rows.append({"oven": oven, "last_at": oven.last_at, "last": _temperature(oven.last_c) if oven.last_c is not
                      None else None, "ok": ok, "due": oven.state == OvenState.IN_SERVICE and
                      engine.reading_due(oven.last_at, now), "out": oven.out})

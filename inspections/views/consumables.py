@@ -63,7 +63,7 @@ def _oven_page(request, oven, retire_form, status=200):
     last = readings.object_list[0] if readings.number == 1 and readings.object_list else None
     return render(request, "inspections/oven_detail.html", {
         "oven": oven, "page": page, "judged": [steps.judge(i, now) for i in page.object_list], "readings": readings,
-        "last": last, "last_ok": last is not None and engine.reading_ok(last.temperature, oven.system),
+        "last": last, "last_ok": last is not None and oven.reading_ok(last.temperature) is not False,
         "due": oven.state == OvenState.IN_SERVICE and engine.reading_due(last.read_at if last else None, now),
         "minimum": engine.oven_minimum(oven.system), "rebakes": [
             (r, engine.rebake(r.lot.classification, r.temperature, r.hours, r.number, oven.system)) for r in rebakes],
@@ -106,7 +106,7 @@ def reading_create(request, pk):
     form = ReadingForm(request.POST or None, oven=oven)
 
     def done(reading):
-        ok = engine.reading_ok(reading.temperature, oven.system)
+        ok = oven.reading_ok(reading.temperature) is not False
         return f"Reading recorded{'' if ok else ': BELOW the minimum; electrodes taken out now are flagged'}."
     return _log_form(request, oven, form, "Record a reading", "Record reading", steps.record_reading, done)
 

@@ -205,3 +205,20 @@ def test_the_qa_leads_morning_page_names_unread_ovens_and_electrodes_out_past_th
     assert "Oven OV-LATE: no reading for a shift" in texts and not any("OV-READ" in t for t in texts)
     assert any(t.startswith(f"Lot {weld.filler_lot.lot_number} with ") and "(past)" in t for t in texts)
     assert section.total == 2
+
+
+def test_a_repair_welded_with_electrodes_past_their_limit_blocks_too_table_7_1_from_memory(make, users):
+    from inspections.services.ncr import disposition_repair
+    from inspections.services.repairs import record_repair
+
+    weld = _weld(make, users)
+    make.make_inspection(weld, accepted=False)
+    ncr = weld.ncrs.get()
+    welder = weld.welders.first()
+    disposition_repair(ncr, users["qa_lead"], make._smaw_wps, welder, notes="Grind out and re-weld")
+    record_repair(ncr, users["inspector"], wps=make._smaw_wps, welders=[welder], welded_on=NOON.date(),
+                  filler_lot=weld.filler_lot)
+    _issue(make, users, weld, out=NOON - timedelta(hours=5), back=NOON - timedelta(minutes=30))
+    blockers = release_blockers(Assembly.objects.get(pk=weld.assembly_id))
+    flagged = [b for b in blockers if "out of the oven" in b]
+    assert len(flagged) == 2 and any(f"repair for {ncr.number}: lot" in b for b in flagged)

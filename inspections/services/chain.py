@@ -11,8 +11,8 @@ For every weld of an assembly (and each recorded repair of it), on the day it wa
 4. Hold point: where the job requires it, an accepted current fit-up inspection.
 5. Filler: the lot recorded for the weld has the WPS's classification (a lot not recorded is not a blocker yet;
    an NCR closed as use-as-is accepts a mismatch, as for every deviation).
-6. Consumables: for a low-hydrogen SMAW lot, no issue of it to the weld's welder covering the weld date went past
-   its exposure limit, came from an oven below its minimum, or from a batch rebaked badly or twice
+6. Consumables: for a low-hydrogen SMAW lot (of the weld or of a repair), no issue of it to the welder covering the
+   date went past its exposure limit, came from an oven below its minimum, or from a batch rebaked badly or twice
    (services.consumables.weld_exposures; no issue recorded is not a blocker).
 
 check_assembly() answers all of it in a fixed number of queries whatever the number of welds, repairs and welders
@@ -221,7 +221,8 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
     held = [w.pk for job, welds in items if job.fit_up_hold_point for w in welds]
     fit_ups = _fit_ups(held) if held else {}
     lots = _filler_lots(everything)
-    exposures = consumables.weld_exposures(everything)  # one query when a weld names a low-hydrogen SMAW lot
+    # Consumable control of welds and repairs: one query when one names a low-hydrogen SMAW lot.
+    exposures = consumables.weld_exposures(everything + [r for done in repairs.values() for r in done])
 
     found = []
     for job, welds in items:
@@ -232,9 +233,11 @@ def _check(items, statuses=None) -> list[dict[int, WeldChain]]:
                               statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point,
                               filler=filler_mismatch(lots.get(weld.filler_lot_id), weld.wps)
                               or filler_missing(weld, job),
-                              exposure=exposures.get(weld.pk, []))
+                              exposure=exposures.get(("Weld", weld.pk), []))
             for repair in repairs.get(weld.pk, []):
                 label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
+                chain.exposure += [(f"repair for {repair.ncr.number}: {problem}", url)
+                                   for problem, url in exposures.get(("WeldRepair", repair.pk), [])]
                 chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
                                                  checks[("repair", repair.pk)]))
             chain.blockers = _blockers(chain)

@@ -214,10 +214,10 @@ def issue_url(issue) -> str:
     return reverse("inspections:oven_detail", args=[issue.oven_id]) + f"#issue-{issue.pk}"
 
 
-def weld_exposures(welds, now=None) -> dict[int, list[tuple[str, str]]]:
-    """{weld.pk: [(problem, url of the issue)]} for the welds naming a low-hydrogen SMAW lot (their filler_lot
-    loaded, welders prefetched): one query when any does, none otherwise. Also {weld.pk: [Judged]} of every issue
-    covering the weld is left on weld._exposures for the traveler."""
+def weld_exposures(welds, now=None) -> dict[tuple, list[tuple[str, str]]]:
+    """{(kind, pk): [(problem, url of the issue)]} for the welds (kind "Weld") and repairs ("WeldRepair") naming a
+    low-hydrogen SMAW lot (their filler_lot loaded, welders prefetched): one query when any does, none otherwise.
+    Every issue covering one is also left on it as `_exposures` (Judged), for the traveler."""
     now = now or timezone.now()
     controlled = []
     for weld in welds:
@@ -244,7 +244,8 @@ def weld_exposures(welds, now=None) -> dict[int, list[tuple[str, str]]]:
                     covering.append(judged)
                     problem = covers(judged, weld.welded_on, now)
                     if problem:
-                        found.setdefault(weld.pk, []).append((problem, issue_url(judged.issue)))
+                        found.setdefault((type(weld).__name__, weld.pk), []).append(
+                            (problem, issue_url(judged.issue)))
         weld._exposures = covering
     return found
 

@@ -37,6 +37,7 @@ ACTIONS = {
     "criteria.derive": "Derive a client's criteria set",
     "traveler.issue": "Issue travelers and job packets",
     "register.manage": "Keep the registers of inspector credentials and gauges",
+    "consumable.log": "Log electrode ovens: readings, electrodes issued and returned, rebakes",
     "records.verify": "Check a document or a printed chain head against the sealed records",
     "records.export": "Export a job's whole record (JSON and files)",
     "signin.unlock": "Lift a sign-in pause after too many wrong passwords",
@@ -54,6 +55,8 @@ _ALLOWED = {
     # A viewer (a customer's or a third-party inspector's account) changes nothing, but may check a copy it holds.
     Role.VIEWER: {"records.verify"},
 }
+for _role in (Role.WELDING_ENGINEER, Role.INSPECTOR, Role.QA_LEAD):  # the oven log: whoever stands at the oven
+    _ALLOWED[_role] = _ALLOWED[_role] | {"consumable.log"}
 assert all(action in ACTIONS for allowed in _ALLOWED.values() for action in allowed)
 
 

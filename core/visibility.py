@@ -26,13 +26,17 @@ from inspections.models import (
     Assembly,
     ClientCriteriaSet,
     Customer,
+    ElectrodeIssue,
+    ElectrodeOven,
     FillerLot,
     Gauge,
     GaugeCalibration,
     Inspection,
     InspectorCredential,
     Job,
+    OvenReading,
     Photo,
+    Rebake,
     Weld,
 )
 from inspections.models.material import MillCertificate, Part
@@ -44,6 +48,7 @@ SHOP_ROLES = {Role.WELDING_ENGINEER, Role.INSPECTOR, Role.QA_LEAD}
 
 # The shop's own registers: a viewer reads them only as printed on its travelers (docs/decisions, traceability).
 SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration, FillerLot, MillCertificate)
+SHOP_REGISTERS += (ElectrodeOven, OvenReading, ElectrodeIssue, Rebake)  # consumable control
 
 # Records that belong to one job: the path from the record to its job.
 JOB_PATHS = {

@@ -15,11 +15,15 @@ computes them. What the demo shows, by where to look:
   (BSW-103 was never approved) and P2 on a welder whose SMAW continuity lapsed (B-23). The procedures are
   approved when the demo loads, so its welds are dated the day it loads (a WPS must be approved on the day a weld
   is made); the welds waiting days for the inspector show as blocked until the shop records them again.
+- consumable control (demo/scenario.py _ovens): oven OV-01's log; B-07's E7018 from lot KW-24-0932 out 3 h 30
+  min and returned for J-2440 P3 (within the 4 h of AWS D1.1 Table 7.1), and lot KW-24-0977 out 4 h 15 min for
+  J-2417 P5, which blocks its release; rod oven RO-03 unread for a shift on the QA lead's morning page.
 - the trends page and the QA lead's morning page: twenty weeks of finished work on J-2405 and J-2408 (demo/history.py,
   signed on their days), in which B-12's reject rate climbs; one NCR of five weeks ago still awaits disposition.
 """
 
 from datetime import date, timedelta
+from decimal import Decimal
 
 from django.utils import timezone
 
@@ -83,6 +87,7 @@ def load() -> bool:
         _gauges(users, today)
         _filler_lots(users, today)
         _jobs(users, procedures, welders, today)
+        _ovens(users, welders)
     return True
 
 
@@ -137,7 +142,8 @@ def _filler_lots(users, today):
 
     lots = [("E71T-1C", "AWS A5.20/A5.20M", "0.045 in", "KW-24-1187"), ("E7018", "AWS A5.1/A5.1M", "1/8 in",
                                                                        "KW-24-0932"),
-            ("ER70S-6", "AWS A5.18/A5.18M", "1.2 mm", "KW-24-1402")]
+            ("ER70S-6", "AWS A5.18/A5.18M", "1.2 mm", "KW-24-1402"),
+            ("E7018", "AWS A5.1/A5.1M", "5/32 in", "KW-24-0977")]  # the second E7018 lot: J-2417 P5 only
     with history.acting(users[Role.QA_LEAD]):
         for classification, specification, diameter, number in lots:
             FillerLot(classification=classification, specification=specification, diameter=L(diameter),
@@ -357,7 +363,8 @@ def _weld(assembly, mark, wps, welders, on, **fields):
     from inspections.models import FillerLot, Weld
     from inspections.services.assemblies import record_production
 
-    lot = FillerLot.objects.filter(classification=wps.electrode).first() if wps else None  # the shop's lot in use
+    lot = fields.pop("filler_lot", None) or (  # the shop's first lot of the WPS's classification
+        FillerLot.objects.filter(classification=wps.electrode).order_by("pk").first() if wps else None)
     weld = Weld.objects.create(assembly=assembly, mark=mark, wps=wps, welded_on=on, filler_lot=lot, **fields)
     weld.welders.set(welders)
     record_production(weld)
@@ -430,6 +437,16 @@ def _garage(job, users, procedures, welders, today):
     p1 = _weld(embed, "W1", smaw, [welders["B-23"]], day, size=L("1/4 in"), length=L("5 in"), count=2,
                thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="F")
     _inspect(p1, users, min_size=L("1/4 in"))  # accepted, but B-23's SMAW continuity has lapsed
+
+    # Stick-welded with E7018 lot KW-24-0977, out of the oven 4 h 15 min (_ovens): blocked on consumable control.
+    clip = Assembly.objects.create(job=job, piece_mark="P5", drawing="E-521", drawing_revision="0", quantity=2,
+                                   description="Base plate clip angles, stick-welded in the yard")
+    from inspections.models import FillerLot
+
+    p5 = _weld(clip, "W1", smaw, [dana], day, size=L("1/4 in"), length=L("4 in"), count=2,
+               thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="F",
+               filler_lot=FillerLot.objects.get(lot_number="KW-24-0977"))
+    _inspect(p5, users, min_size=L("1/4 in"))
 
     # Waiting for the inspector: B13's identical shear-tab welds (one pass), one welded days ago (overdue), and B14
     # at fit-up, where a root opening over 3/16 in was sent back.
@@ -596,6 +613,39 @@ def _material(users, today):
         for mark in ("W1", "W2"):
             weld = Weld.objects.get(assembly__job__number="J-2417", assembly__piece_mark="B13", mark=mark)
             material.record_weld_parts(weld, parts[("B13", "P2")], parts[("B13", "P1")], qa)
+
+
+def _ovens(users, welders):
+    """The oven register and its log, through the log's steps (inspections.services.consumables): holding oven OV-01
+    read every 8 hours for three days, a rebake of lot KW-24-0932, B-07's electrodes for J-2440 P3 (yesterday,
+    3 h 30 min out: within Table 7.1's 4 h) and for J-2417 P5 (KW-24-0977, taken out 5 h 15 min before the demo
+    loads and returned an hour before: 4 h 15 min, past the limit, so P5 is blocked; loaded between midnight and
+    01:15 the times fall on the day before and P5 is not flagged). Rod oven RO-03 was last read 14 hours ago: due."""
+    from inspections.models import ElectrodeIssue, ElectrodeOven, FillerLot, OvenReading, Rebake
+    from inspections.services import consumables
+
+    qa, inspector, dana = users[Role.QA_LEAD], users[Role.INSPECTOR], welders["B-07"]
+    now = timezone.now()
+    holding = consumables.record_oven(ElectrodeOven(number="OV-01", kind="holding", location="Bay 2 crib",
+                                                    description="350 lb capacity, dial thermometer"), qa)
+    rod = consumables.record_oven(ElectrodeOven(number="RO-03", kind="rod", location="Yard",
+                                                description="10 lb capacity, plugs in at the bench"), qa)
+    for hours, reading in [(72, "285 F"), (64, "290 F"), (56, "270 F"), (48, "295 F"), (40, "280 F"), (32, "300 F"),
+                           (24, "275 F"), (16, "290 F"), (8, "285 F"), (1, "290 F")]:
+        consumables.record_reading(OvenReading(oven=holding, read_at=now - timedelta(hours=hours),
+                                               temperature=parse_temperature(reading)), inspector)
+    consumables.record_reading(OvenReading(oven=rod, read_at=now - timedelta(hours=14),
+                                           temperature=parse_temperature("260 F")), inspector)
+    first, second = (FillerLot.objects.get(lot_number=n) for n in ("KW-24-0932", "KW-24-0977"))
+    consumables.record_rebake(Rebake(oven=holding, lot=first, started_at=now - timedelta(hours=50),
+                                     temperature=parse_temperature("650 F"), hours=Decimal("1.5"), quantity=12,
+                                     unit="lb"), inspector)
+    yesterday = timezone.localtime(now).replace(hour=6, minute=30, second=0, microsecond=0) - timedelta(days=1)
+    for lot, out, back in [(first, yesterday, yesterday + timedelta(hours=3, minutes=30)),
+                           (second, now - timedelta(hours=5, minutes=15), now - timedelta(hours=1))]:
+        issue = consumables.record_issue(ElectrodeIssue(oven=holding, lot=lot, welder=dana, quantity=25,
+                                                        taken_out_at=out), inspector)
+        consumables.close_issue(issue, inspector, back, holding)
 
 
 __all__ = ["PASSWORD", "accounts", "load", "parse_force", "timedelta"]

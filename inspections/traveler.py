@@ -169,6 +169,15 @@ def _photo_rows(photos, weld_marks) -> list[dict]:
     return rows
 
 
+def _exposure(weld, link) -> dict:
+    """Consumable control beside the filler lot: each issue of the lot to the weld's welders covering its date
+    (services.consumables.weld_exposures left them on the weld), and whether any flags it."""
+    covering = getattr(weld, "_exposures", [])
+    text = "; ".join(f"{j.issue.welder.stamp} from oven {j.issue.oven} "
+                     f"{timezone.localtime(j.issue.taken_out_at):%Y-%m-%d %H:%M}, {j.status}" for j in covering)
+    return {"exposure": text, "exposure_problem": bool(link.exposure)}
+
+
 def gather(assembly_pk: int) -> dict:
     """Everything one assembly's traveler prints, in words, in a fixed number of queries (see the tests).
 
@@ -257,6 +266,7 @@ def gather(assembly_pk: int) -> dict:
         }
         if weld.part1_id or weld.part2_id:  # only then: a traveler issued before parts keeps its fingerprint
             row["parts"] = " + ".join(p.mark for p in _joined(weld, chains))
+        row.update(_exposure(weld, link))
         rows.append(row)
         cap = _capacity(weld, final, system)
         if cap is not None:

@@ -2,6 +2,7 @@
 
 from django.urls import path  # noqa: F401
 
+from inspections.views import consumables as consumable_views
 from inspections.views import criteria as criteria_views
 from inspections.views import inspect as inspect_views
 from inspections.views import jobs as job_views
@@ -105,6 +106,16 @@ urlpatterns = [
     path("parts/<int:pk>/withdraw/", material_views.part_withdraw, name="part_withdraw"),
     path("welds/<int:pk>/parts/", material_views.weld_parts, name="weld_parts"),
     # end of traceability registers
+    # --- consumable control: electrode ovens and their log (inspections.views.consumables) ---
+    path("ovens/", consumable_views.oven_list, name="oven_list"),
+    path("ovens/new/", consumable_views.oven_create, name="oven_create"),
+    path("ovens/<int:pk>/", consumable_views.oven_detail, name="oven_detail"),
+    path("ovens/<int:pk>/retire/", consumable_views.oven_retire, name="oven_retire"),
+    path("ovens/<int:pk>/readings/new/", consumable_views.reading_create, name="oven_reading_create"),
+    path("ovens/<int:pk>/issues/new/", consumable_views.issue_create, name="oven_issue_create"),
+    path("ovens/<int:pk>/rebakes/new/", consumable_views.rebake_create, name="oven_rebake_create"),
+    path("electrode-issues/<int:pk>/close/", consumable_views.issue_close, name="oven_issue_close"),
+    # end of consumable control
     # --- travelers and packets ---
     path("assemblies/<int:pk>/travelers/", traveler_views.traveler_list, name="traveler_list"),
     path("assemblies/<int:pk>/travelers/issue/", traveler_views.traveler_issue, name="traveler_issue"),

@@ -340,6 +340,33 @@ class Factory:
             weld.welders.add(welder)
         return weld
 
+    # --- consumable control (tests/test_consumables.py) ---
+
+    def make_oven(self, number=None, system="US", reading="300 F", at=None):
+        """An oven of the register with one reading (at `at`, default two hours ago) unless reading=None."""
+        from datetime import timedelta
+
+        from django.utils import timezone
+
+        from inspections.models import ElectrodeOven, OvenReading
+
+        oven = ElectrodeOven(number=number or f"OV-{next(_counter):02d}", system=system, location="Bay 2 crib")
+        oven.save()
+        if reading is not None:
+            OvenReading(oven=oven, read_at=at or timezone.now() - timedelta(hours=2),
+                        temperature=parse_temperature(reading)).save()
+        return oven
+
+    def make_smaw_weld(self, assembly=None, electrode="E7018", **kwargs):
+        """A sound weld (make_sound_weld) made to an approved SMAW WPS by a welder qualified for SMAW."""
+        if getattr(self, "_smaw_wps", None) is None:
+            self._smaw_wps = self.make_wps(
+                state=WPSState.APPROVED, title="SMAW fillet, all positions", process="SMAW", electrode=electrode,
+                electrode_diameter=L("1/8 in"), current="DCEP", amperage_min=110, amperage_max=150, voltage_min=21,
+                voltage_max=25, ctwd_min=None, ctwd_max=None, shielding_gas="", single_pass_size_max=L("5/16 in"))
+        kwargs.setdefault("welders", [self.make_qualified_welder(process="SMAW")])
+        return self.make_sound_weld(assembly, wps=self._smaw_wps, **kwargs)
+
     def make_signin_pause(self, username="inspector-7", ip_address="127.0.0.1"):
         """A sign-in paused after too many wrong passwords (a django-axes attempt at the failure limit)."""
         from axes.models import AccessAttempt

@@ -19,7 +19,7 @@ ENGINES = [
     "procedures/electrode_list.py",
     "inspections/acceptance.py", "inspections/strength.py", "inspections/observations.py", "inspections/fit_up.py",
     "inspections/visual_timing.py", "core/notation.py", "core/charts.py",
-    "inspections/credentials.py", "inspections/calibration.py", "inspections/preheat.py",
+    "inspections/credentials.py", "inspections/calibration.py", "inspections/preheat.py", "inspections/consumables.py",
     "inspections/weld_symbols.py", "inspections/criteria/__init__.py", "inspections/criteria/base.py",
     "inspections/criteria/aws_d1_1_2020.py", "inspections/criteria/iso_5817_2014.py",
 ]

@@ -91,3 +91,23 @@ def test_the_demo_history_shows_a_welder_whose_reject_rate_climbs(db):
     assert rejected("B-12", middle, timezone.localdate()) >= 2 * rejected("B-12", start, middle) > 0
     assert rejected("B-07", start, timezone.localdate()) < rejected("B-12", start, timezone.localdate()) / 2
     assert NCR.objects.filter(weld__assembly__job__number="J-2405", state="open").count() == 1
+
+
+def test_the_demo_shows_consumable_control(db):
+    """demo/scenario.py _ovens: an oven's log, a lot returned within AWS D1.1 Table 7.1's 4 h (from memory) for J-2440
+    P3, and a lot out past it that blocks J-2417 P5 (unless loaded between midnight and 01:15, said there)."""
+    from django.utils import timezone
+
+    from inspections.services import consumables
+    from inspections.services.assemblies import release_blockers
+
+    call_command("load_demo", verbosity=0)
+    from inspections.traveler import gather
+
+    platform = Assembly.objects.get(job__number="J-2440", piece_mark="P3")
+    assert not any("oven" in b for b in release_blockers(platform))  # P3 waits on its WPS's date, not this
+    assert "3 h 30 min of 4 h" in gather(platform.pk)["welds"][0]["exposure"]
+    if timezone.localtime().hour >= 2:
+        clip = release_blockers(Assembly.objects.get(job__number=demo.MARKER_JOB, piece_mark="P5"))
+        assert len(clip) == 1 and "4 h 15 min out of the oven, past the limit of 4 h" in clip[0]
+    assert [r["oven"].number for r in consumables.ovens_due()] == ["RO-03"]

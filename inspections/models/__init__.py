@@ -1,5 +1,14 @@
 """Jobs, assemblies and their weld maps, inspections with photos, NCRs, client criteria sets."""
 
+from inspections.models.consumables import (
+    ElectrodeIssue,
+    ElectrodeOven,
+    IssueState,
+    OvenKind,
+    OvenReading,
+    OvenState,
+    Rebake,
+)
 from inspections.models.criteria import ClientCriteriaSet
 from inspections.models.inspection import (
     DraftPhoto,
@@ -30,3 +39,4 @@ __all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCrite
            "InspectionDraft", "InspectionStage", "InspectorCredential", "Job", "JobPacket", "PacketState", "Photo",
            "TemperatureMethod", "Traveler", "Weld", "WeldRepair"]
 __all__ += ["MaterialState", "MillCertificate", "Part", "PartRole"]  # material traceability (issue 18 item 1)
+__all__ += ["ElectrodeIssue", "ElectrodeOven", "IssueState", "OvenKind", "OvenReading", "OvenState", "Rebake"]

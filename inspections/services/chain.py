@@ -9,11 +9,14 @@ For every weld of an assembly (and each recorded repair of it), on the day it wa
 3. Inspection: an accepted current final visual (or an NCR closed as use-as-is), no NCR open
    (services.assemblies.weld_statuses); an NCR for repair closes only on a re-inspection after the repair.
 4. Hold point: where the job requires it, an accepted current fit-up inspection.
-5. Filler: the lot recorded for the weld has the WPS's classification (a lot not recorded is not a blocker yet;
-   an NCR closed as use-as-is accepts a mismatch, as for every deviation).
+5. Filler: the lot recorded for the weld has the WPS's classification (a lot not recorded blocks only where the job
+   requires lots, Job.filler_lot_required; an NCR closed as use-as-is accepts a mismatch, as for every deviation).
 6. Material (the assembly's parts, not a weld's): each part's heat meets its specified grade; where the job requires
    mill certificates, every part names a heat whose certificate is of the right type and attached
    (services.material.part_problems, inspections.material). Read into Chains.parts: one query.
+7. Consumables: for a low-hydrogen SMAW lot (of the weld or of a repair), no issue of it to the welder covering the
+   date went past its exposure limit, came from an oven below its minimum, or from a batch rebaked badly or twice
+   (services.consumables.weld_exposures; no issue recorded is not a blocker).
 
 check_assembly() answers all of it in a fixed number of queries whatever the number of welds, repairs and welders
 (tests/test_chain_queries.py pins it). Each problem is a Blocker: the words, and the page where it is put right.
@@ -29,7 +32,7 @@ from django.utils import timezone
 
 from inspections.models import FillerLot, Inspection, InspectionStage, Job, Weld, WeldRepair
 from inspections.models.ncr import NCRState
-from inspections.services import material
+from inspections.services import consumables, material
 from inspections.services.assemblies import WeldStatus, weld_statuses
 from procedures import applicability, eligibility
 from procedures.electrodes import decode
@@ -78,6 +81,7 @@ class WeldChain:
     fit_up: Inspection | None = None
     fit_up_required: bool = False
     filler: str = ""  # why the filler lot does not match the WPS ("" when it does, or none is recorded)
+    exposure: list = field(default_factory=list)  # [(problem, url)]: consumable control (services.consumables)
     blockers: list[Blocker] = field(default_factory=list)
 
     @property
@@ -229,6 +233,8 @@ def _check(items, statuses=None, assembly_ids=()) -> list[dict[int, WeldChain]]:
     held = [w.pk for job, welds in items if job.fit_up_hold_point for w in welds]
     fit_ups = _fit_ups(held) if held else {}
     lots = _filler_lots(everything)
+    # Consumable control of welds and repairs: one query when one names a low-hydrogen SMAW lot.
+    exposures = consumables.weld_exposures(everything + [r for done in repairs.values() for r in done])
 
     parts = material.parts_of(assembly_ids)  # the material link: one query
     found = []
@@ -242,9 +248,12 @@ def _check(items, statuses=None, assembly_ids=()) -> list[dict[int, WeldChain]]:
             chain = WeldChain(weld, day, wps_check(weld, weld.wps, job, day or today), checks[("weld", weld.pk)],
                               statuses[weld.pk], fit_up=fit_ups.get(weld.pk), fit_up_required=job.fit_up_hold_point,
                               filler=filler_mismatch(lots.get(weld.filler_lot_id), weld.wps)
-                              or filler_missing(weld, job))
+                              or filler_missing(weld, job),
+                              exposure=exposures.get(("Weld", weld.pk), []))
             for repair in repairs.get(weld.pk, []):
                 label = f"Weld {weld.mark} as repaired ({repair.ncr.number})"
+                chain.exposure += [(f"repair for {repair.ncr.number}: {problem}", url)
+                                   for problem, url in exposures.get(("WeldRepair", repair.pk), [])]
                 chain.repairs.append(RepairChain(repair, wps_check(weld, repair.wps, job, repair.welded_on, label),
                                                  checks[("repair", repair.pk)]))
             chain.blockers = _blockers(chain)
@@ -350,6 +359,8 @@ def _blockers(chain: WeldChain) -> list[Blocker]:
     found += _inspection_blockers(subject, chain)
     if chain.filler and not chain.status.accepted_as_is:
         found.append(Blocker(f"{subject}: {chain.filler}.", _url("inspections:weld_filler", weld.pk)))
+    if not chain.status.accepted_as_is:  # consumable control: an NCR closed as use-as-is accepts it too
+        found += [Blocker(f"{subject}: {problem}.", url) for problem, url in chain.exposure]
     if chain.fit_up_required:
         fit_up = chain.fit_up
         if fit_up is None:

@@ -213,7 +213,8 @@ def wps_not_applying(user, today) -> list[Item]:
 # --- QA lead -----------------------------------------------------------------------------------------------------
 
 def qa_lead(user, today) -> list[Section]:
-    return [_approvals(user), _ncrs(user, today), *_release(user), _welders(user, today), _registers(today)]
+    return [_approvals(user), _ncrs(user, today), *_release(user), _welders(user, today), _registers(today),
+            _consumables()]
 
 
 def _approvals(user) -> Section:
@@ -377,6 +378,26 @@ def _registers(today) -> Section:
                    help="Credentials: the expiry printed on the card and the eye examination "
                         "(inspections/credentials.py); gauges: the due date of the last calibration "
                         "(inspections/calibration.py). The gauge register lists every gauge.")
+
+
+def _consumables() -> Section:
+    """Electrode ovens in service with no reading for a shift, and electrodes still out past their exposure limit
+    (inspections.services.consumables; two queries)."""
+    from inspections.services import consumables
+
+    due = consumables.ovens_due()
+    late = consumables.open_past_limit()
+    items = [Item(f"Oven {row['oven']}: no reading for a shift", row["oven"].get_absolute_url(), since=_day(
+        row["last_at"]) if row["last_at"] else None, note="" if row["last_at"] else "never read") for row in due]
+    items += [Item(f"Lot {j.issue.lot.lot_number} with {j.issue.welder.stamp}, {j.status}",
+                   consumables.issue_url(j.issue), overdue=True, word="past its limit",
+                   note=f"from oven {j.issue.oven} since {timezone.localtime(j.issue.taken_out_at):%H:%M}")
+              for j in late]
+    return Section("consumables", "Electrode ovens and electrodes out", items[:SHOWN], total=len(items),
+                   all_url=reverse("inspections:oven_list"), empty="Every oven read this shift; nothing out past its "
+                                                                   "limit.",
+                   help="A reading every shift (12 h: common practice, no source); exposure limits AWS "
+                        "D1.1/D1.1M:2020 Table 7.1 (from memory).")
 
 
 # --- viewer ------------------------------------------------------------------------------------------------------

@@ -157,6 +157,16 @@ def test_a_bad_rule_is_refused_beside_its_field_and_changes_nothing(big_job, cli
     assert words.lower() in " ".join(response.context["rule_form"].errors[field]).lower()
 
 
+def test_typed_piece_marks_match_whatever_their_case(big_job, client_as):
+    """Piece marks are unique in a job whatever their case (AssemblyForm.clean_piece_mark), so "b1" typed on a
+    tablet is B1, not a mark the job lacks; a mark typed twice in two cases counts once."""
+    job, marks = big_job
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]),
+                                         {"rule": "marks", "marks": "c3 b1 B1"})
+    assert response.status_code == 302
+    assert JobPacket.objects.get().assembly_pks == [marks["B1"].pk, marks["C3"].pk]
+
+
 def test_a_packet_over_the_limit_is_refused_with_the_way_out(big_job, client_as, monkeypatch):
     job, _marks = big_job
     monkeypatch.setattr(packets, "MAX_ASSEMBLIES", 2)

@@ -167,6 +167,17 @@ def test_typed_piece_marks_match_whatever_their_case(big_job, client_as):
     assert JobPacket.objects.get().assembly_pks == [marks["B1"].pk, marks["C3"].pk]
 
 
+def test_a_rule_refused_on_a_job_now_small_says_why(make, client_as):
+    """A rule posted from a page left open while the job shrank to checkboxes (or typed by hand): the page shows
+    the checkboxes, and the refusal above them rather than nowhere."""
+    job = make.make_job()
+    make.make_assembly(job, piece_mark="B1")
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]),
+                                         {"rule": "marks", "marks": "Z9"})
+    assert response.status_code == 400 and not JobPacket.objects.exists()
+    assert "Not on job" in response.content.decode() and 'name="assemblies"' in response.content.decode()
+
+
 def test_a_packet_over_the_limit_is_refused_with_the_way_out(big_job, client_as, monkeypatch):
     job, _marks = big_job
     monkeypatch.setattr(packets, "MAX_ASSEMBLIES", 2)

@@ -3,6 +3,8 @@ fields for speed, inspections.services.weldmap_csv._row_form). A leak between ro
 values, ISO leg or flags on another -- shows as a difference between the row read alone and read in a mixed file."""
 
 import pytest
+from django.core.files.uploadedfile import SimpleUploadedFile
+from django.urls import reverse
 
 from inspections.services import weldmap_csv
 from inspections.services.weldmap_csv import read_weld_map
@@ -38,7 +40,7 @@ ISO_ROWS = [
 
 def _result(row):
     cleaned = dict(row.cleaned or {})
-    return row.errors, cleaned, row.wps and row.wps.number, row.process
+    return row.errors, cleaned, row.wps and row.wps.number, row.process, row.flags
 
 
 def _alone_and_together(header, rows, job):
@@ -93,6 +95,7 @@ def test_one_rows_errors_do_not_appear_on_the_next(aws_job):
     assert by_mark[("B1", "W5")].errors == [] and by_mark[("B1", "W5")].cleaned["size2"] is None
     assert by_mark[("B1", "W7")].errors == [] and by_mark[("B1", "W7")].wps.number == "BSW-501"
     assert by_mark[("C2", "W3")].errors == []
+    assert by_mark[("B1", "W9")].flags and not by_mark[("C2", "W1")].flags and not by_mark[("B1", "W1")].flags
     assert {e.split(":")[0] for e in by_mark[("B1", "W8")].errors} >= {"length", "count", "sides", "thickness1",
                                                                         "position"}
     # the cleaned values are each row's own dict, not one shared and overwritten
@@ -107,3 +110,17 @@ def test_the_import_writes_each_rows_own_values(iso_job):
     assert [by_mark[m].size_on_drawing for m in ("N1", "N2", "N3")] == [False, True, False]
     assert [str(by_mark[m].length) for m in ("N1", "N2", "N3")] != [str(by_mark["N1"].length)] * 3
     assert len({id(w) for w in welds}) == 3
+
+
+def test_the_preview_flags_a_fillet_under_the_cyclic_minimum_on_that_row_only(aws_job, client_as):
+    """The weld page flags a fillet under the cyclic minimum, 3/16 in (procedures.prequalified.SOURCE_CYCLIC_FILLET:
+    AWS D1.1/D1.1M:2020 clause 4 Part C, from memory); the import's preview says the same of that row only, and the
+    rows still import (a flag asks the engineer of record, it does not refuse)."""
+    text = AWS_HEADER + "\nB1,W1,fillet,1/8,,12,1,arrow,3/8,1/2,F,\nB1,W2,fillet,1/2,,12,1,arrow,3/8,1/2,F,\n"
+    preview = read_weld_map(text.encode(), aws_job)
+    assert preview.ok
+    small, big = preview.rows
+    assert len(small.flags) == 1 and "cyclically loaded" in small.flags[0] and big.flags == []
+    page = client_as("welding_engineer").post(reverse("inspections:weldmap_import", args=[aws_job.pk]),
+                                     {"file": SimpleUploadedFile("map.csv", text.encode(), "text/csv")})
+    assert "cyclically loaded" in page.content.decode()

@@ -227,7 +227,7 @@ def record_weld_filler(weld: Weld, lot: FillerLot, user) -> Weld:
 # --- recall: what a lot, a gauge or an inspector touched -----------------------------------------------------------
 
 RECALL_COLUMNS = {"customer": "Customer", "job": "Job", "assembly": "Assembly", "assembly_state": "Assembly state",
-                  "weld": "Weld", "welded_on": "Welded on", "repaired_on": "Repaired with the lot on",
+                  "weld": "Weld", "welded_on": "Welded on", "repaired_on": "Repaired on",
                   "inspection": "Inspection", "stage": "Stage",
                   "verdict": "Verdict", "inspector": "Inspector"}
 

@@ -124,3 +124,9 @@ def test_the_preview_flags_a_fillet_under_the_cyclic_minimum_on_that_row_only(aw
     page = client_as("welding_engineer").post(reverse("inspections:weldmap_import", args=[aws_job.pk]),
                                      {"file": SimpleUploadedFile("map.csv", text.encode(), "text/csv")})
     assert "cyclically loaded" in page.content.decode()
+
+
+def test_two_rows_without_a_weld_mark_each_say_it_is_missing(aws_job):
+    text = AWS_HEADER + "\nB1,,fillet,1/4,,12,1,arrow,3/8,1/2,F,\nB1, ,fillet,1/4,,12,1,arrow,3/8,1/2,F,\n"
+    first, second = read_weld_map(text.encode(), aws_job).rows
+    assert first.errors == second.errors == ["weld_mark: empty."]

@@ -223,6 +223,9 @@ def read_weld_map(data: bytes, job) -> Preview:
             row.errors.append(f"piece_mark: {piece} is {row.assembly.get_state_display().lower()}; its weld map is "
                               "frozen.")
             continue
+        if not values["weld_mark"]:  # before the duplicate check: two blank marks are each missing, not a pair
+            row.errors.append("weld_mark: empty.")
+            continue
         key = (piece.lower(), values["weld_mark"].lower())
         if key in existing:
             row.errors.append(f"weld_mark: {piece} already has weld {values['weld_mark']}.")

@@ -22,6 +22,7 @@ from pathlib import Path
 
 from django.core.files import File
 from django.db import transaction
+from django.db.models.functions import Lower
 from django.utils import timezone
 from django_tasks import task
 
@@ -53,13 +54,17 @@ def choose_assemblies(job, rule: str, state: str = "", marks: str = "") -> list[
             raise Refused({"state": ["Choose a state."]}, code="choice")
         rows = rows.filter(state=state)
     elif rule == BY_MARKS:
-        wanted = list(dict.fromkeys(m for m in marks.replace(",", " ").split() if m))
+        # piece marks are unique in a job whatever their case (AssemblyForm.clean_piece_mark): "b1" typed is B1
+        typed = {}
+        for mark in marks.replace(",", " ").split():
+            typed.setdefault(mark.lower(), mark)
+        wanted = list(typed)
         if not wanted:
             raise Refused({"marks": ["Type the piece marks, separated by commas, spaces or lines."]}, code="choice")
         if len(wanted) > MAX_ASSEMBLIES:
             raise Refused({"marks": [f"At most {MAX_ASSEMBLIES:,} piece marks in one packet."]}, code="choice")
-        found = dict(rows.filter(piece_mark__in=wanted).values_list("piece_mark", "pk"))
-        unknown = [m for m in wanted if m not in found]
+        found = dict(rows.annotate(mark=Lower("piece_mark")).filter(mark__in=wanted).values_list("mark", "pk"))
+        unknown = [typed[m] for m in wanted if m not in found]
         if unknown:
             more = f" and {len(unknown) - 5} more" if len(unknown) > 5 else ""
             raise Refused({"marks": [f"Not on job {job.number}: {', '.join(unknown[:5])}{more}."]}, code="choice")

@@ -159,6 +159,19 @@ def test_the_repair_names_its_filler_lot_of_the_wps_classification(client_as, ma
     assert [row["weld"] for row in trace.recall("lot", right)] == [ncr.weld.mark]
 
 
+def test_a_lot_received_after_the_repair_date_is_refused(users, make, ncr):
+    # A lot cannot have been welded with before the shop received it (common practice, no source): edge at the date.
+    def record(lot):
+        return record_repair(NCR.objects.get(pk=ncr.pk), users["inspector"], wps=ncr.repair_wps,
+                             welders=[ncr.repair_welder], welded_on=TODAY, filler_lot=lot)
+
+    with pytest.raises(Refused) as refused:
+        record(make.make_filler_lot("E71T-1C", received_on=TODAY + timedelta(days=1)))
+    assert "received on" in refused.value.message_dict["filler_lot"][0]
+    assert not WeldRepair.objects.exists()
+    assert record(make.make_filler_lot("E71T-1C", received_on=TODAY)).filler_lot.received_on == TODAY
+
+
 def test_a_job_that_requires_lots_requires_the_repairs_lot(users, ncr):
     job = ncr.weld.assembly.job
     job.filler_lot_required = True

@@ -73,6 +73,17 @@ def test_a_job_that_requires_a_gauge_refuses_a_final_visual_without_one(make, cl
     assert signed.status_code == 302
 
 
+def test_the_gauge_field_does_not_say_optional_where_the_job_requires_it(make):
+    from inspections.forms.inspect import InspectionForm
+
+    required = InspectionForm(weld=make.make_sound_weld(make.make_assembly(make.make_job(gauge_required=True))))
+    assert "Optional" not in required.fields["gauge"].help_text
+    assert "requires" in required.fields["gauge"].help_text
+    optional = InspectionForm(weld=make.make_sound_weld())
+    assert "Optional" in optional.fields["gauge"].help_text
+    assert InspectionForm.base_fields["gauge"].help_text == optional.fields["gauge"].help_text  # not changed for all
+
+
 def test_found_out_of_tolerance_lists_what_was_measured_since_the_last_good_calibration(make, users):
     gauge = make.make_gauge(calibrated_on=today() - timedelta(days=10))
     cleared = make.make_inspection(gauge=gauge)  # under the first calibration, which the second one confirms

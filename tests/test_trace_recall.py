@@ -68,3 +68,30 @@ def test_the_form_says_what_is_missing(make, client_as):
     errors = response.context["form"].errors
     assert response.status_code == 400 and "Choose which one" in str(errors["gauge"]) and "date_to" in errors
 
+
+
+def test_a_lot_recall_says_which_weld_was_repaired_with_it_and_when(make, users, client_as):
+    """A weld made with another lot but repaired with this one is recalled by the repair's date, and its row says
+    so: its own date alone would read as if it were welded with the lot, outside the dates asked."""
+    from inspections.models import NCR
+    from inspections.services.ncr import disposition_repair
+    from inspections.services.repairs import record_repair
+
+    today = timezone.localdate()
+    lot = make.make_filler_lot("E71T-1C")
+    made = lot_welds(make, users, lot, 1)[0]
+    weld = make.make_sound_weld(welded_on=today - timedelta(days=30))
+    ncr = make.make_inspection(weld, accepted=False).ncrs.get()
+    disposition_repair(ncr, users["qa_lead"], weld.wps, weld.welders.get(), "Grind out and re-weld")
+    record_repair(NCR.objects.get(pk=ncr.pk), users["inspector"], wps=weld.wps, welders=[weld.welders.get()],
+                  welded_on=today, filler_lot=lot)
+    rows = {r["weld"]: r for r in trace.recall("lot", lot, today, today)}
+    assert rows[weld.mark]["welded_on"] == (today - timedelta(days=30)).isoformat()
+    assert rows[weld.mark]["repaired_on"] == today.isoformat()
+    assert rows[made.mark]["repaired_on"] == ""
+    assert "repaired_on" in trace.RECALL_COLUMNS
+    page = client_as("qa_lead").get(reverse("inspections:recall") + f"?kind=lot&lot={lot.pk}").content.decode()
+    assert "Repaired on" in page and "or repaired with it" in page
+    assert page.count(f"<td>{today.isoformat()}</td>") == 2  # the made weld's date, the repaired weld's repair date
+    csv_lines = client_as("qa_lead").get(reverse("inspections:recall_csv") + f"?kind=lot&lot={lot.pk}").content
+    assert b"Repaired on" in csv_lines.splitlines()[0]

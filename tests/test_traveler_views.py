@@ -148,13 +148,44 @@ def test_a_big_job_is_packed_by_rule_and_its_page_weighs_the_same(big_job, make,
     ({"rule": "state", "state": ""}, "state", "Choose a state"),
     ({"rule": "state", "state": "scrapped"}, "rule", "No assembly"),
     ({"rule": "every"}, "rule", "Select a valid choice"),
-    ({"rule": "marks", "marks": "B1 " * 20_000}, "marks", "at most 40000"),
+    ({"rule": "marks", "marks": "B1 " * 30_000}, "marks", "at most 64000"),
 ])
 def test_a_bad_rule_is_refused_beside_its_field_and_changes_nothing(big_job, client_as, data, field, words):
     job, _marks = big_job
     response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]), data)
     assert response.status_code == 400 and not JobPacket.objects.exists()
     assert words.lower() in " ".join(response.context["rule_form"].errors[field]).lower()
+
+
+def test_typed_piece_marks_match_whatever_their_case(big_job, client_as):
+    """Piece marks are unique in a job whatever their case (AssemblyForm.clean_piece_mark), so "b1" typed on a
+    tablet is B1, not a mark the job lacks; a mark typed twice in two cases counts once."""
+    job, marks = big_job
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]),
+                                         {"rule": "marks", "marks": "c3 b1 B1"})
+    assert response.status_code == 302
+    assert JobPacket.objects.get().assembly_pks == [marks["B1"].pk, marks["C3"].pk]
+
+
+def test_a_rule_refused_on_a_job_now_small_says_why(make, client_as):
+    """A rule posted from a page left open while the job shrank to checkboxes (or typed by hand): the page shows
+    the checkboxes, and the refusal above them rather than nowhere."""
+    job = make.make_job()
+    make.make_assembly(job, piece_mark="B1")
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]),
+                                         {"rule": "marks", "marks": "Z9"})
+    assert response.status_code == 400 and not JobPacket.objects.exists()
+    assert "Not on job" in response.content.decode() and 'name="assemblies"' in response.content.decode()
+
+
+def test_the_most_piece_marks_a_packet_holds_fit_the_field(big_job, client_as):
+    """A packet holds 2,000 assemblies (packets.MAX_ASSEMBLIES) and a piece mark up to 30 characters: that many
+    longest marks, comma and space between, fit in the field; the answer names the marks, not the field's length."""
+    job, _marks = big_job
+    marks = ", ".join(f"{i:04d}".rjust(30, "X") for i in range(packets.MAX_ASSEMBLIES))
+    response = client_as("qa_lead").post(reverse("inspections:packet_start", args=[job.pk]),
+                                         {"rule": "marks", "marks": marks})
+    assert response.status_code == 400 and "Not on job" in " ".join(response.context["rule_form"].errors["marks"])
 
 
 def test_a_packet_over_the_limit_is_refused_with_the_way_out(big_job, client_as, monkeypatch):

@@ -137,6 +137,9 @@ class InspectionForm(forms.ModelForm):
                                                    else "e.g. 65"})
         self.fields["gauge"].widget.choices = [("", "— none —")] + [
             (str(g.pk), f"{g.number} · {g.get_kind_display()}") for g in trace.usable_gauges(timezone.localdate())]
+        if weld.assembly.job.gauge_required:  # the job's switch: not optional at the final visual
+            self.fields["gauge"].help_text = ("From the gauge register: only gauges in calibration today are "
+                                              "offered. This job requires the gauge used at the final visual.")
         self.fields["stage"].widget = forms.RadioSelect(choices=InspectionStage.choices, attrs={"class": "btn-check"})
         self.batch = list(batch)
         if self.batch:

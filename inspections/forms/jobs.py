@@ -488,7 +488,8 @@ class PacketRuleForm(forms.Form):
         ("marks", "The piece marks typed below")])
     state = forms.ChoiceField(label="State", required=False,
                               choices=[("", "—")] + list(AssemblyState.choices))
-    marks = forms.CharField(label="Piece marks", required=False, max_length=40_000,
+    # the most a packet holds (packets.MAX_ASSEMBLIES, 2,000) of the longest piece marks (30) with ", " between
+    marks = forms.CharField(label="Piece marks", required=False, max_length=2000 * (30 + 2),
                             widget=forms.Textarea(attrs={"rows": 3, "placeholder": "e.g. B101, B102, C7"}),
                             help_text="Separated by commas, spaces or lines.")
 

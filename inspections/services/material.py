@@ -166,7 +166,7 @@ def recall_heat(heat: MillCertificate, start=None, end=None) -> list[dict]:
             "mark", "state", "assembly_id"):
         rows.append({"customer": customer, "job": job, "assembly": mark, "assembly_state": states.get(state, state),
                      "part": part + (" (withdrawn)" if withdrawn != MaterialState.ON_FILE else ""), "weld": "",
-                     "welded_on": "", "inspection": "", "stage": "", "verdict": "", "inspector": "",
+                     "welded_on": "", "repaired_on": "", "inspection": "", "stage": "", "verdict": "", "inspector": "",
                      "url": f"{assembly_url}{assembly_id}/parts/"})
     welds = Weld.objects.filter(Q(part1__heat=heat) | Q(part2__heat=heat))
     if start:
@@ -179,7 +179,8 @@ def recall_heat(heat: MillCertificate, start=None, end=None) -> list[dict]:
             "mark", "welded_on", "pk", "part1__mark", "part2__mark"):
         rows.append({"customer": customer, "job": job, "assembly": mark, "assembly_state": states.get(state, state),
                      "part": " + ".join(p for p in (p1, p2) if p), "weld": weld,
-                     "welded_on": welded_on.isoformat() if welded_on else "", "inspection": "", "stage": "",
+                     "welded_on": welded_on.isoformat() if welded_on else "", "repaired_on": "", "inspection": "",
+                     "stage": "",
                      "verdict": "", "inspector": "", "url": f"{weld_url}{pk}/"})
     return rows
 

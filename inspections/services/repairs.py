@@ -38,6 +38,10 @@ def repair_problems(ncr, wps, welders, welded_on, filler_lot=None) -> dict[str, 
                                   "welded with."]
     elif wps is not None and (mismatch := chain.filler_mismatch(filler_lot, wps)):
         problems["filler_lot"] = [mismatch[0].upper() + mismatch[1:] + "."]
+    elif filler_lot is not None and isinstance(welded_on, date) and filler_lot.received_on > welded_on:
+        # a lot is not welded with before the shop has it (common practice, no source)
+        problems["filler_lot"] = [f"Lot {filler_lot.lot_number} was received on "
+                                  f"{filler_lot.received_on.isoformat()}, after the repair date."]
     if not isinstance(welded_on, date):
         problems["welded_on"] = ["Give the date the repair was welded."]
     elif welded_on > timezone.localdate():

@@ -7,7 +7,7 @@ signed inspection names the credential it was signed under, printed beside the i
 """
 
 from django.db import transaction
-from django.db.models import Q
+from django.db.models import OuterRef, Q, Subquery
 from django.urls import reverse
 from django.utils import timezone
 
@@ -227,7 +227,8 @@ def record_weld_filler(weld: Weld, lot: FillerLot, user) -> Weld:
 # --- recall: what a lot, a gauge or an inspector touched -----------------------------------------------------------
 
 RECALL_COLUMNS = {"customer": "Customer", "job": "Job", "assembly": "Assembly", "assembly_state": "Assembly state",
-                  "weld": "Weld", "welded_on": "Welded on", "inspection": "Inspection", "stage": "Stage",
+                  "weld": "Weld", "welded_on": "Welded on", "repaired_on": "Repaired on",
+                  "inspection": "Inspection", "stage": "Stage",
                   "verdict": "Verdict", "inspector": "Inspector"}
 
 
@@ -244,12 +245,13 @@ def recall(kind: str, subject, start=None, end=None) -> list[dict]:
         from inspections.services.material import recall_heat
 
         return recall_heat(subject, start, end)
-    if kind == "lot":  # the welds made with it, and the welds whose repair was (by the repair's date)
-        repaired = _between(WeldRepair.objects.filter(filler_lot=subject), "welded_on", start, end).values("weld")
+    if kind == "lot":  # the welds made with it, and the welds whose repair was (by the repair's date, said)
+        repairs = _between(WeldRepair.objects.filter(filler_lot=subject), "welded_on", start, end)
         rows = Weld.objects.filter(Q(pk__in=_between(Weld.objects.filter(filler_lot=subject), "welded_on", start,
-                                                     end).values("pk")) | Q(pk__in=repaired))
+                                                     end).values("pk")) | Q(pk__in=repairs.values("weld")))
         prefix = ""
-        rows = rows.order_by("welded_on", "pk")
+        rows = rows.annotate(repaired_on=Subquery(repairs.filter(weld=OuterRef("pk")).order_by("-welded_on")
+                                                  .values("welded_on")[:1])).order_by("welded_on", "pk")
     elif kind in ("gauge", "inspector"):
         rows = _between(Inspection.objects.filter(**({"gauge_calibration__gauge": subject} if kind == "gauge"
                                                      else {"inspector": subject})), "inspected_at__date", start, end)
@@ -261,6 +263,8 @@ def recall(kind: str, subject, start=None, end=None) -> list[dict]:
              "assembly": "assembly__piece_mark", "state": "assembly__state", "weld": "mark", "welded_on": "welded_on",
              "weld_id": "id"}
     fields = {key: prefix + path for key, path in names.items()}
+    if not prefix:
+        fields["repaired_on"] = "repaired_on"
     if prefix:
         fields.update(inspection_id="id", inspected_at="inspected_at", stage="stage", accepted="accepted",
                       first="inspector__first_name", last="inspector__last_name", username="inspector__username")
@@ -276,6 +280,7 @@ def recall(kind: str, subject, start=None, end=None) -> list[dict]:
             "customer": value["customer"], "job": value["job"], "assembly": value["assembly"],
             "assembly_state": states.get(value["state"], value["state"]), "weld": value["weld"],
             "welded_on": value["welded_on"].isoformat() if value["welded_on"] else "",
+            "repaired_on": value["repaired_on"].isoformat() if value.get("repaired_on") else "",
             "inspection": timezone.localtime(value["inspected_at"]).strftime("%Y-%m-%d %H:%M") if signed else "",
             "stage": stages.get(value.get("stage"), "") if signed else "",
             "verdict": ("accepted" if value["accepted"] else "rejected") if signed else "",

@@ -54,6 +54,7 @@ class Row:
     wps: WPS | None = None
     cleaned: dict | None = None
     process: str = ""
+    flags: list = field(default_factory=list)  # what the weld page would flag (inspections.services.flags)
 
 
 @dataclass
@@ -73,6 +74,11 @@ class Preview:
     def shown_bad_rows(self):
         """The rows with problems a preview page lists (the first SHOWN_BAD; the count says how many more)."""
         return self.bad_rows[:SHOWN_BAD]
+
+    @property
+    def shown_flagged_rows(self):
+        """The rows a flag asks the engineer of record about (the first SHOWN_BAD): they import all the same."""
+        return [r for r in self.rows if r.flags][:SHOWN_BAD]
 
     @property
     def summary(self):
@@ -217,6 +223,9 @@ def read_weld_map(data: bytes, job) -> Preview:
             row.errors.append(f"piece_mark: {piece} is {row.assembly.get_state_display().lower()}; its weld map is "
                               "frozen.")
             continue
+        if not values["weld_mark"]:  # before the duplicate check: two blank marks are each missing, not a pair
+            row.errors.append("weld_mark: empty.")
+            continue
         key = (piece.lower(), values["weld_mark"].lower())
         if key in existing:
             row.errors.append(f"weld_mark: {piece} already has weld {values['weld_mark']}.")
@@ -238,7 +247,7 @@ def read_weld_map(data: bytes, job) -> Preview:
         prototype = prototype or _RowForm(data={}, assembly=row.assembly)
         form = _row_form(prototype, data, row.assembly)
         if form.is_valid():
-            row.cleaned = form.cleaned_data
+            row.cleaned, row.flags = form.cleaned_data, list(form.flags)
             if row.wps is not None:
                 # The same check as the weld form: approved now (the file has no weld dates) and covering the weld.
                 weld = Weld(assembly=row.assembly, process=row.process, **row.cleaned)

@@ -101,6 +101,9 @@ def _packet_page(request, job, errors=None, chosen=None, status=200, rule_form=N
         assemblies = list(job.assemblies.only("pk", "piece_mark", "state", "job_id")
                           .annotate(traveler_number=Subquery(latest)).order_by("piece_mark"))
         rows = [(a, {"document_number": a.traveler_number} if a.traveler_number else None) for a in assemblies]
+        if rule_form is not None:  # a rule refused on a job now small (a page left open): its errors above the boxes
+            errors = [*(errors or []), *(e for found in rule_form.errors.values() for e in found)]
+            rule_form = None
     return render(request, "inspections/packet_list.html", {
         "job": job, "rows": rows, "errors": errors or [], "total": total,
         "rule_form": rule_form or (PacketRuleForm(counts=counts) if total > CHECKBOXES else None),

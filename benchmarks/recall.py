@@ -1,14 +1,15 @@
 """Benchmark (not a test): the recall of a filler lot, and of a heat of steel, among 100,000 welds; their query counts.
 
-    .venv/bin/python benchmarks/recall.py [--welds 100000] [--share 10] [--runs 5]
+    .venv/bin/python benchmarks/recall.py [--welds 100000] [--share 10] [--runs 5] [--db sqlite|postgresql]
 
-Builds a throwaway SQLite database in a temporary directory, seeds --welds invented welds (bulk inserts: 100
-assemblies per job, 10 welds per assembly, welded over the last 200 days), one filler lot on every --share-th weld
-and another lot on the rest, then times inspections.services.trace.recall for the first lot: all dates, and the
-last 30 days. Prints the median and slowest of --runs runs, the rows found and the queries (one: fixed whatever the
-number, tests/test_trace_recall.py pins it). Each assembly has one part, cut from the recalled heat on every
---share-th assembly, and every weld names it: the heat's recall (its parts and their welds: two queries,
-tests/test_material.py) is timed the same way. The load average is printed.
+Builds a throwaway database (SQLite in a temporary directory, or PostgreSQL on 127.0.0.1:5432, dropped at the end),
+seeds --welds invented welds (bulk inserts: 100 assemblies per job, 10 welds per assembly, welded over the last 200
+days), one filler lot on every --share-th weld and another lot on the rest, then times
+inspections.services.trace.recall for the first lot: all dates, and the last 30 days. Prints the median and slowest
+of --runs runs, the rows found and the queries (one: fixed whatever the number, tests/test_trace_recall.py pins it).
+Each assembly has one part, cut from the recalled heat on every --share-th assembly, and every weld names it: the
+heat's recall (its parts and their welds: two queries, tests/test_material.py) is timed the same way. The load
+average is printed.
 """
 
 import argparse
@@ -29,24 +30,32 @@ def main():
     parser.add_argument("--welds", type=int, default=100_000)
     parser.add_argument("--share", type=int, default=10)
     parser.add_argument("--runs", type=int, default=5)
+    parser.add_argument("--db", choices=["sqlite", "postgresql"], default="sqlite",
+                        help="postgresql: a throwaway database on 127.0.0.1:5432, dropped at the end")
     args = parser.parse_args()
     if not (1 <= args.welds <= 200_000 and 1 <= args.share <= 1000 and 1 <= args.runs <= 20):
         raise SystemExit("keep it bounded: --welds 1..200000, --share 1..1000, --runs 1..20")
     folder = Path(tempfile.mkdtemp(prefix="legwork-bench-recall-"))
     sys.path.insert(0, str(ROOT))
-    from benchmarks.release_chain import throwaway_sqlite
+    from benchmarks.release_chain import drop_postgresql, throwaway_postgresql, throwaway_sqlite
 
+    name = "legwork_bench_recall"
     try:
-        throwaway_sqlite(folder)
+        if args.db == "postgresql":
+            throwaway_postgresql(folder, name)
+        else:
+            throwaway_sqlite(folder)
         start = time.perf_counter()
         lot, heat = _seed(args.welds, args.share)
-        print(f"seeded {args.welds:,} welds in {time.perf_counter() - start:.0f} s; load average "
+        print(f"{args.db}: seeded {args.welds:,} welds in {time.perf_counter() - start:.0f} s; load average "
               f"{os.getloadavg()[0]:.2f}; {args.runs} runs each")
         print(_measure(lot, args.runs, days=None))
         print(_measure(lot, args.runs, days=30))
         print(_measure(heat, args.runs, days=None, kind="heat"))
         print(_measure(heat, args.runs, days=30, kind="heat"))
     finally:
+        if args.db == "postgresql":
+            drop_postgresql(name)
         shutil.rmtree(folder, ignore_errors=True)
 
 

@@ -36,9 +36,35 @@ def main():
         shutil.rmtree(folder, ignore_errors=True)
 
 
-def throwaway_sqlite(folder: Path) -> None:
+PG_ADMIN = "postgresql://postgres@127.0.0.1:5432/postgres"
+
+
+def throwaway_postgresql(folder: Path, name: str) -> None:
+    """As throwaway_sqlite, on a new PostgreSQL database `name` on 127.0.0.1:5432 (dropped first if left over);
+    drop_postgresql(name) removes it at the end."""
+    import psycopg
+
+    with psycopg.connect(PG_ADMIN, autocommit=True) as conn:
+        conn.execute(f"DROP DATABASE IF EXISTS {name} WITH (FORCE)")
+        conn.execute(f"CREATE DATABASE {name}")
+    os.environ["DATABASE_URL"] = f"postgres://postgres@127.0.0.1:5432/{name}"
+    throwaway_sqlite(folder, keep_url=True)
+
+
+def drop_postgresql(name: str) -> None:
+    import psycopg
+    from django.db import connections
+
+    connections.close_all()
+    with psycopg.connect(PG_ADMIN, autocommit=True) as conn:
+        conn.execute(f"DROP DATABASE IF EXISTS {name} WITH (FORCE)")
+
+
+def throwaway_sqlite(folder: Path, keep_url: bool = False) -> None:
     """Point Django at a new SQLite database in `folder` (settings from the environment), set it up and migrate.
-    Shared by the in-process benchmarks (this one, recall.py)."""
+    Shared by the in-process benchmarks (this one, recall.py). keep_url: a DATABASE_URL set by the caller stays."""
+    if not keep_url:
+        os.environ.pop("DATABASE_URL", None)
     os.environ.update({
         "DJANGO_SETTINGS_MODULE": "legwork.settings", "LEGWORK_VAR_DIR": str(folder),
         "LEGWORK_SQLITE_PATH": str(folder / "bench.sqlite3"), "LEGWORK_MEDIA_ROOT": str(folder / "media"),

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import hashlib
 import logging
+import re
 import shutil
 import tempfile
 from dataclasses import dataclass
@@ -54,16 +55,23 @@ def choose_assemblies(job, rule: str, state: str = "", marks: str = "") -> list[
             raise Refused({"state": ["Choose a state."]}, code="choice")
         rows = rows.filter(state=state)
     elif rule == BY_MARKS:
-        # piece marks are unique in a job whatever their case (AssemblyForm.clean_piece_mark): "b1" typed is B1
-        typed = {}
-        for mark in marks.replace(",", " ").split():
-            typed.setdefault(mark.lower(), mark)
-        wanted = list(typed)
-        if not wanted:
+        # piece marks are unique in a job whatever their case (AssemblyForm.clean_piece_mark): "b1" typed is B1.
+        # Commas, semicolons and lines separate marks; spaces too, unless the job has a mark with that space in it
+        # ("B 101"): both readings are looked up in one query.
+        tokens = [" ".join(t.split()) for t in re.split(r"[,;\n]", marks) if t.strip()]
+        if not tokens:
             raise Refused({"marks": ["Type the piece marks, separated by commas, spaces or lines."]}, code="choice")
+        if len(tokens) > MAX_ASSEMBLIES:
+            raise Refused({"marks": [f"At most {MAX_ASSEMBLIES:,} piece marks in one packet."]}, code="choice")
+        candidates = {t.lower() for t in tokens} | {w.lower() for t in tokens for w in t.split()}
+        found = dict(rows.annotate(mark=Lower("piece_mark")).filter(mark__in=candidates).values_list("mark", "pk"))
+        typed = {}
+        for token in tokens:
+            for mark in [token] if token.lower() in found else token.split():
+                typed.setdefault(mark.lower(), mark)
+        wanted = list(typed)
         if len(wanted) > MAX_ASSEMBLIES:
             raise Refused({"marks": [f"At most {MAX_ASSEMBLIES:,} piece marks in one packet."]}, code="choice")
-        found = dict(rows.annotate(mark=Lower("piece_mark")).filter(mark__in=wanted).values_list("mark", "pk"))
         unknown = [typed[m] for m in wanted if m not in found]
         if unknown:
             more = f" and {len(unknown) - 5} more" if len(unknown) > 5 else ""
@@ -94,7 +102,11 @@ def start_packet(job, assembly_pks, user) -> JobPacket:
     order = {pk: mark for pk, mark in Assembly.objects.filter(pk__in=wanted).values_list("pk", "piece_mark")}
     wanted.sort(key=lambda pk: order[pk])
     with transaction.atomic():
-        number = next_in_job(job, JobPacket.objects.filter(job=job))
+        number = next_in_job(job, JobPacket.objects.filter(job=job))  # locks the job row: one request at a time
+        waiting = [p for p in JobPacket.objects.filter(job=job, state__in=[PacketState.QUEUED, PacketState.RUNNING])
+                   if list(p.assembly_pks) == wanted]
+        if waiting:  # "Build packet" pressed twice: the packet already on its way, not a second one
+            return waiting[0]
         packet = JobPacket(job=job, document_number=f"PKT-{job.number}-{number:03d}-{timezone.now():%Y%m%d%H%M%S}",
                            assembly_pks=wanted, requested_by=user)
         packet.save(user=user)

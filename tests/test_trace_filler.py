@@ -48,6 +48,22 @@ def test_a_job_that_requires_lots_blocks_a_weld_without_one(make, users):
     assert release_blockers(Assembly.objects.get(pk=weld.assembly_id)) == []
 
 
+def test_a_lot_received_after_the_weld_date_is_refused_beside_the_field(make, users, client_as):
+    # a lot is not welded with before the shop has it (common practice, no source); the same day is fine
+    from datetime import timedelta
+
+    from core.errors import Refused
+
+    weld = make.make_sound_weld()
+    late = make.make_filler_lot(received_on=weld.welded_on + timedelta(days=1))
+    with pytest.raises(Refused, match="after the weld date"):
+        trace.record_weld_filler(weld, late, users["inspector"])
+    response = client_as("inspector").post(reverse("inspections:weld_filler", args=[weld.pk]), {"lot": late.pk})
+    assert response.status_code == 400 and "after the weld date" in " ".join(response.context["form"].errors["lot"])
+    same_day = make.make_filler_lot(received_on=weld.welded_on)
+    assert trace.record_weld_filler(weld, same_day, users["inspector"]).filler_lot == same_day
+
+
 def test_the_lot_freezes_with_the_weld_at_its_final_visual(make, users, client_as):
     weld = make.make_sound_weld()
     make.make_inspection(weld)

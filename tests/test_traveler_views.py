@@ -196,6 +196,34 @@ def test_a_packet_over_the_limit_is_refused_with_the_way_out(big_job, client_as,
     assert not JobPacket.objects.exists()
 
 
+def test_piece_marks_with_a_space_are_read_whole_or_split(big_job, make, client_as):
+    job, marks = big_job
+    spaced = make.make_assembly(job, piece_mark="B 101")
+    client = client_as("qa_lead")
+    client.post(reverse("inspections:packet_start", args=[job.pk]), {"rule": "marks", "marks": "b 101\nB1 C3"})
+    assert JobPacket.objects.get().assembly_pks == [spaced.pk, marks["B1"].pk, marks["C3"].pk]
+
+
+def test_a_job_past_the_packet_limit_offers_one_state_first(big_job, client_as, monkeypatch):
+    job, _marks = big_job
+    monkeypatch.setattr(packets, "MAX_ASSEMBLIES", 2)
+    form = client_as("qa_lead").get(reverse("inspections:packet_list", args=[job.pk])).context["rule_form"]
+    assert form["rule"].value() == "state"
+
+
+def test_build_pressed_twice_queues_one_packet(big_job, client_as, django_capture_on_commit_callbacks):
+    job, _marks = big_job
+    client = client_as("qa_lead")
+    with django_capture_on_commit_callbacks(execute=False):  # no worker yet: the first one stays queued
+        first = client.post(reverse("inspections:packet_start", args=[job.pk]), {"rule": "all"})
+        second = client.post(reverse("inspections:packet_start", args=[job.pk]), {"rule": "all"})
+    packet = JobPacket.objects.get()
+    assert first.url == second.url == packet.get_absolute_url() and packet.state == PacketState.QUEUED
+    with django_capture_on_commit_callbacks(execute=False):
+        client.post(reverse("inspections:packet_start", args=[job.pk]), {"rule": "state", "state": "in_fabrication"})
+    assert JobPacket.objects.count() == 2  # other assemblies: another packet
+
+
 @pytest.mark.parametrize("role", ["welding_engineer", "inspector", "viewer"])
 def test_other_roles_may_not_start_packets(role, make, client_as):
     assembly = make.make_assembly()

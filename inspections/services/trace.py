@@ -219,6 +219,10 @@ def record_weld_filler(weld: Weld, lot: FillerLot, user) -> Weld:
     visual, RecordLocked after). A lot of another classification than the WPS's is recorded as it was, and the proof
     chain blocks the weld (inspections.services.chain.filler_mismatch)."""
     require(user, "weld.record")
+    if lot is not None and weld.welded_on and lot.received_on > weld.welded_on:
+        # a lot is not welded with before the shop has it (common practice, no source); as for a repair
+        raise Refused({"lot": [f"Lot {lot.lot_number} was received on {lot.received_on.isoformat()}, after the weld "
+                               f"date {weld.welded_on.isoformat()}."]}, code="received_after")
     weld.filler_lot = lot
     weld.save(user=user)
     return weld

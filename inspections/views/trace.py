@@ -22,6 +22,7 @@ from core.storage import files_or_nothing
 from core.visibility import get_visible_or_404, sees_everything
 from inspections import calibration
 from inspections import credentials as engine
+from inspections.forms.jobs import add_step_errors
 from inspections.forms.trace import (
     CalibrationForm,
     CredentialForm,
@@ -315,6 +316,8 @@ def weld_filler(request, pk):
             except (RecordLocked, Stale) as exc:
                 form.add_error(None, " ".join(exc.messages) + " Revise the weld to change what it was made with.")
                 status = 409
+            except Refused as exc:
+                add_step_errors(form, exc)
             else:
                 mismatch = filler_mismatch(weld.filler_lot, weld.wps)
                 (messages.warning if mismatch else messages.success)(

@@ -104,9 +104,10 @@ def _packet_page(request, job, errors=None, chosen=None, status=200, rule_form=N
         if rule_form is not None:  # a rule refused on a job now small (a page left open): its errors above the boxes
             errors = [*(errors or []), *(e for found in rule_form.errors.values() for e in found)]
             rule_form = None
+    first_rule = {"rule": "state"} if total > packets.MAX_ASSEMBLIES else None  # "every one" would be refused
     return render(request, "inspections/packet_list.html", {
         "job": job, "rows": rows, "errors": errors or [], "total": total,
-        "rule_form": rule_form or (PacketRuleForm(counts=counts) if total > CHECKBOXES else None),
+        "rule_form": rule_form or (PacketRuleForm(counts=counts, initial=first_rule) if total > CHECKBOXES else None),
         "chosen": set(chosen) if chosen is not None else {a.pk for a, _t in rows},
         "packets": list(job.packets.select_related("requested_by")[:20]),
     }, status=status)

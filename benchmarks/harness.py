@@ -253,6 +253,13 @@ class Client:
     def post(self, path, data):
         return self.request("POST", path, data)
 
+    def shown(self, weld_pk, data) -> dict:
+        """The sign form's data with the verdict the tablet's panel showed for it (the inspection form refuses a
+        signature whose verdict the inspector was not shown): the panel's preview is asked first, not timed."""
+        _status, _location, page, _ms = self.post(f"/inspections/inspect/weld/{weld_pk}/preview/", data)
+        found = re.search(r'name="shown_verdict" id="lw-shown" value="([0-9a-f]*)"', page)
+        return {**data, "shown_verdict": found.group(1) if found else ""}
+
     def close(self):
         if self.conn is not None:
             self.conn.close()
@@ -333,18 +340,32 @@ WPS_FORM = {
 
 
 def make_users(role, n, prefix):
-    from core.models import User
+    """n users of the role; inspectors hold a current credential (a final visual is signed under one)."""
+    from datetime import timedelta
 
-    return [User.objects.create(username=f"{prefix}{i + 1}", first_name=prefix.title(), last_name=str(i + 1),
-                                role=role) for i in range(n)]
+    from django.utils import timezone
+
+    from core.models import User
+    from inspections.models import InspectorCredential
+
+    users = [User.objects.create(username=f"{prefix}{i + 1}", first_name=prefix.title(), last_name=str(i + 1),
+                                 role=role) for i in range(n)]
+    if role == "inspector":
+        today = timezone.localdate()
+        for user in users:
+            InspectorCredential.objects.create(
+                inspector=user, scheme="aws_cwi", number=f"CWI LOAD-{user.pk}", issued_on=today - timedelta(days=365),
+                expires_on=today + timedelta(days=730), eye_exam_on=today - timedelta(days=30))
+    return users
 
 
 def make_job(number, assemblies, welds_each, wps=None):
     """A job with assemblies of welds (a 1/4 in fillet, 12 in long, on 3/8 and 1/2 in plate)."""
     from core.units import parse_length as L
-    from inspections.models import Assembly, Job, Weld
+    from inspections.models import Assembly, Customer, Job, Weld
 
-    job = Job.objects.create(number=number, name=f"Load {number}", customer="Brannock Steelworks (load)",
+    customer, _ = Customer.objects.get_or_create(name="Brannock Steelworks (load)")
+    job = Job.objects.create(number=number, name=f"Load {number}", customer=customer,
                              unit_system="US", criteria_key="aws-d1.1-2020-static")
     welds = []
     for a in range(assemblies):

@@ -76,6 +76,7 @@ class Load:
         while time.monotonic() < stop_at:
             weld = rng.choice(self.welds)
             data = harness.SIGN_REJECTED if rng.random() < 0.2 else harness.SIGN_ACCEPTED
+            data = client.shown(weld, data)  # what the panel showed, asked before the timed signature
             status, location, _body, ms = self._send(client, "POST", f"/inspections/inspect/weld/{weld}/", data)
             pk = harness.pk_from(location, r"/inspections/inspection/(\d+)/") if status == 302 else None
             with self.lock:

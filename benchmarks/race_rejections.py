@@ -34,12 +34,12 @@ def run(args):
         def inspector(i, stop_at):
             client = harness.Client(stack.port, inspectors[i])
             for r in range(args.rounds):
+                data = client.shown(lanes[i][r], harness.SIGN_REJECTED)  # what the panel showed, before the race
                 try:
                     barrier.wait(timeout=120)
                 except threading.BrokenBarrierError:
                     return
-                status, location, _body, ms = client.post(f"/inspections/inspect/weld/{lanes[i][r]}/",
-                                                          harness.SIGN_REJECTED)
+                status, location, _body, ms = client.post(f"/inspections/inspect/weld/{lanes[i][r]}/", data)
                 with lock:
                     statuses[status] = statuses.get(status, 0) + 1
                     ms_all.append(ms)

@@ -29,6 +29,7 @@ from inspections.models import (
     ElectrodeIssue,
     ElectrodeOven,
     FillerLot,
+    FluxRecord,
     Gauge,
     GaugeCalibration,
     Inspection,
@@ -48,7 +49,7 @@ SHOP_ROLES = {Role.WELDING_ENGINEER, Role.INSPECTOR, Role.QA_LEAD}
 
 # The shop's own registers: a viewer reads them only as printed on its travelers (docs/decisions, traceability).
 SHOP_REGISTERS = (InspectorCredential, Gauge, GaugeCalibration, FillerLot, MillCertificate)
-SHOP_REGISTERS += (ElectrodeOven, OvenReading, ElectrodeIssue, Rebake)  # consumable control
+SHOP_REGISTERS += (ElectrodeOven, OvenReading, ElectrodeIssue, Rebake, FluxRecord)  # consumable control
 
 # Records that belong to one job: the path from the record to its job.
 JOB_PATHS = {

@@ -17,7 +17,8 @@ computes them. What the demo shows, by where to look:
   is made); the welds waiting days for the inspector show as blocked until the shop records them again.
 - consumable control (demo/scenario.py _ovens): oven OV-01's log; B-07's E7018 from lot KW-24-0932 out 3 h 30
   min and returned for J-2440 P3 (within the 4 h of AWS D1.1 Table 7.1), and lot KW-24-0977 out 4 h 15 min for
-  J-2417 P5, which blocks its release; rod oven RO-03 unread for a shift on the QA lead's morning page.
+  J-2417 P5, which blocks its release; rod oven RO-03 unread for a shift on the QA lead's morning page; a bag of SAW
+  flux lot KF-24-0311 opened intact at OV-01 (usable).
 - the trends page and the QA lead's morning page: twenty weeks of finished work on J-2405 and J-2408 (demo/history.py,
   signed on their days), in which B-12's reject rate climbs; one NCR of five weeks ago still awaits disposition.
 """
@@ -620,8 +621,10 @@ def _ovens(users, welders):
     read every 8 hours for three days, a rebake of lot KW-24-0932, B-07's electrodes for J-2440 P3 (yesterday,
     3 h 30 min out: within Table 7.1's 4 h) and for J-2417 P5 (KW-24-0977, taken out 5 h 15 min before the demo
     loads and returned an hour before: 4 h 15 min, past the limit, so P5 is blocked; loaded between midnight and
-    01:15 the times fall on the day before and P5 is not flagged). Rod oven RO-03 was last read 14 hours ago: due."""
-    from inspections.models import ElectrodeIssue, ElectrodeOven, FillerLot, OvenReading, Rebake
+    01:15 the times fall on the day before and P5 is not flagged). Rod oven RO-03 was last read 14 hours ago: due.
+    A bag of SAW flux (F7A2-EM12K lot KF-24-0311, received with the others) opened intact at OV-01 this shift: usable
+    (AWS D1.1/D1.1M:2020 clause 7.3.3.2, from memory)."""
+    from inspections.models import ElectrodeIssue, ElectrodeOven, FillerLot, FluxRecord, OvenReading, Rebake
     from inspections.services import consumables
 
     qa, inspector, dana = users[Role.QA_LEAD], users[Role.INSPECTOR], welders["B-07"]
@@ -646,6 +649,13 @@ def _ovens(users, welders):
         issue = consumables.record_issue(ElectrodeIssue(oven=holding, lot=lot, welder=dana, quantity=25,
                                                         taken_out_at=out), inspector)
         consumables.close_issue(issue, inspector, back, holding)
+    flux = FillerLot(classification="F7A2-EM12K", specification="AWS A5.17/A5.17M", diameter=L("5/32 in"),
+                     lot_number="KF-24-0311", manufacturer="Kessler Wire Co.", recorded_by=qa,
+                     received_on=timezone.localdate() - timedelta(days=40))
+    with history.acting(qa):
+        flux.save()
+    consumables.record_flux(FluxRecord(oven=holding, lot=flux, event="opened_intact", at=now - timedelta(hours=2),
+                                       note="Hopper of the girder SAW tractor"), inspector)
 
 
 __all__ = ["PASSWORD", "accounts", "load", "parse_force", "timedelta"]

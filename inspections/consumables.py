@@ -235,3 +235,40 @@ def flux_usable(package: str, *, wet: bool, contaminated: bool, dried: Temperatu
             return False, (f"flux from a damaged package is discarded, or dried at no less than "
                            f"{format_temperature(minimum, system)} for 1 h before use ({SOURCE_FLUX})")
     return True, ""
+
+
+# Events of a flux lot's log, in the order the shop records them (the oven log's flux rows).
+OPENED_INTACT, OPENED_DAMAGED, DRIED, FOUND_WET, FOUND_CONTAMINATED = (
+    "opened_intact", "opened_damaged", "dried", "wet", "contaminated")
+FLUX_EVENTS = (OPENED_INTACT, OPENED_DAMAGED, DRIED, FOUND_WET, FOUND_CONTAMINATED)
+
+
+@dataclass(frozen=True)
+class FluxEvent:
+    key: object
+    at: datetime
+    kind: str
+    temperature: Temperature | None = None  # DRIED only
+    hours: Decimal | None = None  # DRIED only
+
+
+def flux_at(events, at: datetime, system: str = "US") -> tuple[bool, str]:
+    """(usable, reason) of a flux lot at `at`, from its log: the last package opened at or before then sets intact
+    or damaged; after it, the last drying counts, and flux found wet or contaminated stays unusable until another
+    package is opened (clause 7.3.3.2 through `flux_usable`, from memory). Nothing opened on record is not a failure
+    (the shop may have started its log later) but says so, as an oven without readings."""
+    for event in events:
+        if event.kind not in FLUX_EVENTS:
+            raise ValueError(f"A flux event is one of {', '.join(FLUX_EVENTS)}, not {event.kind!r}.")
+    before = sorted((e for e in events if e.at <= at), key=lambda e: (e.at, str(e.key)))
+    opened = [i for i, e in enumerate(before) if e.kind in (OPENED_INTACT, OPENED_DAMAGED)]
+    if not opened:
+        return True, "no package opened on record before then"
+    since = before[opened[-1]:]
+    package = INTACT if since[0].kind == OPENED_INTACT else DAMAGED
+    dryings = [e for e in since if e.kind == DRIED]
+    last = dryings[-1] if dryings else None
+    return flux_usable(package, wet=any(e.kind == FOUND_WET for e in since),
+                       contaminated=any(e.kind == FOUND_CONTAMINATED for e in since),
+                       dried=last.temperature if last else None, dried_hours=last.hours if last else None,
+                       system=system)

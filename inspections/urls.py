@@ -114,6 +114,7 @@ urlpatterns = [
     path("ovens/<int:pk>/readings/new/", consumable_views.reading_create, name="oven_reading_create"),
     path("ovens/<int:pk>/issues/new/", consumable_views.issue_create, name="oven_issue_create"),
     path("ovens/<int:pk>/rebakes/new/", consumable_views.rebake_create, name="oven_rebake_create"),
+    path("ovens/<int:pk>/flux/new/", consumable_views.flux_create, name="oven_flux_create"),
     path("electrode-issues/<int:pk>/close/", consumable_views.issue_close, name="oven_issue_close"),
     # end of consumable control
     # --- travelers and packets ---

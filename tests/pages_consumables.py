@@ -30,6 +30,7 @@ PAGES = {
     "inspections:oven_reading_create": (_oven, LOG),
     "inspections:oven_issue_create": (_oven, LOG),
     "inspections:oven_rebake_create": (_oven, LOG),
+    "inspections:oven_flux_create": (_oven, LOG),
     "inspections:oven_issue_close": (_issue, LOG),
 }
 

@@ -151,8 +151,8 @@ def test_the_oven_pages_read_a_fixed_number_of_queries(make, client_as, django_a
     client = client_as("qa_lead")
     client.get(oven.get_absolute_url())
     # session, user; oven; issues count and page (each with its oven's last reading before it); readings count and
-    # page; rebakes; history
-    with django_assert_num_queries(9) as first:
+    # page; rebakes; SAW flux records of the lots in its log; history
+    with django_assert_num_queries(10) as first:
         client.get(oven.get_absolute_url())
     with django_assert_num_queries(3):  # session, user, ovens with their last reading and issues out
         client.get(reverse("inspections:oven_list"))

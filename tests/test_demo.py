@@ -98,6 +98,7 @@ def test_the_demo_shows_consumable_control(db):
     P3, and a lot out past it that blocks J-2417 P5 (unless loaded between midnight and 01:15, said there)."""
     from django.utils import timezone
 
+    from inspections.models import FluxRecord
     from inspections.services import consumables
     from inspections.services.assemblies import release_blockers
 
@@ -111,3 +112,6 @@ def test_the_demo_shows_consumable_control(db):
         clip = release_blockers(Assembly.objects.get(job__number=demo.MARKER_JOB, piece_mark="P5"))
         assert len(clip) == 1 and "4 h 15 min out of the oven, past the limit of 4 h" in clip[0]
     assert [r["oven"].number for r in consumables.ovens_due()] == ["RO-03"]
+    flux = consumables.flux_lots(FluxRecord.objects.select_related("lot"))  # clause 7.3.3.2 (from memory)
+    assert [(row["lot"].lot_number, row["usable"]) for row in flux] == [("KF-24-0311", True)]
+    assert not consumables.flux_unusable()

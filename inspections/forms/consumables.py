@@ -9,7 +9,16 @@ from django.utils import timezone
 
 from core.fields import TemperatureFormField
 from inspections.forms.trace import _helper
-from inspections.models import ElectrodeIssue, ElectrodeOven, FillerLot, OvenReading, OvenState, Rebake
+from inspections.models import (
+    ElectrodeIssue,
+    ElectrodeOven,
+    FillerLot,
+    FluxEvent,
+    FluxRecord,
+    OvenReading,
+    OvenState,
+    Rebake,
+)
 from procedures.electrodes import decode
 from procedures.models import Welder
 
@@ -27,13 +36,14 @@ def _not_future(value, what):
     return value
 
 
-def _electrode_lots():
-    """Lots of covered (SMAW) electrodes: the oven log's concern (decoded in Python, one query)."""
+def _electrode_lots(process="SMAW"):
+    """Lots of covered (SMAW) electrodes, or SAW flux-wire lots: the oven log's concern (decoded in Python, one
+    query)."""
     lots = FillerLot.objects.order_by("classification", "-received_on", "-pk")
     keep = []
     for lot in lots:
         try:
-            if "SMAW" in decode(lot.classification).processes:
+            if process in decode(lot.classification).processes:
                 keep.append(lot.pk)
         except ValueError:
             continue
@@ -158,4 +168,33 @@ class RebakeForm(forms.ModelForm):
         lot, previous = data.get("lot"), data.get("previous")
         if lot and previous and previous.lot_id != lot.pk:
             self.add_error("previous", f"That batch is of lot {previous.lot.lot_number}, not {lot.lot_number}.")
+        return data
+
+
+class FluxForm(forms.ModelForm):
+    at = moment("At")
+    temperature = TemperatureFormField(label="Dried at", required=False,
+                                       help_text="When dried, as the oven's thermometer reads: 550 F")
+
+    class Meta:
+        model = FluxRecord
+        fields = ["lot", "event", "at", "temperature", "hours", "note"]
+
+    def __init__(self, *args, oven=None, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.fields["temperature"].system = oven.system if oven else "US"
+        self.fields["lot"].queryset = _electrode_lots("SAW")
+        self.initial.setdefault("at", timezone.localtime().strftime(FORMATS[0]))
+        _helper(self, Layout(Row(Column("lot"), Column("event"), Column("at")),
+                             Row(Column("temperature"), Column("hours"), Column("note"))))
+
+    def clean_at(self):
+        return _not_future(self.cleaned_data.get("at"), "The flux record")
+
+    def clean(self):
+        data = super().clean()
+        if data.get("event") == FluxEvent.DRIED:
+            for name, words in (("temperature", "Give the drying temperature."), ("hours", "Give the hours dried.")):
+                if data.get(name) is None and name not in self.errors:
+                    self.add_error(name, words)
         return data

@@ -3,6 +3,8 @@
 from inspections.models.consumables import (
     ElectrodeIssue,
     ElectrodeOven,
+    FluxEvent,
+    FluxRecord,
     IssueState,
     OvenKind,
     OvenReading,
@@ -39,4 +41,5 @@ __all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCrite
            "InspectionDraft", "InspectionStage", "InspectorCredential", "Job", "JobPacket", "PacketState", "Photo",
            "TemperatureMethod", "Traveler", "Weld", "WeldRepair"]
 __all__ += ["MaterialState", "MillCertificate", "Part", "PartRole"]  # material traceability (issue 18 item 1)
-__all__ += ["ElectrodeIssue", "ElectrodeOven", "IssueState", "OvenKind", "OvenReading", "OvenState", "Rebake"]
+__all__ += ["ElectrodeIssue", "ElectrodeOven", "FluxEvent", "FluxRecord", "IssueState", "OvenKind", "OvenReading",
+            "OvenState", "Rebake"]

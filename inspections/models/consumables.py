@@ -174,3 +174,46 @@ class ElectrodeIssue(Recorded, Guarded):
 
     def get_absolute_url(self):
         return reverse("inspections:oven_detail", args=[self.oven_id]) + f"#issue-{self.pk}"
+
+
+class FluxEvent(models.TextChoices):
+    """The engine's flux events (inspections.consumables.FLUX_EVENTS)."""
+
+    OPENED_INTACT = "opened_intact", "Package opened, intact"
+    OPENED_DAMAGED = "opened_damaged", "Package opened, damaged"
+    DRIED = "dried", "Dried"
+    WET = "wet", "Found wet (discarded)"
+    CONTAMINATED = "contaminated", "Found contaminated (discarded)"
+
+
+class FluxRecord(Recorded, Guarded):
+    """One fact of a SAW flux lot's condition, in the log of the oven (or hopper station) where it happened: a
+    package opened intact or damaged, a drying (temperature, hours), flux found wet or contaminated and discarded.
+    The lot's standing at a moment is inspections.consumables.flux_at over its records (clause 7.3.3.2, from
+    memory)."""
+
+    oven = models.ForeignKey(ElectrodeOven, on_delete=models.PROTECT, related_name="flux_records")
+    lot = models.ForeignKey(FillerLot, on_delete=models.PROTECT, related_name="flux_records",
+                            verbose_name="flux lot")
+    event = models.CharField(max_length=16, choices=FluxEvent.choices)
+    at = models.DateTimeField("at")
+    temperature = TemperatureField(null=True, blank=True, help_text="When dried")
+    hours = models.DecimalField(max_digits=4, decimal_places=2, null=True, blank=True, help_text="When dried",
+                                validators=[MinValueValidator(Decimal("0.01")), MaxValueValidator(99)])
+    note = models.CharField(max_length=200, blank=True)
+
+    objects = GuardedQuerySet.as_manager()
+    lock = Lock("flux record", frozen=ALWAYS, name=("id",), advice="record the next fact; this one stays.")
+
+    class Meta:
+        ordering = ["-at", "-pk"]
+        base_manager_name = "objects"
+        indexes = [models.Index(fields=["lot", "at"], name="flux_record_lot_at")]
+
+    def __str__(self):
+        return f"flux lot {self.lot.lot_number}: {self.get_event_display().lower()} at {self.at:%Y-%m-%d %H:%M}"
+
+    def facts(self):
+        from inspections import consumables
+
+        return consumables.FluxEvent(self.pk, self.at, self.event, self.temperature, self.hours)

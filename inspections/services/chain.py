@@ -16,7 +16,8 @@ For every weld of an assembly (and each recorded repair of it), on the day it wa
    (services.material.part_problems, inspections.material). Read into Chains.parts: one query.
 7. Consumables: for a low-hydrogen SMAW lot (of the weld or of a repair), no issue of it to the welder covering the
    date went past its exposure limit, came from an oven below its minimum, or from a batch rebaked badly or twice
-   (services.consumables.weld_exposures; no issue recorded is not a blocker).
+   (services.consumables.weld_exposures; no issue recorded is not a blocker); for a SAW flux-wire lot, its flux
+   was usable all the weld's day by the oven log's flux rows (AWS D1.1 clause 7.3.3.2; no record, no blocker).
 
 check_assembly() answers all of it in a fixed number of queries whatever the number of welds, repairs and welders
 (tests/test_chain_queries.py pins it). Each problem is a Blocker: the words, and the page where it is put right.

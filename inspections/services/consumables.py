@@ -12,7 +12,7 @@ flags every weld it covers (docs/decisions/2026-12-05-consumable-control.md).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from datetime import timedelta
+from datetime import datetime, time, timedelta
 
 from django.db import transaction
 from django.db.models import Count, OuterRef, Q, Subquery
@@ -27,6 +27,8 @@ from inspections import consumables as engine
 from inspections.models import (
     ElectrodeIssue,
     ElectrodeOven,
+    FluxEvent,
+    FluxRecord,
     IssueState,
     OvenReading,
     OvenState,
@@ -86,11 +88,7 @@ def record_reading(reading: OvenReading, user) -> OvenReading:
 
 def _covered_electrode(lot) -> None:
     """The oven log is for covered (SMAW) electrodes; wire and flux lots are refused."""
-    try:
-        smaw = "SMAW" in decode(lot.classification).processes
-    except ValueError:
-        smaw = False
-    if not smaw:
+    if "SMAW" not in _processes(lot.classification):
         raise Refused(f"{lot} is not a covered electrode: the oven log is for SMAW electrodes.", code="lot")
 
 
@@ -126,6 +124,49 @@ def record_rebake(rebake: Rebake, user) -> Rebake:
                 raise Refused(f"{rebake.previous} is of another lot than {rebake.lot}.", code="previous")
             rebake.number = rebake.previous.number + 1
     return _log(rebake, user, "rebakes", rebake.started_at, "The rebake", check)
+
+
+def _flux(lot) -> None:
+    """The flux rows are for SAW flux lots (an AWS A5.17 flux-wire lot, e.g. F7A2-EM12K); other lots are refused."""
+    if not _is_saw(lot.classification):
+        raise Refused(f"{lot} is not a SAW flux lot: record its flux under its flux-wire classification "
+                      "(e.g. F7A2-EM12K).", code="lot")
+
+
+def record_flux(entry: FluxRecord, user) -> FluxRecord:
+    """A fact of a flux lot's condition in an oven's log: a package opened (intact or damaged), a drying (with its
+    temperature and hours), or flux found wet or contaminated and discarded (clause 7.3.3.2, from memory)."""
+    def check():
+        _flux(entry.lot)
+        dried = entry.event == FluxEvent.DRIED
+        if dried and (entry.temperature is None or entry.hours is None):
+            raise Refused("A drying gives its temperature and hours.", code="dried")
+        if not dried:
+            entry.temperature, entry.hours = None, None
+    return _log(entry, user, "flux records", entry.at, "The flux record", check)
+
+
+def flux_lots(records, at=None, system="US") -> list[dict]:
+    """Each flux lot among `records` (rows of FluxRecord, any order) with its standing at `at` (now) and its last
+    fact: usable or not, and why (inspections.consumables.flux_at). No query beyond the records'."""
+    at = at or timezone.now()
+    by_lot = {}
+    for entry in records:
+        by_lot.setdefault(entry.lot_id, []).append(entry)
+    rows = []
+    for rows_of_lot in by_lot.values():
+        last = max(rows_of_lot, key=lambda r: (r.at, r.pk))
+        usable, reason = engine.flux_at([r.facts() for r in rows_of_lot], at, system)
+        rows.append({"lot": last.lot, "last": last, "usable": usable, "reason": reason,
+                     "discarded": last.event in (FluxEvent.WET, FluxEvent.CONTAMINATED)})
+    return sorted(rows, key=lambda row: (row["usable"], row["lot"].lot_number))
+
+
+def flux_unusable(now=None) -> list[dict]:
+    """Flux lots not usable now and not discarded by their last record: still in a hopper (the morning page). One
+    query."""
+    records = FluxRecord.objects.select_related("lot", "oven")
+    return [row for row in flux_lots(records, now) if not row["usable"] and not row["discarded"]]
 
 
 # --- judging issues ----------------------------------------------------------------------------------------------
@@ -219,12 +260,14 @@ def weld_exposures(welds, now=None) -> dict[tuple, list[tuple[str, str]]]:
     low-hydrogen SMAW lot (their filler_lot loaded, welders prefetched): one query when any does, none otherwise.
     Every issue covering one is also left on it as `_exposures` (Judged), for the traveler."""
     now = now or timezone.now()
-    controlled = []
+    controlled, saw = [], []
     for weld in welds:
         lot = weld.filler_lot if weld.filler_lot_id else None
         if lot is not None and weld.welded_on is not None and _controlled(lot.classification):
             controlled.append(weld)
-    found = {}
+        elif lot is not None and weld.welded_on is not None and _is_saw(lot.classification):
+            saw.append(weld)
+    found = _flux_problems(saw) if saw else {}
     if not controlled:
         return found
     lots = {w.filler_lot_id for w in controlled}
@@ -247,6 +290,47 @@ def weld_exposures(welds, now=None) -> dict[tuple, list[tuple[str, str]]]:
                         found.setdefault((type(weld).__name__, weld.pk), []).append(
                             (problem, issue_url(judged.issue)))
         weld._exposures = covering
+    return found
+
+
+def _processes(classification: str) -> frozenset:
+    """The processes a classification decodes to (procedures.electrodes.decode); none when it does not decode."""
+    try:
+        return decode(classification).processes
+    except ValueError:
+        return frozenset()
+
+
+def _is_saw(classification: str) -> bool:
+    return "SAW" in _processes(classification)
+
+
+def _flux_problems(welds) -> dict[tuple, list[tuple[str, str]]]:
+    """SAW welds whose flux-wire lot's flux was not usable at some moment of the weld's day (its standing at the
+    day's start, or after any record of that day: the weld records no hour, so the flag errs towards asking; clause
+    7.3.3.2, from memory). No flux record for the lot: not flagged, as a weld without an issue. One query."""
+    records = {}
+    last_day = max(w.welded_on for w in welds)
+    for entry in FluxRecord.objects.filter(lot_id__in={w.filler_lot_id for w in welds},
+                                            at__date__lte=last_day + timedelta(days=1)).select_related("oven"):
+        records.setdefault(entry.lot_id, []).append(entry)
+    found = {}
+    zone = timezone.get_current_timezone()
+    for weld in welds:
+        rows = records.get(weld.filler_lot_id)
+        if not rows:
+            continue
+        start = timezone.make_aware(datetime.combine(weld.welded_on, time.min), zone)
+        moments = [start] + [r.at for r in rows if _local_day(r.at) == weld.welded_on]
+        facts = [r.facts() for r in rows]
+        for moment in moments:
+            usable, reason = engine.flux_at(facts, moment, rows[0].oven.system)
+            if not usable:
+                last = max((r for r in rows if r.at <= moment), key=lambda r: (r.at, r.pk))
+                found.setdefault((type(weld).__name__, weld.pk), []).append((
+                    f"flux of lot {weld.filler_lot.lot_number} not usable on {weld.welded_on:%Y-%m-%d}: {reason}",
+                    reverse("inspections:oven_detail", args=[last.oven_id]) + "#flux"))
+                break
     return found
 
 

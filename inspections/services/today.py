@@ -381,8 +381,8 @@ def _registers(today) -> Section:
 
 
 def _consumables() -> Section:
-    """Electrode ovens in service with no reading for a shift, and electrodes still out past their exposure limit
-    (inspections.services.consumables; two queries)."""
+    """Electrode ovens in service with no reading for a shift, electrodes still out past their exposure limit, and
+    SAW flux not usable and not discarded (inspections.services.consumables; three queries)."""
     from inspections.services import consumables
 
     due = consumables.ovens_due()
@@ -393,6 +393,8 @@ def _consumables() -> Section:
                    consumables.issue_url(j.issue), overdue=True, word="past its limit",
                    note=f"from oven {j.issue.oven} since {timezone.localtime(j.issue.taken_out_at):%H:%M}")
               for j in late]
+    items += [Item(f"Flux lot {row['lot'].lot_number} not usable", row["last"].oven.get_absolute_url() + "#flux",
+                   overdue=True, word="not usable", note=row["reason"]) for row in consumables.flux_unusable()]
     return Section("consumables", "Electrode ovens and electrodes out", items[:SHOWN], total=len(items),
                    all_url=reverse("inspections:oven_list"), empty="Every oven read this shift; nothing out past its "
                                                                    "limit.",

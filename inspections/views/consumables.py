@@ -13,14 +13,23 @@ from core.errors import Refused
 from core.roles import role_required
 from core.visibility import get_visible_or_404
 from inspections import consumables as engine
-from inspections.forms.consumables import DISCARDED, CloseIssueForm, IssueForm, OvenForm, ReadingForm, RebakeForm
-from inspections.models import ElectrodeIssue, ElectrodeOven, IssueState, OvenState, Rebake
+from inspections.forms.consumables import (
+    DISCARDED,
+    CloseIssueForm,
+    FluxForm,
+    IssueForm,
+    OvenForm,
+    ReadingForm,
+    RebakeForm,
+)
+from inspections.models import ElectrodeIssue, ElectrodeOven, FluxRecord, IssueState, OvenState, Rebake
 from inspections.services import consumables as steps
 from inspections.services.trace import REGISTERS
 from inspections.views.trace import _with_reason, shop_only
 from procedures.forms.welders import ReasonForm
 
-SOURCES = (f"Exposure: {engine.SOURCE_EXPOSURE}; ovens: {engine.SOURCE_OVEN}; rebakes: {engine.SOURCE_REBAKE}. "
+SOURCES = (f"Exposure: {engine.SOURCE_EXPOSURE}; ovens: {engine.SOURCE_OVEN}; rebakes: {engine.SOURCE_REBAKE}; "
+           f"SAW flux: {engine.SOURCE_FLUX}. "
            "A reading is due every shift (12 h; common practice, no source).")
 
 
@@ -67,6 +76,8 @@ def _oven_page(request, oven, retire_form, status=200):
         "due": oven.state == OvenState.IN_SERVICE and engine.reading_due(last.read_at if last else None, now),
         "minimum": engine.oven_minimum(oven.system), "rebakes": [
             (r, engine.rebake(r.lot.classification, r.temperature, r.hours, r.number, oven.system)) for r in rebakes],
+        "flux": steps.flux_lots(FluxRecord.objects.filter(lot__flux_records__oven=oven).distinct()
+                                .select_related("lot", "recorded_by"), now, oven.system),
         "retire_form": retire_form, "history": history.panel(oven), "sources": SOURCES,
         "query": lists.query_without(request, "page")}, status=status)
 
@@ -128,6 +139,18 @@ def rebake_create(request, pk):
     form = RebakeForm(request.POST or None, oven=oven)
     return _log_form(request, oven, form, "Record a rebake", "Record rebake", steps.record_rebake,
                      lambda rebake: f"Recorded: {rebake} (rebake number {rebake.number}).")
+
+
+@role_required(steps.LOG)
+@require_http_methods(["GET", "POST"])
+def flux_create(request, pk):
+    oven = _oven(request, pk)
+    form = FluxForm(request.POST or None, oven=oven)
+
+    def done(entry):
+        usable, reason = engine.flux_at([r.facts() for r in entry.lot.flux_records.all()], timezone.now(), oven.system)
+        return f"Recorded: {entry}. " + ("The flux is usable." if usable else f"NOT usable: {reason}.")
+    return _log_form(request, oven, form, "SAW flux", "Record flux", steps.record_flux, done)
 
 
 @role_required(steps.LOG)

@@ -11,7 +11,7 @@ restore(): reads the whole archive once and checks every member's size and SHA-2
 names, the database kind and the migrations BEFORE it touches anything; refuses a target database or media folder
 that holds records unless forced; unpacks the media to a staging folder (checked again), restores the database
 (SQLite online backup into the target file; pg_restore --clean in one transaction), puts the media in place, and
-compares every table's row count with the manifest. The layout is in docs/decisions/2026-12-05-backup-archive.md.
+compares every table's row count with the manifest. The layout is in docs/decisions/2026-12-04-backup-archive.md.
 
 Both read and write the local media folder only. With the files in an object store (LEGWORK_STORAGE=s3, several
 machines) they refuse before doing anything: the bucket is backed up by the store itself (versioning, replication)

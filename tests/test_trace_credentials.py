@@ -212,3 +212,13 @@ def test_the_list_reads_in_fixed_queries(make, client_as, django_assert_num_quer
 def test_a_column_added_after_signing_and_empty_is_not_a_change():
     assert compare({"fields": {"accepted": True}}, {"fields": {"accepted": True, "credential": None}}) == []
     assert compare({"fields": {"accepted": True}}, {"fields": {"accepted": True, "credential": 4}})
+
+
+@pytest.mark.parametrize("page, words", [
+    ("credential", "the card is recorded again"), ("gauge", "taken out of use"), ("heat", "recorded again"),
+    ("oven", "taken out of service")])
+def test_each_withdraw_or_retire_form_gives_an_example_in_its_own_words(page, words, make, client_as):
+    record = {"credential": make.make_credential, "gauge": make.make_gauge, "heat": make.make_heat,
+              "oven": make.make_oven}[page]()
+    text = client_as("qa_lead").get(record.get_absolute_url()).content.decode()
+    assert words in text and "Left the shop" not in text  # the welder deactivation's example

@@ -184,7 +184,7 @@ def engineer(user, today) -> list[Section]:
                 all_url=list_url("inspections:assembly_list", waiting="final"),
                 empty="Every weld waiting for inspection names a WPS that applies.",
                 help="Welds not yet finally inspected, on open assemblies: the WPS is missing, not in force on the "
-                     "weld date, or does not cover the weld (procedures/applicability.py)."),
+                     "weld date, or does not cover the weld (its code, process, joint, position, thickness or size)."),
     ]
 
 
@@ -329,7 +329,8 @@ def _welders(user, today) -> Section:
                    counts + items[:SHOWN] if rows else [], total=len(rows),
                    all_url=list_url("procedures:welder_list", continuity="lapsing"),
                    empty="Every active welder is qualified and in continuity.",
-                   help="Active welders only (procedures/eligibility.py).")
+                   help="Active welders only: each test's continuity, use of the process at least once in any 6 months "
+                        "(AWS D1.1/D1.1M:2020 clause 6; ISO 9606-1:2012 9.2).")
 
 
 def _registers(today) -> Section:
@@ -375,9 +376,9 @@ def _registers(today) -> Section:
     return Section("registers", f"Inspector credentials and gauges lapsing within {notice} days or lapsed",
                    items[:SHOWN], total=len(items), all_url=list_url("inspections:credential_list"),
                    empty="Every inspector holds a current credential and every gauge in service is in calibration.",
-                   help="Credentials: the expiry printed on the card and the eye examination "
-                        "(inspections/credentials.py); gauges: the due date of the last calibration "
-                        "(inspections/calibration.py). The gauge register lists every gauge.")
+                   help="Credentials: the expiry printed on the card and the eye examination (every 3 years for "
+                        "AWS QC1, yearly for ISO 9712; from memory); gauges: the due date of the last calibration. "
+                        "The registers list every credential and gauge.")
 
 
 def _consumables() -> Section:

@@ -32,6 +32,8 @@ SOURCES = (f"Exposure: {engine.SOURCE_EXPOSURE}; ovens: {engine.SOURCE_OVEN}; re
            f"SAW flux: {engine.SOURCE_FLUX}. "
            "A reading is due every shift (12 h; common practice, no source).")
 
+OVEN_EXAMPLE = "e.g. Thermostat failed; taken out of service"
+
 
 @require_safe
 def oven_list(request):
@@ -59,7 +61,7 @@ def _oven(request, pk):
 
 @require_safe
 def oven_detail(request, pk):
-    return _oven_page(request, _oven(request, pk), ReasonForm())
+    return _oven_page(request, _oven(request, pk), ReasonForm(example=OVEN_EXAMPLE))
 
 
 def _oven_page(request, oven, retire_form, status=200):
@@ -87,7 +89,7 @@ def _oven_page(request, oven, retire_form, status=200):
 def oven_retire(request, pk):
     oven = _oven(request, pk)
     return _with_reason(request, oven, steps.retire_oven, f"Oven {oven} retired.",
-                        lambda form: _oven_page(request, oven, form, status=400))
+                        lambda form: _oven_page(request, oven, form, status=400), example=OVEN_EXAMPLE)
 
 
 def _log_form(request, oven, form, title, submit, step, done):

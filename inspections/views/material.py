@@ -23,6 +23,9 @@ from inspections.services.trace import REGISTERS
 from inspections.views.trace import _with_reason, shop_only, stored_with_file
 from procedures.forms.welders import ReasonForm
 
+HEAT_EXAMPLE = "e.g. Heat number mistyped; recorded again"
+PART_EXAMPLE = "e.g. Cut from another heat; recorded again with it"
+
 
 class HeatFilter(ListFilterSet):
     q = django_filters.CharFilter(label="Heat or grade", method="search", max_length=40)
@@ -81,7 +84,7 @@ def _heat(request, pk):
 
 @require_safe
 def heat_detail(request, pk):
-    return _heat_page(request, _heat(request, pk), ReasonForm())
+    return _heat_page(request, _heat(request, pk), ReasonForm(example=HEAT_EXAMPLE))
 
 
 def _heat_page(request, heat, form, status=200):
@@ -99,7 +102,7 @@ def _heat_page(request, heat, form, status=200):
 def heat_withdraw(request, pk):
     heat = _heat(request, pk)
     return _with_reason(request, heat, material.withdraw_certificate, f"{heat} withdrawn.",
-                        lambda form: _heat_page(request, heat, form, status=400))
+                        lambda form: _heat_page(request, heat, form, status=400), example=HEAT_EXAMPLE)
 
 
 @require_safe
@@ -150,7 +153,8 @@ def _parts_page(request, assembly, form, status=200, reason_form=None):
     rows = [(p, material.part_problems(p, assembly.job)) for p in parts]
     return render(request, "inspections/assembly_parts.html", {
         "assembly": assembly, "job": assembly.job, "rows": rows, "withdrawn": withdrawn, "form": form,
-        "reason_form": reason_form or ReasonForm(), "required": assembly.job.requires_mill_certificates,
+        "reason_form": reason_form or ReasonForm(example=PART_EXAMPLE),
+        "required": assembly.job.requires_mill_certificates,
         "system": assembly.job.unit_system, "sees_registers": sees_everything(request.user)}, status=status)
 
 
@@ -158,7 +162,7 @@ def _parts_page(request, assembly, form, status=200, reason_form=None):
 @role_required(material.PARTS)
 def part_withdraw(request, pk):
     part = get_visible_or_404(request.user, Part.objects.select_related("assembly__job__client_criteria"), pk=pk)
-    form = ReasonForm(request.POST)
+    form = ReasonForm(request.POST, example=PART_EXAMPLE)
     if form.is_valid():
         try:
             material.withdraw_part(part, request.user, form.cleaned_data["reason"])

@@ -45,6 +45,9 @@ from inspections.services.chain import filler_mismatch
 from inspections.services.weldmap_csv import _safe as formula_safe  # the one guard against CSV formulas
 from procedures.forms.welders import ReasonForm
 
+RETIRE_EXAMPLE = "e.g. Jaw bent; taken out of use"
+CARD_EXAMPLE = "e.g. Number mistyped; the card is recorded again"
+
 
 def shop_only(request):
     """The registers are the shop's own: a viewer account is refused."""
@@ -99,7 +102,7 @@ def _credential(request, pk):
 @require_safe
 def credential_detail(request, pk):
     credential = _credential(request, pk)
-    return _detail_page(request, credential, ReasonForm())
+    return _detail_page(request, credential, ReasonForm(example=CARD_EXAMPLE))
 
 
 def _detail_page(request, credential, form, status=200):
@@ -116,12 +119,12 @@ def _detail_page(request, credential, form, status=200):
 def credential_withdraw(request, pk):
     credential = _credential(request, pk)
     return _with_reason(request, credential, trace.withdraw_credential, f"{credential} withdrawn.",
-                        lambda form: _detail_page(request, credential, form, status=400))
+                        lambda form: _detail_page(request, credential, form, status=400), example=CARD_EXAMPLE)
 
 
-def _with_reason(request, record, step, done: str, page):
+def _with_reason(request, record, step, done: str, page, example=None):
     """A step that takes a reason (withdraw, retire): the record's page again with the refusal beside the form."""
-    form = ReasonForm(request.POST)
+    form = ReasonForm(request.POST, example=example)
     if form.is_valid():
         try:
             step(record, request.user, form.cleaned_data["reason"])
@@ -169,7 +172,7 @@ def _gauge(request, pk):
 
 @require_safe
 def gauge_detail(request, pk):
-    return _gauge_page(request, _gauge(request, pk), CalibrationForm(), ReasonForm())
+    return _gauge_page(request, _gauge(request, pk), CalibrationForm(), ReasonForm(example=RETIRE_EXAMPLE))
 
 
 def _gauge_page(request, gauge, calibration_form, retire_form, status=200):
@@ -203,7 +206,7 @@ def calibration_create(request, pk):
             if message is None:
                 raise
             form.add_error("document", message)
-            return _gauge_page(request, gauge, form, ReasonForm(), status=503)
+            return _gauge_page(request, gauge, form, ReasonForm(example=RETIRE_EXAMPLE), status=503)
         else:
             if record.result == CalibrationResult.OUT_OF_TOLERANCE:
                 messages.warning(request, f"Gauge {gauge} found out of tolerance: the inspections made with it "
@@ -211,7 +214,7 @@ def calibration_create(request, pk):
             else:
                 messages.success(request, f"Calibration recorded: {gauge} due {record.due_on.isoformat()}.")
             return redirect(record)
-    return _gauge_page(request, gauge, form, ReasonForm(), status=400)
+    return _gauge_page(request, gauge, form, ReasonForm(example=RETIRE_EXAMPLE), status=400)
 
 
 @role_required(trace.REGISTERS)
@@ -219,7 +222,8 @@ def calibration_create(request, pk):
 def gauge_retire(request, pk):
     gauge = _gauge(request, pk)
     return _with_reason(request, gauge, trace.retire_gauge, f"Gauge {gauge} retired.",
-                        lambda form: _gauge_page(request, gauge, CalibrationForm(), form, status=400))
+                        lambda form: _gauge_page(request, gauge, CalibrationForm(), form, status=400),
+                        example=RETIRE_EXAMPLE)
 
 
 def _calibration(request, pk):

@@ -205,11 +205,16 @@ class ContinuityForm(forms.Form):
 
 
 class ReasonForm(forms.Form):
+    """Why a step is taken (deactivate a welder, withdraw a record, retire an instrument); `example` is the
+    placeholder, in the words of that step."""
+
     reason = forms.CharField(max_length=200, widget=forms.TextInput(
         attrs={"placeholder": "e.g. Left the shop on 2026-11-30"}))
 
-    def __init__(self, *args, **kwargs):
+    def __init__(self, *args, example=None, **kwargs):
         super().__init__(*args, **kwargs)
+        if example:
+            self.fields["reason"].widget.attrs["placeholder"] = example
         self.helper = FormHelper()
         self.helper.form_tag = False
 

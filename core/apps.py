@@ -9,7 +9,7 @@ class CoreConfig(AppConfig):
     verbose_name = "People, roles and history"
 
     def ready(self):
-        from core import locking, lookups  # noqa: F401 - lookups registers the integer `in` that ignores impossible ids
+        from core import checks, locking, lookups  # noqa: F401 - checks and lookups register themselves
 
         locking.connect_m2m_guards(locking.guarded_models())
         post_migrate.connect(_install_triggers, sender=self, dispatch_uid="legwork_install_triggers")

@@ -17,9 +17,11 @@ Nothing is ever served from the bucket by URL: files go out through the same log
 
 from __future__ import annotations
 
-from contextlib import contextmanager
+import uuid
+from contextlib import contextmanager, suppress
 
 from botocore.exceptions import BotoCoreError, ClientError
+from django.core.files.base import ContentFile
 from storages.backends.s3 import S3Storage
 from storages.utils import ReadBytesWrapper, clean_name, is_seekable
 
@@ -106,3 +108,24 @@ class ObjectStorage(S3Storage):
 
     def path(self, name):
         raise NotImplementedError("Files in the object store have no local path: read them with open().")
+
+    def overwrite_refusal(self) -> str:
+        """Why this store would let a stored file be replaced ("" when it refuses, as Legwork needs): a probe object
+        is put twice with If-None-Match: *, and the second PUT must be refused; the probe is deleted again. A
+        store that ignores the condition would let two machines overwrite a signed record's file."""
+        name = f"legwork-probe/{uuid.uuid4().hex}.txt"
+        try:
+            with _translated("store", name):
+                first = self._put_new(name, ContentFile(b"probe"))
+                second = self._put_new(name, ContentFile(b"probe, again"))
+        except OSError as exc:  # unreachable, refused, or no such bucket (the store answers 404)
+            return f"a probe file could not be stored ({type(exc).__name__}: {exc}); does the bucket exist?"
+        finally:
+            with suppress(OSError):
+                self.delete(name)
+        if not first:
+            return f"the store refused a new name ({name}) as taken."
+        if second:
+            return ("the store accepted a second PUT of the same name with If-None-Match: * (it would replace a "
+                    "stored file); use a store that honours the condition (AWS S3 does).")
+        return ""

@@ -274,14 +274,23 @@ def test_deploy_checks_pass_with_the_files_in_an_object_store(s3_server):
     import subprocess
     import sys
     from pathlib import Path
+    from uuid import uuid4
 
-    env = {**os.environ, **s3_server.env("legwork-deploy-check"), "LEGWORK_DEBUG": "0",
+    bucket = f"legwork-deploy-{uuid4().hex[:12]}"
+    s3_server.client().create_bucket(Bucket=bucket)  # the check stores a probe in it (core/checks.py)
+    env = {**os.environ, **s3_server.env(bucket), "LEGWORK_DEBUG": "0",
            "LEGWORK_SECRET_KEY": "x" * 60 + "deploy-check-key", "LEGWORK_ALLOWED_HOSTS": "legwork.shop.example"}
     done = subprocess.run([sys.executable, "manage.py", "check", "--deploy", "--fail-level", "WARNING"],
                           cwd=Path(__file__).resolve().parent.parent, env=env, capture_output=True, text=True,
                           timeout=120)
     assert done.returncode == 0, done.stdout + done.stderr
     assert SECRET_KEY not in done.stdout + done.stderr
+    env.update(s3_server.env(f"{bucket}-missing"))  # a bucket that does not exist: said, not a traceback
+    done = subprocess.run([sys.executable, "manage.py", "check", "--deploy", "--fail-level", "WARNING"],
+                          cwd=Path(__file__).resolve().parent.parent, env=env, capture_output=True, text=True,
+                          timeout=120)
+    assert done.returncode == 1 and "legwork.E001" in done.stderr and "does the bucket exist" in done.stderr
+    assert "Traceback" not in done.stderr and SECRET_KEY not in done.stderr
 
 
 def test_a_prefix_keeps_legworks_files_in_one_folder_of_the_bucket(object_storage, settings, monkeypatch):
@@ -296,3 +305,21 @@ def test_a_prefix_keeps_legworks_files_in_one_folder_of_the_bucket(object_storag
         assert handle.read() == b"in a folder"
     config = default_storage._wrapped.client_config
     assert config.s3 == {"addressing_style": "path"} and config.connect_timeout == 5
+
+
+def test_the_deploy_check_probes_that_the_store_refuses_a_second_put(object_storage, monkeypatch):
+    from core import checks
+    from core.object_storage import ObjectStorage
+
+    assert checks.object_store_keeps_files() == []  # moto's server honours If-None-Match: *
+    assert object_storage.keys() == []  # the probe is deleted again
+    # A store that ignores the condition (each PUT "succeeds"): the check names it, keys never.
+    monkeypatch.setattr(ObjectStorage, "_put_new", lambda self, name, content: True)
+    error, = checks.object_store_keeps_files()
+    assert error.id == "legwork.E001" and "accepted a second PUT" in error.msg and SECRET_KEY not in error.msg
+
+
+def test_the_deploy_check_asks_nothing_of_a_local_disk(settings):
+    from core import checks
+
+    assert checks.object_store_keeps_files() == []

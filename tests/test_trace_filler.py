@@ -124,3 +124,22 @@ def test_a_lot_is_never_edited(make):
     lot.lot_number = "X"
     with pytest.raises(RecordLocked):
         lot.save()
+
+
+def test_the_weld_page_offers_the_newest_lots_of_the_wps_class_and_the_one_named(make, users, client_as):
+    from datetime import timedelta
+
+    from inspections.forms import trace as forms
+
+    weld = make.make_sound_weld()  # the factory's WPS specifies E71T-1C
+    old = make.make_filler_lot("E71T-1C", received_on=weld.welded_on - timedelta(days=400))
+    trace.record_weld_filler(weld, old, users["inspector"])
+    newer = [make.make_filler_lot("E71T-1C", received_on=weld.welded_on - timedelta(days=n))
+             for n in range(forms.LOTS_OFFERED)]
+    other = make.make_filler_lot("E70T-1C")
+    response = client_as("inspector").get(reverse("inspections:weld_filler", args=[weld.pk]))
+    offered = {pk for pk, _text in response.context["form"].fields["lot"].widget.choices if pk}
+    assert offered == {lot.pk for lot in newer} | {old.pk} and other.pk not in offered
+    # A lot not offered is still read back: recorded as it was, and the chain names the mismatch.
+    client_as("inspector").post(reverse("inspections:weld_filler", args=[weld.pk]), {"lot": other.pk})
+    assert Assembly.objects.get(pk=weld.assembly_id).welds.get(pk=weld.pk).filler_lot == other

@@ -5,6 +5,7 @@ from crispy_forms.helper import FormHelper
 from crispy_forms.layout import Column, Fieldset, Layout, Row
 from django import forms
 from django.core.exceptions import ValidationError
+from django.db.models import Q
 
 from core.documents import ACCEPT, clean_document
 from core.fields import LengthFormField
@@ -160,13 +161,27 @@ class FillerLotForm(forms.ModelForm):
         return clean_document(self.cleaned_data.get("document"), "certificate")
 
 
+LOTS_OFFERED = 40  # the newest lots of the WPS's classification a weld's page lists (years of lots stay out)
+
+
 class WeldFillerForm(forms.Form):
     lot = forms.ModelChoiceField(label="Filler lot used", queryset=FillerLot.objects.none(),
                                  help_text="As printed on the spool or box; its classification should be the WPS's.")
 
-    def __init__(self, *args, **kwargs):
+    def __init__(self, *args, weld=None, **kwargs):
+        """Any lot is read back (a mismatch is recorded and blocks, as the chain says); the list offers the newest
+        lots of the WPS's classification, and the lot the weld names now (one query)."""
         super().__init__(*args, **kwargs)
-        self.fields["lot"].queryset = FillerLot.objects.order_by("classification", "-received_on", "-pk")
+        lots = self.fields["lot"]
+        lots.queryset = FillerLot.objects.all()
+        offered = FillerLot.objects.order_by("-received_on", "-pk")
+        if weld is not None and weld.wps_id and weld.wps.electrode:
+            offered = offered.filter(classification=weld.wps.electrode)
+        named = weld.filler_lot_id if weld is not None else None
+        rows = list(offered[:LOTS_OFFERED]) if not named else list(
+            FillerLot.objects.filter(Q(pk__in=offered.values("pk")[:LOTS_OFFERED]) | Q(pk=named))
+            .order_by("-received_on", "-pk"))
+        lots.widget.choices = [("", "—")] + [(lot.pk, str(lot)) for lot in rows]
         _helper(self, Layout("lot"))
 
 

@@ -310,7 +310,7 @@ def filler_lot_document(request, pk):
 def weld_filler(request, pk):
     """Name the filler lot a weld was made with."""
     weld = get_visible_or_404(request.user, Weld.objects.select_related("assembly__job", "wps", "filler_lot"), pk=pk)
-    form = WeldFillerForm(request.POST or None, initial={"lot": weld.filler_lot_id})
+    form = WeldFillerForm(request.POST or None, initial={"lot": weld.filler_lot_id}, weld=weld)
     status = 200
     if request.method == "POST":
         status = 400

@@ -95,3 +95,21 @@ def test_a_lot_recall_says_which_weld_was_repaired_with_it_and_when(make, users,
     assert page.count(f"<td>{today.isoformat()}</td>") == 2  # the made weld's date, the repaired weld's repair date
     csv_lines = client_as("qa_lead").get(reverse("inspections:recall_csv") + f"?kind=lot&lot={lot.pk}").content
     assert b"Repaired on" in csv_lines.splitlines()[0]
+
+
+def test_the_form_lists_the_newest_lots_and_reads_back_an_older_one_by_its_link(make, users, client_as, monkeypatch):
+    from inspections.forms import trace as forms
+
+    monkeypatch.setattr(forms, "RECALL_OFFERED", 3)
+    old = make.make_filler_lot(received_on=timezone.localdate() - timedelta(days=900))
+    newest = [make.make_filler_lot(received_on=timezone.localdate() - timedelta(days=n)) for n in range(3)]
+    lot_welds(make, users, old, 2)
+    client = client_as("qa_lead")
+    listed = {pk for pk, _t in client.get(reverse("inspections:recall")).context["form"].fields["lot"].widget.choices}
+    assert {lot.pk for lot in newest} <= listed and old.pk not in listed
+    page = client.get(old.get_absolute_url()).content.decode()  # the lot's page links its recall
+    link = reverse("inspections:recall") + f"?kind=lot&amp;lot={old.pk}"
+    assert link in page
+    response = client.get(link.replace("&amp;", "&"))
+    assert "2 welds" in response.content.decode()
+    assert old.pk in {pk for pk, _t in response.context["form"].fields["lot"].widget.choices}

@@ -9,6 +9,7 @@ from django.db.models import Q
 
 from core.documents import ACCEPT, clean_document
 from core.fields import LengthFormField
+from core.inputs import parse_id
 from core.models import User
 from core.roles import Role
 from inspections import credentials as engine
@@ -185,6 +186,9 @@ class WeldFillerForm(forms.Form):
         _helper(self, Layout("lot"))
 
 
+RECALL_OFFERED = 200  # the newest lots and heats the recall form lists
+
+
 class RecallForm(forms.Form):
     """Which welds a lot, a gauge or an inspector touched between two dates (inspections.services.trace.recall)."""
 
@@ -199,9 +203,18 @@ class RecallForm(forms.Form):
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
-        self.fields["lot"].queryset = FillerLot.objects.order_by("classification", "lot_number")
+        self.fields["lot"].queryset = FillerLot.objects.all()
         self.fields["gauge"].queryset = Gauge.objects.order_by("number")
-        self.fields["heat"].queryset = MillCertificate.objects.order_by("heat_number", "pk")
+        self.fields["heat"].queryset = MillCertificate.objects.all()
+        # Lots and heats pile up over the years: the lists offer the newest (and the one asked now); any older one is
+        # read back by its id, which its own page's Recall link carries.
+        for name, newest in (("lot", FillerLot.objects.order_by("-received_on", "-pk")),
+                             ("heat", MillCertificate.objects.order_by("-recorded_at", "-pk"))):
+            asked = parse_id(str(self.data.get(name, ""))) if self.is_bound else None
+            rows = list(newest[:RECALL_OFFERED])
+            if asked and asked not in {r.pk for r in rows}:
+                rows += list(newest.model.objects.filter(pk=asked))
+            self.fields[name].widget.choices = [("", "—")] + [(r.pk, str(r)) for r in rows]
         self.fields["inspector"].queryset = User.objects.filter(role=Role.INSPECTOR).order_by("last_name",
                                                                                               "username")
 

@@ -46,6 +46,7 @@ from inspections.services.weldmap_csv import _safe as formula_safe  # the one gu
 from procedures.forms.welders import ReasonForm
 
 RETIRE_EXAMPLE = "e.g. Jaw bent; taken out of use"
+LOT_WELDS_SHOWN = 50
 CARD_EXAMPLE = "e.g. Number mistyped; the card is recorded again"
 
 
@@ -295,9 +296,11 @@ def _lot(request, pk):
 @require_safe
 def filler_lot_detail(request, pk):
     lot = _lot(request, pk)
-    welds = lot.welds.select_related("assembly__job__customer", "wps").order_by("welded_on", "pk")
+    welds = lot.welds.select_related("assembly__job__customer", "wps").order_by("-welded_on", "-pk")
+    # the latest welds only: a lot of ten thousand welds is read in full on the recall page and its CSV
     return render(request, "inspections/filler_lot_detail.html", {
-        "lot": lot, "welds": list(welds), "history": history.panel(lot)})
+        "lot": lot, "welds": list(welds[:LOT_WELDS_SHOWN]), "weld_count": lot.welds.count(),
+        "history": history.panel(lot)})
 
 
 @require_safe

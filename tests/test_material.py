@@ -494,3 +494,15 @@ def test_a_typed_base_metal_is_kept_when_the_weld_names_its_parts(make, users):
     weld = make.make_weld(base_metals="ASTM A514, ASTM A572 Gr 50")
     material.record_weld_parts(weld, make.make_part(weld.assembly), None, users["qa_lead"])
     assert Weld.objects.get(pk=weld.pk).base_metals == "ASTM A514, ASTM A572 Gr 50"
+
+
+def test_a_heat_page_shows_its_first_parts_and_counts_them_all(make, client_as, monkeypatch):
+    from inspections.views import material as views
+
+    monkeypatch.setattr(views, "PARTS_SHOWN", 2)
+    heat = make.make_heat()
+    for _ in range(3):
+        make.make_part(heat=heat)
+    response = client_as("qa_lead").get(heat.get_absolute_url())
+    assert len(response.context["parts"]) == 2 and response.context["part_count"] == 3
+    assert "the first 2 below, all of them in the recall" in response.content.decode()

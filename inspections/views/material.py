@@ -25,6 +25,7 @@ from procedures.forms.welders import ReasonForm
 
 HEAT_EXAMPLE = "e.g. Heat number mistyped; recorded again"
 PART_EXAMPLE = "e.g. Cut from another heat; recorded again with it"
+PARTS_SHOWN = 50
 
 
 class HeatFilter(ListFilterSet):
@@ -90,8 +91,10 @@ def heat_detail(request, pk):
 def _heat_page(request, heat, form, status=200):
     parts = heat.parts.select_related("assembly__job").order_by("assembly__job__number", "assembly__piece_mark",
                                                                   "mark")
+    # the first parts only: a plate heat may feed a thousand; the recall page and its CSV list them all
     return render(request, "inspections/heat_detail.html", {
-        "heat": heat, "parts": list(parts), "form": form, "history": history.panel(heat),
+        "heat": heat, "parts": list(parts[:PARTS_SHOWN]), "part_count": heat.parts.count(), "form": form,
+        "history": history.panel(heat),
         "chemistry": [(heat._meta.get_field(n).verbose_name, f"{getattr(heat, n).normalize():f}")
                       for n in (*engine.ELEMENTS, "ce") if getattr(heat, n) is not None]},
         status=status)

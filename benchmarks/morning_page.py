@@ -57,6 +57,7 @@ def _seed(total: int):
     from django.utils import timezone
 
     from core.units import parse_length as L
+    from inspections import uses
     from inspections.models import NCR, Assembly, Customer, Inspection, Job, Weld
     from inspections.models.ncr import Disposition, NCRState
     from inspections.services.inspect import findings_json, judge
@@ -140,6 +141,7 @@ def _seed(total: int):
                                               dispositioned_by=users["qa_lead"], dispositioned_at=r.inspected_at,
                                               closed_at=r.inspected_at + timedelta(days=3))))
             for n, r in enumerate(rejected)], batch_size=5000)
+        uses.rebuild()  # bulk inserts send no signals: the WPSs and welders each job uses (inspections.uses)
         # The finished assemblies move to released by the one legal state move (core/triggers.py allow it).
         finished_ids = [a.pk for a in assemblies[:-open_tail]]
         with connection.cursor() as cursor:

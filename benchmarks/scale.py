@@ -104,6 +104,7 @@ def build(scale):
     from django.utils import timezone
 
     from core.units import parse_length as L
+    from inspections import uses
     from inspections.models import NCR, Assembly, AssemblyState, Customer, Inspection, Job, Weld
     from procedures import continuity
     from procedures.models import WPS, ContinuityEntry, Welder
@@ -198,6 +199,7 @@ def build(scale):
                              for i, (pk, weld_id, at) in enumerate(rejected)], batch_size=2000)
     pointers = [Weld(pk=weld_id, latest_inspection_id=pk, latest_final_id=pk) for weld_id, pk in latest.items()]
     Weld.objects.bulk_update(pointers, ["latest_inspection", "latest_final"], batch_size=2000)
+    uses.rebuild()  # bulk inserts send no signals: the WPSs and welders each job uses, from its welds
     return {**n, "ncrs": len(rejected), "welders": WELDERS, "wpss": WPSS}
 
 

@@ -35,6 +35,8 @@ from inspections.models import (
     Inspection,
     InspectorCredential,
     Job,
+    JobWelder,
+    JobWPS,
     OvenReading,
     Photo,
     Rebake,
@@ -84,21 +86,14 @@ def _job_ids(user):
     return jobs_visible_to(user).values("pk")
 
 
-def _welds(user):
-    return Weld.objects.filter(assembly__job__in=_job_ids(user))
-
-
 def _wps_ids(user):
-    on_welds = _welds(user).exclude(wps=None).values("wps")
-    repairs = NCR.objects.filter(weld__in=_welds(user).values("pk")).exclude(repair_wps=None).values("repair_wps")
-    return WPS.objects.filter(Q(pk__in=on_welds) | Q(pk__in=repairs)).values("pk")
+    """The WPSs named on the user's jobs (by a weld or an NCR's repair): the fact inspections.uses keeps."""
+    return JobWPS.objects.filter(job__in=_job_ids(user)).values("wps")
 
 
 def _welder_ids(user):
-    on_welds = Weld.welders.through.objects.filter(weld__in=_welds(user).values("pk")).values("welder")
-    repairs = (NCR.objects.filter(weld__in=_welds(user).values("pk")).exclude(repair_welder=None)
-               .values("repair_welder"))
-    return Welder.objects.filter(Q(pk__in=on_welds) | Q(pk__in=repairs)).values("pk")
+    """The welders named on the user's jobs (on a weld or as an NCR's repair welder), from the same fact."""
+    return JobWelder.objects.filter(job__in=_job_ids(user)).values("welder")
 
 
 def _narrow(user, queryset):

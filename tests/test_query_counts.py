@@ -99,7 +99,8 @@ def test_scrap(make, weld, users, django_assert_num_queries):
 # a signing that seals also locks the chain first (1), in its own atomic block where it was not one (2).
 SIGN_ACCEPTED = 19  # credential; lock chain, weld; state; fit-up; insert + history; seal; point the weld; refresh
 SIGN_REJECTED = 30  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
-REPAIR = 20  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh
+REPAIR = 23  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh;
+#             the job's uses: the repair WPS and welder before, one insert each (inspections.uses)
 SIGN_CLOSING_REPAIR = 33  # an accepted signing + the waiting NCR closed (transition, seal) + the assembly's move back
 USE_AS_IS = 26  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals; refresh
 SCRAP = 25  # the NCR with its records; chain, its transition and two seals; the assembly's transition to scrapped

@@ -35,6 +35,7 @@ from inspections.models.trace import (
     InspectorCredential,
 )
 from inspections.models.traveler import JobPacket, PacketState, Traveler
+from inspections.models.uses import JobWelder, JobWPS
 
 __all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCriteriaSet", "CredentialState",
            "Customer", "DraftPhoto", "FillerLot", "Gauge", "GaugeCalibration", "GaugeKind", "GaugeState", "Inspection",
@@ -43,3 +44,4 @@ __all__ = ["NCR", "Assembly", "AssemblyState", "CalibrationResult", "ClientCrite
 __all__ += ["MaterialState", "MillCertificate", "Part", "PartRole"]  # material traceability (issue 18 item 1)
 __all__ += ["ElectrodeIssue", "ElectrodeOven", "FluxEvent", "FluxRecord", "IssueState", "OvenKind", "OvenReading",
             "OvenState", "Rebake"]
+__all__ += ["JobWPS", "JobWelder"]  # which WPSs and welders each job uses (inspections.uses)

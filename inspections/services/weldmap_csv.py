@@ -21,6 +21,7 @@ from core import history, lists
 from core.errors import Refused
 from core.fields import exact_length_text
 from core.vocabulary import WELD_PROCESS_CHOICES
+from inspections import uses
 from inspections.forms.jobs import WeldSpecForm
 from inspections.models import Assembly, Weld
 from inspections.services import chain
@@ -277,6 +278,7 @@ def import_weld_map(data: bytes, job, user=None) -> list:
         except IntegrityError:  # someone added the same mark meanwhile (or released the assembly: the trigger)
             raise Refused("A weld mark in the file was added by someone else meanwhile, or its assembly was "
                           "released; preview it again.", code="race") from None
+        uses.add(wps={(job.pk, weld.wps_id) for weld in welds})  # bulk_create sends no signal (inspections.uses)
         history.record_many(welds, user, history.CREATED, reason=f"Weld map imported ({len(welds)} welds)")
     return welds
 

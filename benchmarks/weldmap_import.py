@@ -1,14 +1,16 @@
 """A 5,000-row weld-map import (issue 16 target: <= 2x a bare parse-and-insert), through the pages a person uses.
 
-    .venv/bin/python benchmarks/weldmap_import.py [--rows 5000] [--repeat 3]
+    .venv/bin/python benchmarks/weldmap_import.py [--rows 5000] [--repeat 3] [--distinct-lengths]
 
 A throwaway SQLite database with the demo shop; 250 new assemblies on the demo's first job, and a CSV of --rows
 welds spread over them, every row copied from a weld the demo's export already holds (so every row is valid:
-its WPS is approved and covers it). Measured, as the QA lead: the preview (upload, every row checked, the page
+its WPS is approved and covers it), so each value repeats down the file: the import cleans each distinct value of
+a column once per file (inspections.services.weldmap_csv). --distinct-lengths gives every row its own length, a
+value cleaned on every row. Measured, as the QA lead: the preview (upload, every row checked, the page
 rendered) and the import (confirm: read again, checked again, inserted, a history row per weld), each rolled back
 after timing so every repeat starts equal. Beside them, the bare floor: csv.reader, the lengths parsed, Weld
-objects built and bulk-inserted, nothing checked. It prints the medians, the ratio import/bare and the preview
-page's size.
+objects built and bulk-inserted, nothing checked. The three are timed in turn in each repeat, so a busy machine
+slows all three alike. It prints the medians, the ratio import/bare and the preview page's size.
 """
 
 import argparse
@@ -17,6 +19,7 @@ import io
 import statistics
 import sys
 import time
+from decimal import Decimal
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -31,14 +34,17 @@ def arguments():
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--rows", type=int, default=5000, help="welds in the file (100 to 5000, the import's limit)")
     parser.add_argument("--repeat", type=int, default=3, help="timed runs of each (1 to 10)")
+    parser.add_argument("--distinct-lengths", action="store_true", help="every row its own length")
     args = parser.parse_args()
     if not 100 <= args.rows <= 5000 or not 1 <= args.repeat <= 10:
         raise SystemExit("keep it bounded: --rows from 100 to 5000, --repeat from 1 to 10")
     return args
 
 
-def make_file(rows: int):
-    """(job, CSV bytes): new assemblies on the demo's first job and `rows` welds copied from its weld map."""
+def make_file(rows: int, distinct_lengths=False):
+    """(job, CSV bytes): new assemblies on the demo's first job and `rows` welds copied from its weld map (with
+    distinct_lengths, each row's length its own: the template's plus n/1000 of its unit)."""
+    from core.units import parse_length
     from inspections.models import Assembly, Job
     from inspections.services.weldmap_csv import COLUMNS, export_weld_map
 
@@ -51,25 +57,30 @@ def make_file(rows: int):
     out = io.StringIO()
     writer = csv.DictWriter(out, COLUMNS)
     writer.writeheader()
+    unit = "in" if job.unit_system == "US" else "mm"
+    base = parse_length(template["length"]).in_system(job.unit_system)
     for n in range(rows):
-        writer.writerow({**template, "piece_mark": marks[n // per], "weld_mark": f"W{n % per + 1}"})
+        length = f"{base + Decimal(n) / 1000} {unit}" if distinct_lengths else template["length"]
+        writer.writerow({**template, "piece_mark": marks[n // per], "weld_mark": f"W{n % per + 1}", "length": length})
     return job, out.getvalue().encode()
 
 
-def timed(step, repeat):
+def timed(steps, repeat):
+    """[(median seconds, last result)] of each step, the steps run in turn `repeat` times, each rolled back."""
     from django.db import transaction
 
-    times, result = [], None
+    times, results = [[] for _ in steps], [None] * len(steps)
     for _ in range(repeat):
-        started = time.perf_counter()
-        try:
-            with transaction.atomic():
-                result = step()
-                times.append(time.perf_counter() - started)
-                raise Rollback
-        except Rollback:
-            pass
-    return statistics.median(times), result
+        for n, step in enumerate(steps):
+            started = time.perf_counter()
+            try:
+                with transaction.atomic():
+                    results[n] = step()
+                    times[n].append(time.perf_counter() - started)
+                    raise Rollback
+            except Rollback:
+                pass
+    return [(statistics.median(t), r) for t, r in zip(times, results, strict=True)]
 
 
 def bare(job, data):
@@ -99,7 +110,7 @@ def main():
         from django.test import Client
         from django.urls import reverse
 
-        job, data = make_file(args.rows)
+        job, data = make_file(args.rows, args.distinct_lengths)
         client = Client()
         client.force_login(get_user_model().objects.get(username="qalead"))
         url = reverse("inspections:weldmap_import", args=[job.pk])
@@ -114,12 +125,12 @@ def main():
             assert response.status_code == 302, response.status_code
             return response
 
-        preview_s, page_bytes = timed(preview, args.repeat)
-        import_s, _ = timed(confirm, args.repeat)
-        bare_s, count = timed(lambda: bare(job, data), args.repeat)
+        (preview_s, page_bytes), (import_s, _), (bare_s, count) = timed(
+            [preview, confirm, lambda: bare(job, data)], args.repeat)
     finally:
         scale.teardown("sqlite", folder)
-    print(f"# benchmarks/weldmap_import.py --rows {args.rows} --repeat {args.repeat}  (SQLite, medians)")
+    distinct = " --distinct-lengths" if args.distinct_lengths else ""
+    print(f"# benchmarks/weldmap_import.py --rows {args.rows} --repeat {args.repeat}{distinct}  (SQLite, medians)")
     print(f"preview (upload, check every row, render): {preview_s:.2f} s, page {page_bytes / 1024:.0f} KB")
     print(f"import (confirm: read, check, insert, history): {import_s:.2f} s")
     print(f"bare csv parse and bulk insert of {count} welds: {bare_s:.2f} s")

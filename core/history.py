@@ -64,10 +64,11 @@ def record_many(subjects, user, action, *, reason="") -> list:
     subjects = list(subjects)
     if not subjects:
         return []
-    types = ContentType.objects.get_for_models(*{type(s) for s in subjects})
-    user = user if getattr(user, "pk", None) else None
-    return Event.objects.bulk_create([
-        Event(subject_type=types[type(s)], subject_id=s.pk, action=action, reason=(reason or "").strip(), user=user)
+    types = {model: ct.pk for model, ct in ContentType.objects.get_for_models(*{type(s) for s in subjects}).items()}
+    user_id = getattr(user, "pk", None)
+    reason = (reason or "").strip()
+    return Event.objects.bulk_create([  # ids, not objects: 5,000 rows skip 10,000 relation assignments
+        Event(subject_type_id=types[type(s)], subject_id=s.pk, action=action, reason=reason, user_id=user_id)
         for s in subjects])
 
 

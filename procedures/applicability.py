@@ -19,6 +19,7 @@ Whether the WPS was approved on the day the weld was made is a question of recor
 Django side answers it (procedures.models.wps.WPS.in_force_on) before it asks this engine.
 
 Entry point: review(wps, weld, job=None) -> list[Finding]. A value that cannot be read raises ValueError.
+reviewer(wps, job) gives the same review for many welds, the WPS and job read once.
 
 wps: {"label": "WPS BSW-101 rev 1", "code": "AWS D1.1:2020" | "ISO 15609-1:2019", "unit_system": "US" | "SI",
       "process": "FCAW", "transfer": None | "short_circuit" | ..., "positions": ["F", "H"],
@@ -286,14 +287,29 @@ RULES = (rule_code, rule_units, rule_process, rule_joint, rule_position, rule_pr
 
 def review(wps, weld, job=None) -> list[Finding]:
     """Findings where the WPS does not cover the weld (errors) or cannot be compared (warnings); [] = it applies."""
-    parsed_wps, parsed_weld = _Wps(wps), _Weld(weld)
-    parsed_job = None if job is None else _Job(job)
-    findings = [f for rule in RULES for f in rule(parsed_wps, parsed_weld, parsed_job)]
-    return sorted(findings, key=lambda f: f.severity != "error")
+    return reviewer(wps, job)(weld)
+
+
+def reviewer(wps, job=None):
+    """review() of many welds against one WPS on one job (a weld map's rows): the WPS and the job are read once.
+    reviewer(wps, job)(weld) == review(wps, weld, job), errors included: the WPS is read here (a WPS that cannot be
+    read raises now), the job after the first weld, as review() reads them."""
+    parsed_wps = _Wps(wps)
+    parsed_job = []
+
+    def review_weld(weld) -> list[Finding]:
+        parsed_weld = _Weld(weld)
+        if job is not None and not parsed_job:
+            parsed_job.append(_Job(job))
+        job_read = parsed_job[0] if parsed_job else None
+        findings = [f for rule in RULES for f in rule(parsed_wps, parsed_weld, job_read)]
+        return sorted(findings, key=lambda f: f.severity != "error")
+
+    return review_weld
 
 
 def errors(findings) -> list[Finding]:
     return [f for f in findings if f.severity == "error"]
 
 
-__all__ = ["RULES", "errors", "review"]
+__all__ = ["RULES", "errors", "review", "reviewer"]

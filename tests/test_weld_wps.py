@@ -152,3 +152,29 @@ def test_the_tablet_shows_a_weld_whose_wps_does_not_apply_as_blocked(client_as, 
     blocked = {weld.mark: reasons for weld, _status, reasons in page.context["cards"]}
     assert blocked["W1"] == [] and len(blocked["W2"]) == 1 and "never approved" in blocked["W2"][0]
     assert page.text.count("Blocked") == 1
+
+
+def test_a_checker_for_many_welds_answers_each_as_wps_check_does(make, assembly):
+    """chain.WpsChecker (the weld-map import's) works each WPS out once and each weld's values once: every answer
+    is wps_check's, repeated welds included, and each a list of its own."""
+    from inspections.services import chain
+
+    job = assembly.job
+    approved = make.make_wps(state=WPSState.APPROVED)
+    draft = make.make_wps(state=WPSState.DRAFT)
+    welds = [Weld(assembly=assembly, mark=mark, joint_type=joint, size=L(size), length=L("12 in"),
+                  thickness1=L("3/8 in"), thickness2=L(thickness), position="F")
+             for mark, joint, size, thickness in [("W1", "fillet", "1/4 in", "1/2 in"),
+                                                  ("W2", "fillet", "1/4 in", "2 in"),
+                                                  ("W3", "groove", "1/4 in", "1/2 in"),
+                                                  ("W1", "fillet", "1/4 in", "1/2 in"),
+                                                  ("W2", "fillet", "1/4 in", "2 in")]]
+    checker = chain.WpsChecker(job, TODAY)
+    for wps in (approved, draft, approved):
+        for weld in welds:
+            mine, alone = checker.check(weld, wps), chain.wps_check(weld, wps, job, TODAY)
+            assert (mine.wps, mine.errors, mine.notes) == (alone.wps, alone.errors, alone.notes)
+            mine.errors.append("changed by the caller")
+    assert checker.check(welds[0], approved).errors == []
+    assert checker.check(welds[1], approved).errors and checker.check(welds[0], draft).errors
+    assert checker.check(welds[0], None).errors == ["no WPS is named"]

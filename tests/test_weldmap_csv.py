@@ -5,6 +5,8 @@ import io
 
 import pytest
 from django.core.files.uploadedfile import SimpleUploadedFile
+from django.db import connection
+from django.test.utils import CaptureQueriesContext
 from django.urls import reverse
 
 from core.errors import Refused
@@ -220,3 +222,65 @@ def test_a_throat_only_weld_exports_without_a_made_up_leg(make):
                                 job)
     line = weldmap_csv.export_weld_map(job).splitlines()[1]
     assert line.startswith("K1,N1,fillet,,,4 mm,200 mm,")
+
+
+def _map_of(prefix, rows):
+    """`rows` good welds over both assemblies and two WPSs, each row's length its own."""
+    return (HEADER + "".join(f"{'B1' if n % 2 else 'C2'},{prefix}{n},fillet,{'1/4' if n % 3 else '5/16'},,{12 + n},1,"
+                             f"arrow,3/8,1/2,F,{'BSW-501' if n % 2 else 'BSW-502'}\n" for n in range(rows))).encode()
+
+
+def _counted(step):
+    """(queries other than INSERTs, INSERTs) that `step` asks."""
+    with CaptureQueriesContext(connection) as ctx:
+        step()
+    inserts = [q for q in ctx.captured_queries if q["sql"].lstrip().upper().startswith("INSERT")]
+    return len(ctx.captured_queries) - len(inserts), len(inserts)
+
+
+def test_the_preview_and_import_ask_as_many_queries_for_50_rows_as_for_10(job, make):
+    make.make_wps(number="BSW-502", state=WPSState.APPROVED, joint_types="fillet")
+    import_weld_map(_map_of("X", 1), job)  # caches warmed (content types), so both counts start equal
+    assert _counted(lambda: read_weld_map(_map_of("S", 10), job)) == \
+        _counted(lambda: read_weld_map(_map_of("L", 50), job))
+    others_10, inserts_10 = _counted(lambda: import_weld_map(_map_of("S", 10), job))
+    others_50, inserts_50 = _counted(lambda: import_weld_map(_map_of("L", 50), job))
+    assert others_50 == others_10
+    # the welds and their history rows go in bulk: one INSERT each for 10 rows, at most two each for 50 (SQLite
+    # binds at most 999 values a statement: 30-odd welds)
+    assert inserts_10 == 2 and inserts_50 <= 4
+    assert Weld.objects.count() == 61
+
+
+def test_the_models_field_checks_answer_as_djangos_own_from_memory_too(job):
+    """weldmap_csv._model_clean_fields is Model.clean_fields with each value's answer remembered for the file: the
+    same errors and cleaned values as Django's own, the first time and from memory (a Django upgrade that changes
+    the loop shows here)."""
+    from decimal import Decimal
+
+    from django.core.exceptions import ValidationError
+
+    from core.units import Length
+    from inspections.services.weldmap_csv import _model_clean_fields
+
+    assembly = job.assemblies.get(piece_mark="B1")
+    good = dict(mark="W1", joint_type="fillet", size=L("1/4 in"), length=L("12 in"), count=2, sides="both",
+                thickness1=L("3/8 in"), thickness2=L("1/2 in"), position="H")
+    cases = [good, {**good, "mark": "W" * 21, "joint_type": "weave", "sides": "sideways", "position": "Q"},
+             {**good, "size": Length(Decimal("123456789012")), "mark": ""}, {**good, "size2": L("5/16 in")}]
+
+    def outcome(clean, values):
+        weld = Weld(assembly=assembly, **values)
+        try:
+            clean(weld)
+            errors = {}
+        except ValidationError as exc:
+            errors = exc.message_dict
+        return errors, {f.attname: getattr(weld, f.attname) for f in Weld._meta.fields}
+
+    known, exclude = {}, {"assembly"}
+    for values in cases + cases:  # the second round answers from memory
+        djangos = outcome(lambda weld: weld.clean_fields(exclude=set(exclude)), values)
+        assert outcome(lambda weld: _model_clean_fields(weld, known, exclude=set(exclude)), values) == djangos
+    assert all(outcome(lambda weld: weld.clean_fields(exclude=set(exclude)), c)[0] for c in cases[1:3])
+    assert "size" in outcome(lambda weld: weld.clean_fields(exclude=set(exclude)), cases[2])[0]

@@ -130,3 +130,16 @@ def test_two_rows_without_a_weld_mark_each_say_it_is_missing(aws_job):
     text = AWS_HEADER + "\nB1,,fillet,1/4,,12,1,arrow,3/8,1/2,F,\nB1, ,fillet,1/4,,12,1,arrow,3/8,1/2,F,\n"
     first, second = read_weld_map(text.encode(), aws_job).rows
     assert first.errors == second.errors == ["weld_mark: empty."]
+
+
+def test_a_value_refused_on_one_row_is_refused_on_every_row_that_repeats_it(aws_job):
+    """Each field remembers the values it has cleaned for the file (weldmap_csv._remembered) but never a refusal:
+    every row that repeats a bad value gets its own error, in the same words, and the good rows between stay good."""
+    rows = ["B1,W1,fillet,abc,,12,1,arrow,3/8,1/2,F,", "B1,W2,fillet,1/4,,12,1,arrow,3/8,1/2,F,",
+            "B1,W3,fillet,abc,,12,1,arrow,3/8,1/2,F,", "B1,W4,fillet,1/4,,12,1,sideways,3/8,1/2,F,",
+            "B1,W5,fillet,1/4,,12,1,sideways,3/8,1/2,F,", "B1,W6,fillet,1/4,,12,1,arrow,3/8,1/2,F,"]
+    errors = [r.errors for r in read_weld_map((AWS_HEADER + "\n" + "\n".join(rows) + "\n").encode(), aws_job).rows]
+    assert errors[0] == errors[2] and errors[0][0].startswith("size:")
+    assert errors[3] == errors[4] and errors[3][0].startswith("sides:")
+    assert errors[1] == errors[5] == []
+    assert errors[0] is not errors[2]

@@ -106,21 +106,58 @@ def prime_successors(wps_list) -> None:
 def wps_check(weld, wps, job, day, label=None) -> WpsCheck:
     """Is `wps` in force on `day` and does it cover the weld on this job? (No query when the WPS's next revision is
     loaded: _prime_successors.)"""
-    if wps is None:
-        return WpsCheck(None, ["no WPS is named"])
-    check = WpsCheck(wps)
-    reason = wps.in_force_on(day)
-    if reason:
-        check.errors.append(reason)
-    try:
-        findings = applicability.review(wps.applicability_input(), weld.applicability_input(label),
-                                        job.applicability_input())
-    except ValueError as exc:
-        check.errors.append(f"{wps} cannot be compared with the weld: {exc}")
+    return WpsChecker(job, day).check(weld, wps, label)
+
+
+class WpsChecker:
+    """wps_check() of many welds on one job and day (a weld map's rows): what depends on the WPS alone -- in force
+    on the day, its values as applicability reads them -- is worked out once per WPS, and the answer for a weld
+    once per WPS and weld values (label included: weld maps repeat W1, W2... on every assembly)."""
+
+    def __init__(self, job, day):
+        self.job, self.day = job, day
+        self._per_wps = {}  # wps.pk -> (why not in force or None, applicability.reviewer or why it cannot be read)
+        self._answers = {}  # (wps.pk, the weld's applicability values) -> (errors, notes)
+
+    def check(self, weld, wps, label=None) -> WpsCheck:
+        if wps is None:
+            return WpsCheck(None, ["no WPS is named"])
+        values = weld.applicability_input(label)
+        if wps.pk is None:
+            return self._check(values, wps)
+        key = (wps.pk, tuple((k, tuple(v) if isinstance(v, list) else v) for k, v in values.items()))
+        if key not in self._answers:
+            check = self._check(values, wps)
+            self._answers[key] = (tuple(check.errors), tuple(check.notes))
+        errors, notes = self._answers[key]
+        return WpsCheck(wps, list(errors), list(notes))
+
+    def _check(self, values, wps) -> WpsCheck:
+        check = WpsCheck(wps)
+        if wps.pk is None or wps.pk not in self._per_wps:
+            try:
+                review = applicability.reviewer(wps.applicability_input(), self.job.applicability_input())
+            except ValueError as exc:
+                review = str(exc)
+            known = (wps.in_force_on(self.day), review)
+            if wps.pk is not None:
+                self._per_wps[wps.pk] = known
+        else:
+            known = self._per_wps[wps.pk]
+        reason, review = known
+        if reason:
+            check.errors.append(reason)
+        try:
+            if isinstance(review, str):
+                raise ValueError(review)
+            findings = review(values)
+        except ValueError as exc:
+            check.errors.append(f"{wps} cannot be compared with the weld: {exc}")
+            return check
+        for finding in findings:
+            (check.errors if finding.severity == "error" else check.notes).append(
+                f"{finding.message} ({finding.source})")
         return check
-    for finding in findings:
-        (check.errors if finding.severity == "error" else check.notes).append(f"{finding.message} ({finding.source})")
-    return check
 
 
 def wps_checks(welds, job, on=None) -> dict[int, WpsCheck]:

@@ -3,18 +3,22 @@
 Import is two steps: read_weld_map() gives a preview with one error per bad row and changes nothing (a row whose
 WPS is not approved today or does not cover the weld is a bad row: inspections.services.chain.wps_check);
 import_weld_map() writes every row or none, in one transaction, after reading the file again. Each row is
-checked by the same form as the weld page (WeldSpecForm), so a rule lives once. Export writes the same columns,
-lengths in the job's system as text that reads back exactly, and defuses cells a spreadsheet would run as a
-formula (OWASP "CSV injection": a leading = + - @, tab or carriage return gets a leading ').
+checked by the same form as the weld page (WeldSpecForm), so a rule lives once; what a file repeats is worked out
+once per file with the same answer (each field's cleaning of a value, each WPS's reading: _prototype,
+chain.WpsChecker), and no query is asked per row (tests/test_weldmap_csv.py counts them). Export writes the same
+columns, lengths in the job's system as text that reads back exactly, and defuses cells a spreadsheet would run as
+a formula (OWASP "CSV injection": a leading = + - @, tab or carriage return gets a leading ').
 """
 
-import copy
 import csv
+import functools
 import io
 import itertools
 from dataclasses import dataclass, field
 
+from django.core.exceptions import ValidationError
 from django.db import IntegrityError, transaction
+from django.db.models.expressions import DatabaseDefault
 from django.utils import timezone
 
 from core import history, lists
@@ -55,6 +59,7 @@ class Row:
     wps: WPS | None = None
     cleaned: dict | None = None
     process: str = ""
+    weld: Weld | None = None  # the weld the row makes (its form's instance), WPS and process set by the import
     flags: list = field(default_factory=list)  # what the weld page would flag (inspections.services.flags)
 
 
@@ -148,7 +153,10 @@ def _records(text: str):
 class _RowForm(WeldSpecForm):
     """The weld page's form for one row of the file: the same fields and rules, but the weld mark's uniqueness is
     answered once for the whole file (the sets in read_weld_map), not by two queries per row (the form's unique
-    check and the model's constraint check); the database's constraint still guards the insert."""
+    check and the model's constraint check); the database's constraint still guards the insert. The model's field
+    checks run for every row, each value's answer remembered for the file (_model_clean_fields)."""
+
+    model_cleaned = None  # {(field, type, value): the model field's cleaned value}, one dict per file (_prototype)
 
     def clean_mark(self):
         return self.cleaned_data["mark"].strip()
@@ -158,13 +166,71 @@ class _RowForm(WeldSpecForm):
 
     def _post_clean(self):
         self.instance.validate_constraints = lambda exclude=None: None  # weld_mark_unique_in_assembly: see above
+        if self.model_cleaned is not None:
+            self.instance.clean_fields = functools.partial(_model_clean_fields, self.instance, self.model_cleaned)
         super()._post_clean()
+
+
+def _model_clean_fields(instance, known, exclude=None):
+    """Model.clean_fields() (Django 5.2's loop, unchanged) with each field's answer for a value remembered in
+    `known`: a model field's cleaning of the fields a weld map fills is a function of the value alone. A value
+    refused is checked again each time, so each row gets its own error."""
+    if exclude is None:
+        exclude = set()
+    errors = {}
+    for f in instance._meta.fields:
+        if f.name in exclude or f.generated:
+            continue
+        raw_value = getattr(instance, f.attname)
+        if f.blank and raw_value in f.empty_values:
+            continue
+        if isinstance(raw_value, DatabaseDefault):
+            continue
+        key = (f.attname, type(raw_value), raw_value)
+        try:
+            value = known[key]
+        except KeyError:
+            try:
+                value = known[key] = f.clean(raw_value, instance)
+            except ValidationError as e:
+                errors[f.name] = e.error_list
+                continue
+        setattr(instance, f.attname, value)
+    if errors:
+        raise ValidationError(errors)
+
+
+def _remembered(clean):
+    """A form field's clean() that answers a value it has cleaned before from memory: a field's cleaning is a
+    function of the value alone once the field is set up for the job, and a weld map repeats its thicknesses, sizes
+    and choices row after row. A value refused is checked again each time (the same words, each row its own)."""
+    known = {}
+
+    def remembered(value):  # the value is a cell's text
+        try:
+            return known[value]
+        except KeyError:
+            known[value] = result = clean(value)
+            return result
+
+    return remembered
+
+
+def _prototype(assembly) -> _RowForm:
+    """The file's one form: its fields set up for the job (the same for every row), each remembering the values it
+    has cleaned (_remembered). The rows' forms share its fields (_row_form)."""
+    prototype = _RowForm(data={}, assembly=assembly, auto_id=False)  # never drawn: no HTML ids to make per row
+    for form_field in prototype.fields.values():
+        form_field.clean = _remembered(form_field.clean)
+    prototype.model_cleaned = {}
+    return prototype
 
 
 def _row_form(prototype: _RowForm, values: dict, assembly) -> _RowForm:
     """A bound form for one row that shares the prototype's fields: building a form deep-copies its fields, a
     third of the import's time, and the fields depend only on the job, the same for every row."""
-    form = copy.copy(prototype)
+    form = _RowForm.__new__(_RowForm)  # copy.copy(prototype), without the copy protocol's detour
+    form.__dict__.update(prototype.__dict__)
     form.data, form.files, form.is_bound, form._errors = values, {}, True, None
     form._bound_fields_cache = {}
     form.assembly, form.instance = assembly, Weld(assembly=assembly)
@@ -199,6 +265,8 @@ def read_weld_map(data: bytes, job) -> Preview:
     existing = {(pm.lower(), m) for pm, m in existing}
     seen, wps_cache = {}, {}
     prototype = None
+    # The same check as the weld form, for every row on one day: approved now (the file has no weld dates).
+    wps_checker = chain.WpsChecker(job, timezone.localdate())
     for line, names, cells in records:
         row = Row(line=line, values={})
         if len(cells) > len(names):
@@ -245,15 +313,15 @@ def read_weld_map(data: bytes, job) -> Preview:
                 row.errors.append(f"process: {values['process']} is not one of {', '.join(PROCESSES.values())} "
                                   "(leave it blank for the WPS's process).")
         data = {FORM_FIELD[k]: values[k] for k in FORM_FIELD}
-        prototype = prototype or _RowForm(data={}, assembly=row.assembly)
+        prototype = prototype or _prototype(row.assembly)
         form = _row_form(prototype, data, row.assembly)
         if form.is_valid():
             row.cleaned, row.flags = form.cleaned_data, list(form.flags)
+            row.weld = form.instance  # the row's cleaned values, as the model checked them
+            row.weld.process = row.process
             if row.wps is not None:
-                # The same check as the weld form: approved now (the file has no weld dates) and covering the weld.
-                weld = Weld(assembly=row.assembly, process=row.process, **row.cleaned)
-                row.errors += [f"wps_number: {error}" for error in
-                               chain.wps_check(weld, row.wps, job, timezone.localdate()).errors]
+                # approved now and covering the weld
+                row.errors += [f"wps_number: {error}" for error in wps_checker.check(row.weld, row.wps).errors]
         else:
             reverse = {v: k for k, v in FORM_FIELD.items()}
             for name, errors in form.errors.items():
@@ -271,7 +339,9 @@ def import_weld_map(data: bytes, job, user=None) -> list:
         if not preview.ok:
             problems = preview.file_errors + [f"Line {r.line}: {'; '.join(r.errors)}" for r in preview.bad_rows]
             raise Refused(problems or ["Nothing to import."], code="invalid")
-        welds = [Weld(assembly=row.assembly, wps=row.wps, process=row.process, **row.cleaned) for row in preview.rows]
+        welds = [row.weld for row in preview.rows]
+        for weld, row in zip(welds, preview.rows, strict=True):
+            weld.wps = row.wps
         try:
             with transaction.atomic():
                 Weld.objects.bulk_create(welds)

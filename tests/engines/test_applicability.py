@@ -17,6 +17,7 @@ from procedures.applicability import (
     SOURCE_UNITS,
     errors,
     review,
+    reviewer,
 )
 
 WPS = dict(label="WPS BSW-101 rev 1", code="AWS D1.1:2020", unit_system="US", process="FCAW", transfer=None,
@@ -183,3 +184,27 @@ def test_without_a_job_the_code_and_units_are_not_compared():
 def test_unreadable_input_is_a_value_error(wps, weld):
     with pytest.raises(ValueError):
         review(wps, weld, JOB)
+
+
+# --- reviewer(): one WPS and job read once, many welds (the weld-map import) -------------------------------------
+
+def _outcome(ask, *args):
+    try:
+        return ask(*args)
+    except ValueError as exc:
+        return f"ValueError: {exc}"
+
+
+def test_the_reviewer_answers_each_weld_as_review_does_errors_included():
+    welds = [WELD, changed(WELD, label="Weld W2", thicknesses=["1/2 in", "7/32 in"]),
+             changed(WELD, label="Weld W3", joint="groove", position="PG"), changed(WELD, label="Weld W4", size=None),
+             changed(WELD, label="Weld W5", position="sideways"), changed(WELD, label="Weld W6", size="1/8 in")]
+    for job in (JOB, None, changed(JOB, unit_system="SI"), changed(JOB, code_family="EN")):
+        check = reviewer(WPS, job)
+        answers = [_outcome(check, weld) for weld in welds]
+        assert answers == [_outcome(review, WPS, weld, job) for weld in welds]
+        if job is JOB:  # the mix is real: covered, refused, unreadable
+            assert answers[0] == [] and errors(answers[1]) and answers[4].startswith("ValueError")
+    assert "ValueError" in _outcome(review, changed(WPS, positions=[]), WELD, JOB)
+    with pytest.raises(ValueError, match="positions"):
+        reviewer(changed(WPS, positions=[]), JOB)

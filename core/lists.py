@@ -169,6 +169,17 @@ class CappedPaginator(Paginator):
     def capped(self):
         return self.count > COUNT_CAP
 
+    def page(self, number):
+        """The page's rows chosen by their ids first (a narrow sort), then read whole: in one query, `WHERE id IN
+        (SELECT id ... ORDER BY ... LIMIT 50)`. Sorting every matching row with all the columns the page selects
+        (a viewer's 100,000 inspections with their welds and WPSs) cost three times the sort of ids alone."""
+        page = super().page(number)
+        rows, query = page.object_list, self.object_list.query if isinstance(self.object_list, QuerySet) else None
+        if query is not None and not (query.distinct or query.group_by or query.combinator or query.is_sliced):
+            chosen = self.object_list.values("pk")[rows.query.low_mark:rows.query.high_mark]
+            page.object_list = self.object_list.filter(pk__in=chosen)
+        return page
+
 
 def paginate(request, rows, per_page=PAGE_SIZE):
     """A page of a queryset or list; a page number that cannot be read gives the first or last page."""

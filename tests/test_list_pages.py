@@ -203,3 +203,22 @@ def test_a_long_list_counts_up_to_the_cap_and_says_so(client_as, make, monkeypat
     assert "over 60 records: narrow the filters, or take the CSV" in response.text
     assert any("LIMIT 61" in q["sql"] for q in ctx.captured_queries)  # the count stops at the cap
     assert len(csv_rows(get(client, "inspections:assembly_list", job=job.pk, format="csv"))) == 130
+
+
+def test_a_page_is_chosen_by_ids_first_and_holds_the_same_rows_as_a_plain_slice(make):
+    """core.lists.CappedPaginator sorts ids alone, then reads the page's rows whole (one query either way)."""
+    from core.lists import CappedPaginator
+
+    job = make.make_job()
+    Assembly.objects.bulk_create([Assembly(job=job, piece_mark=f"E{n % 7}-{n:03d}", drawing=f"E-{n % 3}")
+                                  for n in range(23)])
+    rows = Assembly.objects.filter(job=job).select_related("job").order_by("drawing", "-piece_mark")
+    paginator = CappedPaginator(rows, 10)
+    assert paginator.count == 23
+    for number in (1, 2, 3):
+        with CaptureQueriesContext(connection) as ctx:
+            page = list(paginator.page(number).object_list)
+        assert page == list(rows[(number - 1) * 10:number * 10])
+        assert len(ctx.captured_queries) == 1 and "IN (SELECT" in ctx.captured_queries[0]["sql"]
+        assert all(a.job == job for a in page)  # select_related kept: no query per row
+    assert len(page) == 3

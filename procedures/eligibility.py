@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from datetime import date, timedelta
 
 from django.db import IntegrityError, transaction
-from django.db.models import prefetch_related_objects
+from django.db.models import Q, prefetch_related_objects
 from django.utils import timezone
 
 from core.units import Length, format_length
@@ -150,13 +150,28 @@ def _load(welders: Iterable[Welder], days: Iterable[date] = ()) -> dict[int, _Re
     if inside:
         asked = [day for day in days if any(first <= day < last for pk, process in inside
                                             for first, last in loaded[pk].runs[process])]
-        entries = ContinuityEntry.objects.filter(
-            welder_id__in={pk for pk, _ in inside}, date__gte=asked[0] - timedelta(days=_NEAR_DAYS),
-            date__lte=asked[-1]).values_list("welder_id", "process", "date").order_by("date")
+        entries = ContinuityEntry.objects.filter(_windows(asked), welder_id__in={pk for pk, _ in inside}).values_list(
+            "welder_id", "process", "date").order_by("date")
         for pk, process, day in entries:
             if (pk, process) in inside:
                 loaded[pk].near.setdefault(process, []).append(day)
     return loaded
+
+
+def _windows(days) -> Q:
+    """The dates within _NEAR_DAYS before each day asked (sorted), overlapping windows merged: days far apart (an
+    assembly's welds of different years) read two short windows, not every use between them."""
+    spans = []
+    for day in days:
+        start = day - timedelta(days=_NEAR_DAYS)
+        if spans and start <= spans[-1][1]:
+            spans[-1][1] = day
+        else:
+            spans.append([start, day])
+    condition = Q()
+    for start, end in spans:
+        condition |= Q(date__gte=start, date__lte=end)
+    return condition
 
 
 def _records(qualifications, runs) -> _Records:

@@ -222,3 +222,21 @@ def test_a_page_is_chosen_by_ids_first_and_holds_the_same_rows_as_a_plain_slice(
         assert len(ctx.captured_queries) == 1 and "IN (SELECT" in ctx.captured_queries[0]["sql"]
         assert all(a.job == job for a in page)  # select_related kept: no query per row
     assert len(page) == 3
+
+
+def test_counting_a_list_leaves_out_its_per_row_figures(make):
+    """The pager counts ids: an assembly's weld count (a subquery per row) is worked out for the page's rows only."""
+    from django.db.models import Count, OuterRef, Subquery
+
+    from core.lists import CappedPaginator
+    from inspections.models import Weld
+
+    job = make.make_job()
+    for mark in ("F1", "F2"):
+        make.make_weld(make.make_assembly(job=job, piece_mark=mark))
+    welds = Weld.objects.filter(assembly=OuterRef("pk")).order_by().values("assembly").annotate(n=Count("pk"))
+    rows = Assembly.objects.filter(job=job).annotate(n_welds=Subquery(welds.values("n"))).order_by("piece_mark")
+    with CaptureQueriesContext(connection) as ctx:
+        assert CappedPaginator(rows, 50).count == 2
+    assert "inspections_weld" not in ctx.captured_queries[0]["sql"]
+    assert [a.n_welds for a in CappedPaginator(rows, 50).page(1).object_list] == [1, 1]

@@ -57,8 +57,9 @@ def _open_ncr_count():
 
 @require_safe
 def job_list(request):
+    assemblies = Assembly.objects.filter(job=OuterRef("pk")).order_by().values("job").annotate(n=Count("pk"))
     jobs = visible(request.user, Job.objects.select_related("client_criteria", "customer")).annotate(
-        n_assemblies=Count("assemblies", distinct=True)).order_by("number")
+        n_assemblies=Coalesce(Subquery(assemblies.values("n")), 0)).order_by("number")  # the page's jobs only
     return lists.list_page(request, JobFilter(request.GET, queryset=jobs, request=request),
                            "inspections/job_list.html", {"search": PieceMarkSearchForm()},
                            columns=JOB_COLUMNS, filename="jobs.csv")

@@ -16,7 +16,6 @@ For a shop role visible() returns the queryset untouched, so the shop's pages ru
 a viewer it adds one subquery to the same query.
 """
 
-from django.db.models import Q
 from django.http import Http404
 from django.shortcuts import get_object_or_404
 

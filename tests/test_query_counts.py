@@ -6,6 +6,7 @@ show as a different number on the second record.
 """
 
 import pytest
+from django.db import connection
 from django.utils import timezone
 
 from inspections.services.inspect import sign_inspection
@@ -94,14 +95,19 @@ def test_scrap(make, weld, users, django_assert_num_queries):
         disposition_scrap(ncr, users["qa_lead"], "Burn-through at the cope")
 
 
-# Savepoints count as queries on both databases (each transition is its own atomic block inside the signing).
-# A seal (core.seals) costs 4: the record read back, the chain head locked, the seal inserted, the head moved on;
-# a signing that seals also locks the chain first (1), in its own atomic block where it was not one (2).
-SIGN_ACCEPTED = 19  # credential; lock chain, weld; state; fit-up; insert + history; seal; point the weld; refresh
-SIGN_REJECTED = 30  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
-REPAIR = 20  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh
-SIGN_CLOSING_REPAIR = 33  # an accepted signing + the waiting NCR closed (transition, seal) + the assembly's move back
-USE_AS_IS = 26  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals; refresh
+# Savepoints count as queries on both databases (each transition is its own atomic block inside the signing; the
+# assembly's refresh joins the signing's or the NCR step's own). A seal (core.seals) costs 4: the record read back,
+# the chain head locked, the seal inserted, the head moved on; a signing that seals also locks the chain first (1),
+# in its own atomic block where it was not one (2).
+# A signing locks the chain and its weld rows before anything else: 2 queries where the database locks rows
+# (PostgreSQL), none on SQLite, whose IMMEDIATE transaction holds the one write lock from its start.
+ROW_LOCKS = 2 if connection.features.has_select_for_update else 0
+SIGN_ACCEPTED = 15 + ROW_LOCKS  # credential; state; fit-up; insert + history; seal; point the weld; NCRs; refresh
+SIGN_REJECTED = 26 + ROW_LOCKS  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
+REPAIR = 18  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh
+SIGN_CLOSING_REPAIR = 29 + ROW_LOCKS  # an accepted signing + the waiting NCR closed (transition, seal) + the
+#                                       assembly's move back
+USE_AS_IS = 24  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals; refresh
 SCRAP = 25  # the NCR with its records; chain, its transition and two seals; the assembly's transition to scrapped
 
 

@@ -9,6 +9,7 @@ any -> scrapped (an NCR dispositioned as scrap; inspections.services.ncr)
 Every change goes through core.transitions.transition (lock, check, save, history).
 """
 
+import functools
 from dataclasses import dataclass, field
 
 from django.db import transaction
@@ -147,12 +148,11 @@ def scrap(assembly, user, reason):
                       allowed_from=set(AssemblyState.values) - {AssemblyState.SCRAPPED})
 
 
-def _state_facts(assembly_pk) -> tuple[bool, bool]:
-    """(a weld rejected or an NCR open, any current final inspection) for one assembly, in one query.
-
-    The same rules as WeldStatus.rejected and WeldStatus.final, asked of the weld rows' pointers to their
-    latest inspections, so a save does not build a WeldStatus for each weld of the assembly.
-    """
+@functools.cache
+def _state_facts_query():
+    """The query of _state_facts without its assembly, built and resolved once per process (the ORM's work of
+    building three EXISTS subqueries cost more than running them); each call filters a copy, as a generic view
+    copies its `queryset`."""
     open_ncr = NCR.objects.filter(weld__assembly_id=OuterRef("pk")).exclude(state=NCRState.CLOSED)
     use_as_is = NCR.objects.filter(inspection_id=OuterRef("latest_inspection_id"), state=NCRState.CLOSED,
                                    disposition=Disposition.USE_AS_IS)
@@ -161,8 +161,16 @@ def _state_facts(assembly_pk) -> tuple[bool, bool]:
     latest_rejects = (Weld.objects.filter(assembly_id=OuterRef("pk"), latest_inspection__accepted=False)
                       .exclude(Q(latest_inspection__stage=InspectionStage.FINAL) & Exists(use_as_is)))
     any_final = Weld.objects.filter(assembly_id=OuterRef("pk"), latest_final__isnull=False)
-    rejected, finals = (Assembly.objects.filter(pk=assembly_pk)
-                        .values_list(Exists(open_ncr) | Exists(latest_rejects), Exists(any_final)).get())
+    return Assembly.objects.values_list(Exists(open_ncr) | Exists(latest_rejects), Exists(any_final))
+
+
+def _state_facts(assembly_pk) -> tuple[bool, bool]:
+    """(a weld rejected or an NCR open, any current final inspection) for one assembly, in one query.
+
+    The same rules as WeldStatus.rejected and WeldStatus.final, asked of the weld rows' pointers to their
+    latest inspections, so a save does not build a WeldStatus for each weld of the assembly.
+    """
+    rejected, finals = _state_facts_query().filter(pk=assembly_pk).get()
     return bool(rejected), bool(finals)
 
 
@@ -171,7 +179,8 @@ def refresh_assembly_state(assembly, user, reason=""):
 
     Called by the inspection flow after every saved inspection and by the NCR steps; `user` is who caused it.
     """
-    with transaction.atomic():
+    # No savepoint of its own inside a signing's transaction: whatever fails here fails the whole step.
+    with transaction.atomic(savepoint=False):
         # Lock the row and read only its state: a change goes through transition(), which locks it again.
         state = Assembly.objects.select_for_update().filter(pk=assembly.pk).values_list("state", flat=True).get()
         assembly.state = state

@@ -111,6 +111,26 @@ USE_AS_IS = 24  # the NCR with its records; the capacity reads the weld's WPS; c
 SCRAP = 25  # the NCR with its records; chain, its transition and two seals; the assembly's transition to scrapped
 
 
+def test_signing_on_the_tablet(make, weld, users, client_as, django_assert_num_queries):
+    """The POST of the tablet's sign button, as the inspector taps it: what the page reads around the signing."""
+    from django.urls import reverse
+
+    from tests.test_inspect_views import shown
+
+    make.make_gauge()  # a register with a gauge: its choices are read when the form is drawn, not when it signs
+    client = client_as("inspector")
+    url = reverse("inspections:inspect_weld", args=[weld.pk])
+    data = {"stage": "final", "min_size": "1/4"}
+    data["shown_verdict"] = shown(client, weld, data)
+    with django_assert_num_queries(SIGN_ON_THE_TABLET):
+        response = client.post(url, data)
+    assert response.status_code == 302 and weld.inspections.count() == 1
+
+
+# session, user, the weld with its assembly, job and client set, the inspector's draft of it; then the signing
+SIGN_ON_THE_TABLET = 4 + SIGN_ACCEPTED
+
+
 def test_the_ncr_page_reads_a_fixed_number_of_queries(make, weld, client_as, django_assert_num_queries):
     """The NCR page: the NCR with its records, history, the capacity card and the recorded observations."""
     ncr = make.make_ncr(make.make_inspection(weld=weld, accepted=False))

@@ -99,15 +99,17 @@ def test_scrap(make, weld, users, django_assert_num_queries):
 # assembly's refresh joins the signing's or the NCR step's own). A seal (core.seals) costs 4: the record read back,
 # the chain head locked, the seal inserted, the head moved on; a signing that seals also locks the chain first (1),
 # in its own atomic block where it was not one (2).
-# A signing locks the chain and its weld rows before anything else: 2 queries where the database locks rows
-# (PostgreSQL), none on SQLite, whose IMMEDIATE transaction holds the one write lock from its start.
-ROW_LOCKS = 2 if connection.features.has_select_for_update else 0
-SIGN_ACCEPTED = 15 + ROW_LOCKS  # credential; state; fit-up; insert + history; seal; point the weld; NCRs; refresh
-SIGN_REJECTED = 26 + ROW_LOCKS  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
-REPAIR = 18  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh
-SIGN_CLOSING_REPAIR = 29 + ROW_LOCKS  # an accepted signing + the waiting NCR closed (transition, seal) + the
-#                                       assembly's move back
-USE_AS_IS = 24  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals; refresh
+# Row locks cost a query each where the database locks rows (PostgreSQL) and none on SQLite, whose IMMEDIATE
+# transaction holds the one write lock from its start: a signing locks the chain and its weld rows before anything
+# else, and the assembly's refresh its row (then reads the state and the facts in one query).
+LOCK = 1 if connection.features.has_select_for_update else 0
+SIGN_ACCEPTED = 14 + 3 * LOCK  # credential; state; fit-up; insert + history; seal; point the weld; NCRs; refresh
+SIGN_REJECTED = 25 + 3 * LOCK  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
+REPAIR = 17 + LOCK  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh
+SIGN_CLOSING_REPAIR = 28 + 3 * LOCK  # an accepted signing + the waiting NCR closed (transition, seal) + the
+#                                      assembly's move back
+USE_AS_IS = 23 + LOCK  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals;
+#                        refresh
 SCRAP = 25  # the NCR with its records; chain, its transition and two seals; the assembly's transition to scrapped
 
 

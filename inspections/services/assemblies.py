@@ -161,17 +161,22 @@ def _state_facts_query():
     latest_rejects = (Weld.objects.filter(assembly_id=OuterRef("pk"), latest_inspection__accepted=False)
                       .exclude(Q(latest_inspection__stage=InspectionStage.FINAL) & Exists(use_as_is)))
     any_final = Weld.objects.filter(assembly_id=OuterRef("pk"), latest_final__isnull=False)
-    return Assembly.objects.values_list(Exists(open_ncr) | Exists(latest_rejects), Exists(any_final))
+    return Assembly.objects.values_list("state", Exists(open_ncr) | Exists(latest_rejects), Exists(any_final))
 
 
-def _state_facts(assembly_pk) -> tuple[bool, bool]:
-    """(a weld rejected or an NCR open, any current final inspection) for one assembly, in one query.
+def _state_and_facts(assembly_pk) -> tuple[str, bool, bool]:
+    """(the assembly's state, a weld rejected or an NCR open, any current final inspection), in one query.
 
     The same rules as WeldStatus.rejected and WeldStatus.final, asked of the weld rows' pointers to their
     latest inspections, so a save does not build a WeldStatus for each weld of the assembly.
     """
-    rejected, finals = _state_facts_query().filter(pk=assembly_pk).get()
-    return bool(rejected), bool(finals)
+    state, rejected, finals = _state_facts_query().filter(pk=assembly_pk).get()
+    return state, bool(rejected), bool(finals)
+
+
+def _state_facts(assembly_pk) -> tuple[bool, bool]:
+    """(a weld rejected or an NCR open, any current final inspection) for one assembly, in one query."""
+    return _state_and_facts(assembly_pk)[1:]
 
 
 def refresh_assembly_state(assembly, user, reason=""):
@@ -181,12 +186,15 @@ def refresh_assembly_state(assembly, user, reason=""):
     """
     # No savepoint of its own inside a signing's transaction: whatever fails here fails the whole step.
     with transaction.atomic(savepoint=False):
-        # Lock the row and read only its state: a change goes through transition(), which locks it again.
-        state = Assembly.objects.select_for_update().filter(pk=assembly.pk).values_list("state", flat=True).get()
+        # Lock the row first where the database locks rows (a change goes through transition(), which locks it
+        # again); the state and the facts are then read in a statement of their own, which on PostgreSQL sees
+        # whatever the lock waited for. SQLite's IMMEDIATE transaction already holds its one write lock.
+        if transaction.get_connection().features.has_select_for_update:
+            list(Assembly.objects.select_for_update().filter(pk=assembly.pk).values_list("pk", flat=True))
+        state, rejected, any_final = _state_and_facts(assembly.pk)
         assembly.state = state
         if state in CLOSED_STATES:
             return state  # released and scrapped assemblies take no more inspections (sign_inspection)
-        rejected, any_final = _state_facts(assembly.pk)
         target = state
         if rejected:
             target = AssemblyState.REJECTED

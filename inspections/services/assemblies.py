@@ -9,7 +9,7 @@ any -> scrapped (an NCR dispositioned as scrap; inspections.services.ncr)
 Every change goes through core.transitions.transition (lock, check, save, history).
 """
 
-import functools
+import threading
 from dataclasses import dataclass, field
 
 from django.db import transaction
@@ -148,11 +148,20 @@ def scrap(assembly, user, reason):
                       allowed_from=set(AssemblyState.values) - {AssemblyState.SCRAPPED})
 
 
-@functools.cache
+_built = threading.local()
+
+
 def _state_facts_query():
-    """The query of _state_facts without its assembly, built and resolved once per process (the ORM's work of
-    building three EXISTS subqueries cost more than running them); each call filters a copy, as a generic view
-    copies its `queryset`."""
+    """The query of _state_facts without its assembly, built and resolved once per thread (the ORM's work of
+    building three EXISTS subqueries cost more than running them); each call filters a copy. Per thread, not per
+    process: a copy shares its subqueries, whose compiling counts their joins up and down as it goes."""
+    built = getattr(_built, "state_facts", None)
+    if built is None:
+        built = _built.state_facts = _build_state_facts_query()
+    return built
+
+
+def _build_state_facts_query():
     open_ncr = NCR.objects.filter(weld__assembly_id=OuterRef("pk")).exclude(state=NCRState.CLOSED)
     use_as_is = NCR.objects.filter(inspection_id=OuterRef("latest_inspection_id"), state=NCRState.CLOSED,
                                    disposition=Disposition.USE_AS_IS)

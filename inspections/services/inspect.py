@@ -131,8 +131,9 @@ def judge_fit_up(weld: Weld, acceptable: bool, root_opening: Length | None = Non
 @functools.cache
 def _fit_ups():
     """Current fit-up inspections that measured the root opening, newest first, with the fields judging reads:
-    built once per process (building the query cost more than running it); filtered per call. Current as in
-    InspectionQuerySet.current(), no inspection superseding it, asked as the reverse link's absence (one join)."""
+    built once per process (building the query cost more than running it); filtered per call, on a copy that
+    shares no subquery. Current as in InspectionQuerySet.current(), no inspection superseding it, asked as the
+    reverse link's absence (one join)."""
     return (Inspection.objects.filter(stage=InspectionStage.FIT_UP, root_gap__isnull=False, superseded_by__isnull=True)
             .order_by("-inspected_at", "-pk").only("pk", "weld_id", "stage", "inspected_at", "root_gap"))
 

@@ -164,8 +164,10 @@ def _load(model, pks, **filters) -> list:
     found = []
     pks = list(pks)
     for start in range(0, len(pks), CHUNK):
-        query = model._base_manager.filter(pk__in=pks[start:start + CHUNK], **filters)
-        found += list(query.prefetch_related(*m2m).order_by("pk"))
+        chunk = pks[start:start + CHUNK]
+        query = model._base_manager.filter(pk__in=chunk, **filters).prefetch_related(*m2m)
+        # In id order; one record has no order to keep (a signing seals one: no ORDER BY to build for it).
+        found += list(query.order_by("pk") if len(chunk) > 1 else query.order_by())
     return found
 
 
@@ -231,6 +233,14 @@ def lock_chain() -> tuple[int, str]:
             pass  # another signing made it first; lock theirs
         head = SealHead.objects.select_for_update().filter(pk=1).values_list("sequence", "chain_sha256").get()
     return head
+
+
+def lock_chain_first() -> None:
+    """Take the chain lock at the start of a transaction that seals (the lock order above). A database that locks
+    no rows has nothing to take: SQLite's IMMEDIATE transaction holds its one write lock from BEGIN, and seal()
+    reads the head when it seals."""
+    if transaction.get_connection().features.has_select_for_update:
+        lock_chain()
 
 
 @contextmanager

@@ -6,6 +6,7 @@ show as a different number on the second record.
 """
 
 import pytest
+from django.db import connection
 from django.utils import timezone
 
 from inspections.services.inspect import sign_inspection
@@ -94,16 +95,43 @@ def test_scrap(make, weld, users, django_assert_num_queries):
         disposition_scrap(ncr, users["qa_lead"], "Burn-through at the cope")
 
 
-# Savepoints count as queries on both databases (each transition is its own atomic block inside the signing).
-# A seal (core.seals) costs 4: the record read back, the chain head locked, the seal inserted, the head moved on;
-# a signing that seals also locks the chain first (1), in its own atomic block where it was not one (2).
-SIGN_ACCEPTED = 19  # credential; lock chain, weld; state; fit-up; insert + history; seal; point the weld; refresh
-SIGN_REJECTED = 30  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
-REPAIR = 23  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh;
-#             the job's uses: the repair WPS and welder before, one insert each (inspections.uses)
-SIGN_CLOSING_REPAIR = 33  # an accepted signing + the waiting NCR closed (transition, seal) + the assembly's move back
-USE_AS_IS = 26  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals; refresh
+# Savepoints count as queries on both databases (each transition is its own atomic block inside the signing; the
+# assembly's refresh joins the signing's or the NCR step's own). A seal (core.seals) costs 4: the record read back,
+# the chain head locked, the seal inserted, the head moved on; a signing that seals also locks the chain first (1),
+# in its own atomic block where it was not one (2).
+# Row locks cost a query each where the database locks rows (PostgreSQL) and none on SQLite, whose IMMEDIATE
+# transaction holds the one write lock from its start: a signing locks the chain and its weld rows before anything
+# else, and the assembly's refresh its row (then reads the state and the facts in one query).
+LOCK = 1 if connection.features.has_select_for_update else 0
+SIGN_ACCEPTED = 14 + 3 * LOCK  # credential; state; fit-up; insert + history; seal; point the weld; NCRs; refresh
+SIGN_REJECTED = 25 + 3 * LOCK  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
+REPAIR = 20 + LOCK  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh;
+#                    the job's uses: the repair WPS and welder before, one insert each (inspections.uses)
+SIGN_CLOSING_REPAIR = 28 + 3 * LOCK  # an accepted signing + the waiting NCR closed (transition, seal) + the
+#                                      assembly's move back
+USE_AS_IS = 23 + LOCK  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals;
+#                        refresh
 SCRAP = 25  # the NCR with its records; chain, its transition and two seals; the assembly's transition to scrapped
+
+
+def test_signing_on_the_tablet(make, weld, users, client_as, django_assert_num_queries):
+    """The POST of the tablet's sign button, as the inspector taps it: what the page reads around the signing."""
+    from django.urls import reverse
+
+    from tests.test_inspect_views import shown
+
+    make.make_gauge()  # a register with a gauge: its choices are read when the form is drawn, not when it signs
+    client = client_as("inspector")
+    url = reverse("inspections:inspect_weld", args=[weld.pk])
+    data = {"stage": "final", "min_size": "1/4"}
+    data["shown_verdict"] = shown(client, weld, data)
+    with django_assert_num_queries(SIGN_ON_THE_TABLET):
+        response = client.post(url, data)
+    assert response.status_code == 302 and weld.inspections.count() == 1
+
+
+# session, user, the weld with its assembly, job and client set, the inspector's draft of it; then the signing
+SIGN_ON_THE_TABLET = 4 + SIGN_ACCEPTED
 
 
 def test_the_ncr_page_reads_a_fixed_number_of_queries(make, weld, client_as, django_assert_num_queries):

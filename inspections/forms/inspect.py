@@ -135,8 +135,8 @@ class InspectionForm(forms.ModelForm):
             self.fields[name].widget.attrs.update({"inputmode": inputmode, "data-unit": "°F" if system == "US"
                                                    else "°C", "placeholder": "e.g. 150" if system == "US"
                                                    else "e.g. 65"})
-        self.fields["gauge"].widget.choices = [("", "— none —")] + [
-            (str(g.pk), f"{g.number} · {g.get_kind_display()}") for g in trace.usable_gauges(timezone.localdate())]
+        self.fields["gauge"].widget.choices = self._gauge_choices  # read when the page is drawn: a signing reads
+        # the chosen gauge itself (clean_gauge)
         if weld.assembly.job.gauge_required:  # the job's switch: not optional at the final visual
             self.fields["gauge"].help_text = ("From the gauge register: only gauges in calibration today are "
                                               "offered. This job requires the gauge used at the final visual.")
@@ -151,6 +151,13 @@ class InspectionForm(forms.ModelForm):
             self.fields["welds"].widget.attrs.update({"class": "lw-tile-input"})
             if not self.is_bound:
                 self.initial["welds"] = [str(w.pk) for w in [weld, *self.batch]]
+
+    def _gauge_choices(self):
+        """The register's gauges usable today, read once per form, the first time the select is drawn."""
+        if not hasattr(self, "_gauges_offered"):
+            self._gauges_offered = [("", "— none —")] + [
+                (str(g.pk), f"{g.number} · {g.get_kind_display()}") for g in trace.usable_gauges(timezone.localdate())]
+        return self._gauges_offered
 
     # --- what the page lays out ---------------------------------------------------------------------------
 

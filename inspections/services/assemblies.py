@@ -9,6 +9,7 @@ any -> scrapped (an NCR dispositioned as scrap; inspections.services.ncr)
 Every change goes through core.transitions.transition (lock, check, save, history).
 """
 
+import threading
 from dataclasses import dataclass, field
 
 from django.db import transaction
@@ -147,12 +148,20 @@ def scrap(assembly, user, reason):
                       allowed_from=set(AssemblyState.values) - {AssemblyState.SCRAPPED})
 
 
-def _state_facts(assembly_pk) -> tuple[bool, bool]:
-    """(a weld rejected or an NCR open, any current final inspection) for one assembly, in one query.
+_built = threading.local()
 
-    The same rules as WeldStatus.rejected and WeldStatus.final, asked of the weld rows' pointers to their
-    latest inspections, so a save does not build a WeldStatus for each weld of the assembly.
-    """
+
+def _state_facts_query():
+    """The query of _state_facts without its assembly, built and resolved once per thread (the ORM's work of
+    building three EXISTS subqueries cost more than running them); each call filters a copy. Per thread, not per
+    process: a copy shares its subqueries, whose compiling counts their joins up and down as it goes."""
+    built = getattr(_built, "state_facts", None)
+    if built is None:
+        built = _built.state_facts = _build_state_facts_query()
+    return built
+
+
+def _build_state_facts_query():
     open_ncr = NCR.objects.filter(weld__assembly_id=OuterRef("pk")).exclude(state=NCRState.CLOSED)
     use_as_is = NCR.objects.filter(inspection_id=OuterRef("latest_inspection_id"), state=NCRState.CLOSED,
                                    disposition=Disposition.USE_AS_IS)
@@ -161,9 +170,22 @@ def _state_facts(assembly_pk) -> tuple[bool, bool]:
     latest_rejects = (Weld.objects.filter(assembly_id=OuterRef("pk"), latest_inspection__accepted=False)
                       .exclude(Q(latest_inspection__stage=InspectionStage.FINAL) & Exists(use_as_is)))
     any_final = Weld.objects.filter(assembly_id=OuterRef("pk"), latest_final__isnull=False)
-    rejected, finals = (Assembly.objects.filter(pk=assembly_pk)
-                        .values_list(Exists(open_ncr) | Exists(latest_rejects), Exists(any_final)).get())
-    return bool(rejected), bool(finals)
+    return Assembly.objects.values_list("state", Exists(open_ncr) | Exists(latest_rejects), Exists(any_final))
+
+
+def _state_and_facts(assembly_pk) -> tuple[str, bool, bool]:
+    """(the assembly's state, a weld rejected or an NCR open, any current final inspection), in one query.
+
+    The same rules as WeldStatus.rejected and WeldStatus.final, asked of the weld rows' pointers to their
+    latest inspections, so a save does not build a WeldStatus for each weld of the assembly.
+    """
+    state, rejected, finals = _state_facts_query().filter(pk=assembly_pk).get()
+    return state, bool(rejected), bool(finals)
+
+
+def _state_facts(assembly_pk) -> tuple[bool, bool]:
+    """(a weld rejected or an NCR open, any current final inspection) for one assembly, in one query."""
+    return _state_and_facts(assembly_pk)[1:]
 
 
 def refresh_assembly_state(assembly, user, reason=""):
@@ -171,13 +193,17 @@ def refresh_assembly_state(assembly, user, reason=""):
 
     Called by the inspection flow after every saved inspection and by the NCR steps; `user` is who caused it.
     """
-    with transaction.atomic():
-        # Lock the row and read only its state: a change goes through transition(), which locks it again.
-        state = Assembly.objects.select_for_update().filter(pk=assembly.pk).values_list("state", flat=True).get()
+    # No savepoint of its own inside a signing's transaction: whatever fails here fails the whole step.
+    with transaction.atomic(savepoint=False):
+        # Lock the row first where the database locks rows (a change goes through transition(), which locks it
+        # again); the state and the facts are then read in a statement of their own, which on PostgreSQL sees
+        # whatever the lock waited for. SQLite's IMMEDIATE transaction already holds its one write lock.
+        if transaction.get_connection().features.has_select_for_update:
+            list(Assembly.objects.select_for_update().filter(pk=assembly.pk).values_list("pk", flat=True))
+        state, rejected, any_final = _state_and_facts(assembly.pk)
         assembly.state = state
         if state in CLOSED_STATES:
             return state  # released and scrapped assemblies take no more inspections (sign_inspection)
-        rejected, any_final = _state_facts(assembly.pk)
         target = state
         if rejected:
             target = AssemblyState.REJECTED

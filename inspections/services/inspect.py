@@ -12,13 +12,14 @@ inspection per weld sharing a batch id. A draft (what an inspector typed and pho
 the inspection's photos when signed.
 """
 
+import functools
 import hashlib
 import json
 import uuid
 from dataclasses import replace
 from datetime import datetime, time
 
-from django.db import transaction
+from django.db import connection, transaction
 from django.db.models import F
 from django.utils import timezone
 
@@ -127,10 +128,20 @@ def judge_fit_up(weld: Weld, acceptable: bool, root_opening: Length | None = Non
                    criteria_version=version, criteria_title="Fit-up hold point", system=weld.assembly.job.unit_system)
 
 
+@functools.cache
+def _fit_ups():
+    """Current fit-up inspections that measured the root opening, newest first, with the fields judging reads:
+    built once per process (building the query cost more than running it); filtered per call, on a copy that
+    shares no subquery. Current as in InspectionQuerySet.current(), no inspection superseding it, asked as the
+    reverse link's absence (one join)."""
+    return (Inspection.objects.filter(stage=InspectionStage.FIT_UP, root_gap__isnull=False, superseded_by__isnull=True)
+            .order_by("-inspected_at", "-pk").only("pk", "weld_id", "stage", "inspected_at", "root_gap"))
+
+
 def latest_fit_up(weld: Weld) -> Inspection | None:
-    """The weld's latest current fit-up inspection that measured the root opening (one query)."""
-    return (Inspection.objects.current().filter(weld=weld, stage=InspectionStage.FIT_UP, root_gap__isnull=False)
-            .order_by("-inspected_at", "-pk").first())
+    """The weld's latest current fit-up inspection that measured the root opening (one query), with the fields
+    judging reads (its id, weld, stage, time and root opening; anything else is read on access)."""
+    return _fit_ups().filter(weld=weld).first()
 
 
 def leg_increase(weld: Weld, fitted: Inspection | None) -> Length | None:
@@ -332,11 +343,12 @@ def sign_batch(welds: list[Weld], observed: dict, stage: str, user, *, supersede
                       "inspect it on its own.", code="not_identical")
     if supersedes is not None and len(welds) > 1:
         raise Refused("A correction is of one weld's inspection: correct the others one by one.")
-    seals.lock_chain()  # first: this transaction seals, then locks NCRs and the assembly (core.seals, lock order)
-    # Lock the weld rows (a no-op on SQLite, whose IMMEDIATE transaction already holds the write lock), and read
-    # the assembly's state afresh under it; the weld map data itself is what the form was judged against.
-    ids = [w.pk for w in welds]
-    list(Weld.objects.select_for_update().filter(pk__in=ids).order_by("pk").values_list("pk", flat=True))
+    seals.lock_chain_first()  # this transaction seals, then locks NCRs and the assembly (core.seals, lock order)
+    # Lock the weld rows, and read the assembly's state afresh under it; the weld map data itself is what the form
+    # was judged against. SQLite locks no rows (its IMMEDIATE transaction already holds the write lock): no query.
+    if connection.features.has_select_for_update:
+        ids = [w.pk for w in welds]
+        list(Weld.objects.select_for_update().filter(pk__in=ids).order_by("pk").values_list("pk", flat=True))
     state = Assembly.objects.filter(pk=first.assembly_id).values_list("state", flat=True).get()
     if state in (AssemblyState.RELEASED, AssemblyState.SCRAPPED):
         raise Refused(f"Assembly {first.assembly.piece_mark} is {AssemblyState(state).label.lower()}: "

@@ -185,7 +185,7 @@ def close_ncrs_for(inspection) -> list:
                                       disposition=Disposition.REPAIR,
                                       inspection__inspected_at__lte=inspection.inspected_at,
                                       repair__welded_on__lte=timezone.localdate(inspection.inspected_at))
-                   .exclude(inspection=inspection))
+                   .exclude(inspection=inspection).only("pk"))  # transition() reads each afresh, under its lock
     closed = []
     for ncr in waiting:
         closed.append(transition(ncr, user=inspection.inspector, allowed_from={NCRState.DISPOSITIONED},

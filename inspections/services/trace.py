@@ -59,7 +59,7 @@ def withdraw_credential(credential: InspectorCredential, user, reason: str) -> I
 def current_credential(inspector, on) -> InspectorCredential | None:
     """The inspector's credential current on the day (the one that runs longest), or None. One query."""
     on_file = InspectorCredential.objects.filter(inspector=inspector, state=CredentialState.ON_FILE,
-                                                 issued_on__lte=on, expires_on__gte=on)
+                                                 issued_on__lte=on, expires_on__gte=on).order_by()  # max() picks
     current = [c for c in on_file if c.currency(on).current]
     return max(current, key=lambda c: (c.currency(on).lapses_on, c.pk)) if current else None
 

@@ -105,8 +105,8 @@ def test_scrap(make, weld, users, django_assert_num_queries):
 LOCK = 1 if connection.features.has_select_for_update else 0
 SIGN_ACCEPTED = 14 + 3 * LOCK  # credential; state; fit-up; insert + history; seal; point the weld; NCRs; refresh
 SIGN_REJECTED = 25 + 3 * LOCK  # + the NCR (job lock, number, insert, history) and the assembly's move to rejected
-REPAIR = 20 + LOCK  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal; refresh;
-#                    the job's uses: the repair WPS and welder before, one insert each (inspections.uses)
+REPAIR = 20 + LOCK  # the NCR and its records; the WPS's next revision; welder records; chain, transition, seal;
+#                    refresh; the job's uses: the repair WPS and welder before, one insert each (inspections.uses)
 SIGN_CLOSING_REPAIR = 28 + 3 * LOCK  # an accepted signing + the waiting NCR closed (transition, seal) + the
 #                                      assembly's move back
 USE_AS_IS = 23 + LOCK  # the NCR with its records; the capacity reads the weld's WPS; chain, transition, two seals;

@@ -319,3 +319,12 @@ def test_what_was_recorded_reads_in_the_tables_words_and_the_jobs_units(make):
     inspection = make.make_inspection(min_size="1/4 in", undercut_depth="1/64 in", arc_strike=True, accepted=False)
     rows = dict(inspection.recorded("US"))
     assert rows == {"Smallest leg measured": '1/4"', "Deepest undercut": '1/64"', "Arc strike": "seen"}
+
+
+def test_a_nul_typed_into_the_form_is_left_out_of_the_draft(make):
+    """PostgreSQL's JSON cannot hold a NUL: the draft keeps what was typed without it (found by the hostile walk)."""
+    weld, inspector = make.make_weld(), make.make_user("inspector")
+    draft = keep_draft(weld, inspector, {"crack": ["\x00"], "remarks": ["leg \x00short at the north end"],
+                                         "min_size": "1/4\x00 in"})
+    draft.refresh_from_db()
+    assert draft.data == {"crack": [""], "remarks": ["leg short at the north end"], "min_size": "1/4 in"}

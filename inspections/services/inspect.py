@@ -450,9 +450,19 @@ def draft_for(weld: Weld, user) -> InspectionDraft | None:
     return InspectionDraft.objects.filter(weld=weld, inspector=user).first()
 
 
+def _no_nul(value):
+    """A typed value without NUL characters: nobody types one, and PostgreSQL's JSON cannot hold it (the form
+    refuses it beside the field; the draft keeps the rest of what was typed)."""
+    if isinstance(value, str):
+        return value.replace("\x00", "")
+    if isinstance(value, list | tuple):
+        return [_no_nul(v) for v in value]
+    return value
+
+
 def keep_draft(weld: Weld, user, data: dict) -> InspectionDraft:
     """Keep (or update) the inspector's draft of this weld with the form as typed (text values only)."""
-    plain = {k: v for k, v in data.items() if k not in ("csrfmiddlewaretoken", "shown_verdict")}
+    plain = {k: _no_nul(v) for k, v in data.items() if k not in ("csrfmiddlewaretoken", "shown_verdict")}
     draft, created = InspectionDraft.objects.get_or_create(weld=weld, inspector=user, defaults={"data": plain})
     if not created:
         draft.data, draft.updated_at = plain, timezone.now()

@@ -206,7 +206,7 @@ def test_a_long_list_counts_up_to_the_cap_and_says_so(client_as, make, monkeypat
 
 
 def test_a_page_is_chosen_by_ids_first_and_holds_the_same_rows_as_a_plain_slice(make):
-    """core.lists.CappedPaginator sorts ids alone, then reads the page's rows whole (one query either way)."""
+    """core.lists.CappedPaginator sorts ids alone on SQLite, then reads the page's rows whole (one query)."""
     from core.lists import CappedPaginator
 
     job = make.make_job()
@@ -219,7 +219,9 @@ def test_a_page_is_chosen_by_ids_first_and_holds_the_same_rows_as_a_plain_slice(
         with CaptureQueriesContext(connection) as ctx:
             page = list(paginator.page(number).object_list)
         assert page == list(rows[(number - 1) * 10:number * 10])
-        assert len(ctx.captured_queries) == 1 and "IN (SELECT" in ctx.captured_queries[0]["sql"]
+        # ids first on SQLite only (PostgreSQL plans the top rows itself: core.lists.CappedPaginator.page)
+        assert len(ctx.captured_queries) == 1
+        assert ("IN (SELECT" in ctx.captured_queries[0]["sql"]) == (connection.vendor == "sqlite")
         assert all(a.job == job for a in page)  # select_related kept: no query per row
     assert len(page) == 3
 

@@ -101,6 +101,7 @@ def teardown(kind, folder):
 def build(scale):
     """Add the big shop to the demo one; returns the counts made."""
     from django.contrib.auth import get_user_model
+    from django.db import connection
     from django.utils import timezone
 
     from core.units import parse_length as L
@@ -200,6 +201,9 @@ def build(scale):
     pointers = [Weld(pk=weld_id, latest_inspection_id=pk, latest_final_id=pk) for weld_id, pk in latest.items()]
     Weld.objects.bulk_update(pointers, ["latest_inspection", "latest_final"], batch_size=2000)
     uses.rebuild()  # bulk inserts send no signals: the WPSs and welders each job uses, from its welds
+    if connection.vendor == "postgresql":  # fresh planner statistics, as autovacuum gathers after a bulk load
+        with connection.cursor() as cursor:
+            cursor.execute("ANALYZE")
     return {**n, "ncrs": len(rejected), "welders": WELDERS, "wpss": WPSS}
 
 
